@@ -1,0 +1,1 @@
+"""Reading, validating and saving a book folder."""

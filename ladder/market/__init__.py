@@ -1,0 +1,1 @@
+"""Market conventions: day counts, the bond-market calendar, tenors and coupon schedules."""
