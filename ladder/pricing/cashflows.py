@@ -29,7 +29,7 @@ from ladder.market.schedule import future_periods
 class CashFlows:
     """Future cash flows (date > settlement) of n holdings, padded to k slots; see module docstring."""
 
-    settle: np.datetime64
+    settle: np.ndarray      # (n,) datetime64[D] settlement date of each holding
     dates: np.ndarray       # (n, k) datetime64[D], unadjusted; NaT where no flow
     pay_dates: np.ndarray   # (n, k) datetime64[D], rolled to the next bond-market business day
     coupon: np.ndarray      # (n, k) float64 per 100 face (interest, incl. CD interest at maturity)
@@ -101,11 +101,12 @@ def _single_flows(h: Holdings, settle) -> tuple:
 
 
 def cash_flows(h: Holdings, settle) -> CashFlows:
-    """The cash-flow matrix of ``h`` at ``settle`` (a date); holdings must mature after ``settle``."""
-    settle = np.datetime64(settle, "D")
+    """The cash-flow matrix of ``h`` at ``settle`` (a date, or one per holding); holdings must mature
+    after their settlement date."""
+    settle = np.broadcast_to(to_days(settle), (len(h),))
     coupon_rows = np.isin(h.kind, ("fixed", "zero"))
-    parts = [(_coupon_flows(h.take(coupon_rows), settle), coupon_rows),
-             (_single_flows(h.take(~coupon_rows), settle), ~coupon_rows)]
+    parts = [(_coupon_flows(h.take(coupon_rows), settle[coupon_rows]), coupon_rows),
+             (_single_flows(h.take(~coupon_rows), settle[~coupon_rows]), ~coupon_rows)]
     n = len(h)
     k = max((part[0].shape[1] for part, rows in parts if rows.any()), default=1)
     dates = np.full((n, k), NAT)
@@ -120,6 +121,6 @@ def cash_flows(h: Holdings, settle) -> CashFlows:
         mask[rows, :w], periods[rows, :w] = m, per
         accrued[rows], fraction[rows] = acc, frac
     dates = np.where(mask, dates, NAT)
-    years = np.where(mask, days_between(settle, dates) / 365.0, 0.0)
+    years = np.where(mask, days_between(settle[:, None], dates) / 365.0, 0.0)
     return CashFlows(settle, dates, np.where(mask, roll_following(dates), NAT), coupon, principal, mask,
                      periods, years, accrued, fraction)

@@ -1,0 +1,253 @@
+"""Valuation of every holding of a book at a settlement date, and the portfolio totals.
+
+Prices: a holding's own quote where it has one (its z-spread or option-adjusted spread is then solved
+from it); else the curve plus the book's spread table. Callables are valued with the Hull-White tree
+(``ladder.pricing.callable``) at their option-adjusted spread. Effective duration and convexity come
+from the quoted par yields shifted by +/- ``EFFECTIVE_SHIFT_BP`` and the curve rebuilt, spreads held.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from dataclasses import dataclass, field
+from functools import cached_property
+
+import numpy as np
+
+from ladder.book.book_file import Book
+from ladder.book.holdings import QUOTE_NONE, Holdings
+from ladder.errors import InputError, Problems
+from ladder.market.dates import days_between
+from ladder.pricing.callable import HullWhiteParams, callable_prices, option_adjusted_spreads
+from ladder.pricing.callable_terms import CallTerms, call_terms
+from ladder.pricing.callable import workout_yields
+from ladder.pricing.cashflows import CashFlows, cash_flows
+from ladder.pricing.curve import Curve, bootstrap
+from ladder.pricing.quotes import Measures, cf_rows, dirty_from_quote, measures_from_dirty
+from ladder.pricing.spreads import dirty_at_spread, settle_discount, table_spreads_bp, z_spreads
+
+EFFECTIVE_SHIFT_BP = 25.0
+
+
+@dataclass(frozen=True, eq=False)
+class Pricer:
+    """Prices holdings off a curve at fixed spreads: the engine under valuation and every scenario."""
+
+    holdings: Holdings
+    cash_flows: CashFlows
+    spread: np.ndarray          # z-spread, or OAS for callables (decimal)
+    calls: CallTerms | None     # for the callable rows, in order
+    params: HullWhiteParams
+
+    @cached_property
+    def callable_rows(self) -> np.ndarray:
+        return np.flatnonzero(self.holdings.callable)
+
+    def dirty(self, curve) -> np.ndarray:
+        """Dirty price per 100 of every holding on ``curve`` (a Curve or a CurveSet: (S, n))."""
+        discount = settle_discount(curve, self.cash_flows) if not hasattr(curve, "__len__") else np.stack(
+            [settle_discount(curve[s], self.cash_flows) for s in range(len(curve))])
+        prices = dirty_at_spread(self.cash_flows, discount, self.spread)
+        if self.calls is not None and len(self.callable_rows):
+            curves = [curve] if not hasattr(curve, "__len__") else [curve[s] for s in range(len(curve))]
+            model = np.stack([callable_prices(self.calls.bonds, _from_settle(c, self.cash_flows.settle[0]),
+                                              self.spread[self.callable_rows], self.params) for c in curves])
+            prices = np.array(prices, copy=True)
+            prices[..., self.callable_rows] = model if hasattr(curve, "__len__") else model[0]
+        return prices
+
+
+def _from_settle(curve: Curve, settle) -> callable:
+    """Discount function in ACT/365F years from ``settle`` (the callable model's clock)."""
+    t0 = float(curve.years(np.array([settle]))[0])
+    base = float(curve.discount(np.array([t0]))[0])
+    return lambda t: curve.discount(np.asarray(t, dtype=np.float64) + t0) / base
+
+
+@dataclass(frozen=True, eq=False)
+class Totals:
+    """Portfolio totals. Yields: market-value-weighted semiannual bond-equivalent; durations years."""
+
+    count: int
+    face: float
+    market_value: float
+    book_value: float
+    unrealized_gain: float
+    accrued: float
+    ytm: float
+    book_yield: float
+    modified_duration: float
+    effective_duration: float
+    convexity: float
+    effective_convexity: float
+    dv01: float
+    wam_days: float
+
+
+@dataclass(frozen=True, eq=False)
+class Valuation:
+    """Every holding's price, yield and risk at ``as_of`` (arrays aligned with ``holdings``)."""
+
+    as_of: dt.date
+    holdings: Holdings
+    curve: Curve
+    pricer: Pricer
+    clean: np.ndarray
+    accrued: np.ndarray
+    dirty: np.ndarray
+    market_value: np.ndarray
+    measures: Measures
+    dv01: np.ndarray
+    book_value: np.ndarray
+    unrealized_gain: np.ndarray
+    book_yield: np.ndarray
+    spread: np.ndarray
+    effective_duration: np.ndarray
+    effective_convexity: np.ndarray
+    days_to_maturity: np.ndarray
+    priced_from: np.ndarray          # "quote" | "curve"
+    option_value: np.ndarray         # per 100, callables only (NaN otherwise)
+    yield_to_worst: np.ndarray
+    yield_to_first_call: np.ndarray
+    totals: Totals = field(init=False)
+
+    def __post_init__(self) -> None:
+        object.__setattr__(self, "totals", _totals(self))
+
+
+def _weighted(values, weights) -> float:
+    ok = np.isfinite(values) & np.isfinite(weights)
+    total = weights[ok].sum()
+    return float((values[ok] * weights[ok]).sum() / total) if total else float("nan")
+
+
+def _totals(v: Valuation) -> Totals:
+    mv = v.market_value
+    return Totals(
+        count=len(v.holdings), face=float(v.holdings.face.sum()), market_value=float(mv.sum()),
+        book_value=float(np.nansum(v.book_value)), unrealized_gain=float(np.nansum(v.unrealized_gain)),
+        accrued=float((v.accrued * v.holdings.face / 100).sum()),
+        ytm=_weighted(v.measures.bey, mv), book_yield=_weighted(v.book_yield, np.nan_to_num(v.book_value)),
+        modified_duration=_weighted(v.measures.modified, mv), effective_duration=_weighted(v.effective_duration, mv),
+        convexity=_weighted(v.measures.convexity, mv), effective_convexity=_weighted(v.effective_convexity, mv),
+        dv01=float(v.dv01.sum()), wam_days=_weighted(v.days_to_maturity, mv),
+    )
+
+
+def settlement_date(book: Book, at: dt.date | None) -> dt.date:
+    """The settlement date: ``at`` or the book's valuation date; refuses dates before the curve's."""
+    settle = at or book.valuation_date
+    problems = Problems()
+    if settle < book.valuation_date:
+        problems.add("--at", 0, 0, f"{settle} is before the book's valuation date {book.valuation_date}; "
+                                   "the curve and prices are as of that date")
+    matured = book.holdings.maturity <= np.datetime64(settle)
+    for row, hid, mat in zip(book.holdings.row[matured], book.holdings.id[matured], book.holdings.maturity[matured]):
+        problems.add(str(book.files["holdings"]), int(row), 0,
+                     f"holding {hid} matures on {mat}, on or before the settlement date {settle}")
+    problems.raise_if_any()
+    return settle
+
+
+def _book_yields(h: Holdings) -> np.ndarray:
+    """Yield at purchase (bond-equivalent) from ``book_price`` on ``purchase_date``; NaN if not given."""
+    rows = np.flatnonzero(~np.isnan(h.book_price) & ~np.isnat(h.purchase_date))
+    out = np.where(h.kind == "fund", h.quote, np.nan)
+    if len(rows):
+        sub = h.take(rows)
+        cf = cash_flows(sub, sub.purchase_date)
+        dirty = sub.book_price + cf.accrued
+        out[rows] = measures_from_dirty(sub, cf, dirty).bey
+    return out
+
+
+def _spread_problems(book: Book, rows: np.ndarray) -> None:
+    problems = Problems()
+    h = book.holdings
+    for i in rows:
+        problems.add(str(book.files["holdings"]), int(h.row[i]), 0,
+                     f"holding {h.id[i]} has no quote and book.toml [spreads] has no spread for sector "
+                     f"{h.sector[i]!r} and rating {h.rating[i] or h.short_rating[i] or 'unrated'!r}; "
+                     "add a quote or a spread (or a 'default' for the sector)")
+    problems.raise_if_any()
+
+
+def value_book(book: Book, at: dt.date | None = None) -> Valuation:
+    """Value every holding of ``book`` at ``at`` (default: the valuation date)."""
+    settle = settlement_date(book, at)
+    h = book.holdings
+    curve = bootstrap(book.curve, np.datetime64(book.valuation_date))
+    cf = cash_flows(h, np.datetime64(settle))
+    discount = settle_discount(curve, cf)
+    quoted = h.quote_type != QUOTE_NONE
+    table_bp = table_spreads_bp(h, book.spreads)
+    missing = np.flatnonzero(~quoted & np.isnan(table_bp) & (h.kind != "fund"))
+    if len(missing):
+        _spread_problems(book, missing)
+    dirty = dirty_from_quote(h, cf)
+    spread = np.where(quoted, z_spreads(cf, discount, np.where(quoted, dirty, 100.0)), table_bp / 1e4)
+    spread = np.where(h.kind == "fund", 0.0, spread)
+    dirty = np.where(quoted, dirty, dirty_at_spread(cf, discount, spread))
+    params = HullWhiteParams(book.model.mean_reversion, book.model.volatility)
+    calls, option_value, ytw, ytfc = _callables(book, cf, curve, quoted, dirty, spread, params)
+    pricer = Pricer(h, cf, spread, calls, params)
+    if calls is not None:
+        rows = pricer.callable_rows
+        dirty = dirty.copy()
+        dirty[rows] = np.where(quoted[rows], dirty[rows], pricer.dirty(curve)[rows])
+    shocked = pricer.dirty(curve.shifted_many(np.array([[-EFFECTIVE_SHIFT_BP], [EFFECTIVE_SHIFT_BP]])
+                                              * np.ones(len(book.curve))))
+    base = pricer.dirty(curve)
+    d = EFFECTIVE_SHIFT_BP / 1e4
+    with np.errstate(invalid="ignore", divide="ignore"):
+        eff_dur = (shocked[0] - shocked[1]) / (2 * base * d)
+        eff_cx = (shocked[0] + shocked[1] - 2 * base) / (base * d * d)
+    measures = measures_from_dirty(h, cf, dirty)
+    clean = dirty - cf.accrued
+    face = h.face / 100.0
+    book_value = np.where(h.kind == "fund", h.face, h.book_price * face)
+    return Valuation(
+        as_of=settle, holdings=h, curve=curve, pricer=pricer, clean=clean, accrued=cf.accrued, dirty=dirty,
+        market_value=dirty * face, measures=measures, dv01=measures.modified * dirty * face * 1e-4,
+        book_value=book_value, unrealized_gain=clean * face - book_value, book_yield=_book_yields(h),
+        spread=spread, effective_duration=eff_dur, effective_convexity=eff_cx,
+        days_to_maturity=days_between(np.datetime64(settle), h.maturity),
+        priced_from=np.where(quoted | (h.kind == "fund"), "quote", "curve").astype(object),
+        option_value=option_value, yield_to_worst=ytw, yield_to_first_call=ytfc)
+
+
+def _callables(book, cf, curve, quoted, dirty, spread, params):
+    """Call terms, and OAS (written into ``spread``), option value and workout yields of callables."""
+    h = book.holdings
+    n = len(h)
+    option_value, ytw, ytfc = np.full(n, np.nan), np.full(n, np.nan), np.full(n, np.nan)
+    rows = np.flatnonzero(h.callable)
+    if not len(rows):
+        return None, option_value, ytw, ytfc
+    sub = h.take(rows)
+    sub_cf = cf_rows(cf, rows)
+    terms = call_terms(sub, sub_cf, str(book.files["holdings"]))
+    problems = terms.bonds.problems(params.dt)
+    problems.extend(params.problems(list(sub.id), str(book.files.get("book", "book.toml"))))
+    problems.raise_if_any()
+    discount = _from_settle(curve, cf.settle[0])
+    q = quoted[rows]
+    oas = spread[rows].copy()
+    if q.any():
+        oas[q] = option_adjusted_spreads(_subset(terms, np.flatnonzero(q)), discount, dirty[rows][q], params)
+    spread[rows] = oas
+    price = callable_prices(terms.bonds, discount, oas, params)
+    bullet = callable_prices(terms.bonds, discount, oas, params, calls=False)
+    option_value[rows] = bullet - price
+    worked = workout_yields(np.where(q, dirty[rows], price), sub.frequency, sub_cf.periods, sub_cf.amount,
+                            sub_cf.mask, terms.periods, terms.prices, terms.accrued, terms.mask)
+    ytw[rows], ytfc[rows] = worked.to_worst, worked.to_first_call
+    return terms, option_value, ytw, ytfc
+
+
+def _subset(terms: CallTerms, index) -> "CallableBonds":
+    from dataclasses import fields, replace
+
+    b = terms.bonds
+    return replace(b, **{f.name: getattr(b, f.name)[index] for f in fields(b)
+                         if isinstance(getattr(b, f.name), np.ndarray)})

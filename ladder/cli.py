@@ -1,0 +1,58 @@
+"""The ``ladder`` command line: ``ladder`` alone opens the workstation on the demo book.
+
+Input problems are printed one per line as ``file:row:column: message`` and exit with status 2;
+``check`` exits 1 on a policy breach; 0 otherwise. The workstation is imported only when it opens,
+so the reporting commands never load Textual.
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+
+from ladder import CAUTION, __version__
+from ladder.errors import InputError
+
+COMMANDS = ("value", "shock", "check", "plan", "build", "report", "open")
+EXIT_OK, EXIT_BREACH, EXIT_INPUT = 0, 1, 2
+
+
+def _parser() -> argparse.ArgumentParser:
+    import importlib
+
+    parser = argparse.ArgumentParser(
+        prog="ladder", description="A treasury workstation for a corporate cash ladder.", epilog=CAUTION)
+    parser.add_argument("--version", action="version", version=f"ladder {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for name in COMMANDS:
+        try:
+            module = importlib.import_module(f"ladder.commands.{name}")
+        except ModuleNotFoundError as error:
+            if error.name != f"ladder.commands.{name}":
+                raise
+            continue
+        module.add_parser(sub)
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    argv = sys.argv[1:] if argv is None else argv
+    parser = _parser()
+    args = parser.parse_args(argv or ["open"])
+    if not getattr(args, "run", None):
+        parser.print_help()
+        return EXIT_INPUT
+    try:
+        return args.run(args)
+    except InputError as error:
+        for problem in error.problems:
+            print(problem, file=sys.stderr)
+        print(f"ladder: refused: {len(error.problems)} problem(s); nothing was computed or written.",
+              file=sys.stderr)
+        return EXIT_INPUT
+    except KeyboardInterrupt:
+        return 130
+
+
+if __name__ == "__main__":
+    sys.exit(main())

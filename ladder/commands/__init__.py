@@ -1,0 +1,1 @@
+"""The subcommands of ``ladder``: each module has ``add_parser(subparsers)`` and ``run(args) -> int``."""
