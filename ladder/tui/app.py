@@ -1,0 +1,264 @@
+"""The workstation app: holds the Book, recomputes through the façade in a worker, shows the views.
+
+``make_app(book)`` is the one way to build it (the command line and the tests share it). The app
+owns the state: the current Book (with edits), the curve in the book's file, what is unsaved, and
+the latest ``Results``; views get ``results`` set on them and post messages for changes.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from pathlib import Path
+
+from textual import work
+from textual.app import App, ComposeResult, SystemCommand
+from textual.binding import Binding
+from textual.message import Message
+from textual.widgets import ContentSwitcher, Footer, Static
+from textual.worker import get_current_worker
+
+from ladder import CAUTION
+from ladder.book.book_file import Book
+from ladder.tui import tasks
+from ladder.tui.results import TASKS, Results
+from ladder.tui.screens import DetailScreen, QuitScreen
+from ladder.tui.theme import THEMES
+from ladder.tui.views.base import View
+from ladder.tui.views.curve import CurveView
+from ladder.tui.views.holdings import HoldingsView
+
+# (view id, key, class); the order is the order of the view bar and the footer.
+VIEWS: tuple[tuple[str, str, type[View]], ...] = (
+    ("holdings", "h", HoldingsView),
+    ("curve", "y", CurveView),
+)
+
+
+class Computed(Message):
+    """A task's result (or error text) for the book of ``generation``."""
+
+    def __init__(self, generation: int, task: str, result=None, error: str | None = None) -> None:
+        super().__init__()
+        self.generation, self.task, self.result, self.error = generation, task, result, error
+
+
+class LadderApp(App[None]):
+    CSS_PATH = "ladder.tcss"
+    TITLE = "ladder"
+    BINDINGS = [
+        *[Binding(key, f"show_view('{name}')", cls.TITLE, id=f"view.{name}", tooltip=f"Show the {cls.TITLE} view")
+          for name, key, cls in VIEWS],
+        Binding("question_mark", "keys", "Keys", id="app.keys", tooltip="Show or hide every key of this screen"),
+        Binding("ctrl+s", "save", "Save", id="app.save", tooltip="Write changes to the book (atomic, with backup)"),
+        Binding("q", "quit", "Quit", id="app.quit", tooltip="Quit (asks first when there are unsaved changes)"),
+    ]
+
+    def __init__(self, book: Book) -> None:
+        super().__init__()
+        self.book = book
+        self.original_curve = book.curve
+        self.saved_holdings = book.holdings
+        self.unsaved: dict[str, str] = {}
+        self.results = Results(0, book)
+
+    # ---- layout --------------------------------------------------------------------------------
+    def compose(self) -> ComposeResult:
+        yield Static(id="book-line")
+        yield Static(id="view-bar")
+        with ContentSwitcher(initial=VIEWS[0][0], id="views"):
+            for name, _, cls in VIEWS:
+                yield cls(id=name)
+        yield Static(CAUTION, id="caution", classes="caution")
+        yield Footer()
+
+    def on_mount(self) -> None:
+        for theme in THEMES:
+            self.register_theme(theme)
+        self.theme = THEMES[0].name
+        self.recompute()
+        self._show_bar()
+        self.current_view.query_one("FrameTable").focus()
+
+    @property
+    def current_view(self) -> View:
+        switcher = self.query_one("#views", ContentSwitcher)
+        return self.query_one(f"#{switcher.current}", View)
+
+    def _show_bar(self) -> None:
+        current = self.query_one("#views", ContentSwitcher).current
+        parts = []
+        for name, key, cls in VIEWS:
+            label = f" {cls.TITLE} ({key}) "
+            parts.append(f"[reverse] {cls.TITLE} ({key}) [/reverse]" if name == current else label)
+        self.query_one("#view-bar", Static).update("".join(parts))
+        r = self.results
+        book = self.book
+        state = []
+        if r.pending:
+            state.append("computing " + ", ".join(t for t in TASKS if t in r.pending))
+        if r.errors:
+            state.append("not available: " + ", ".join(sorted(r.errors)))
+        if self.unsaved:
+            state.append("UNSAVED: " + "; ".join(self.unsaved.values()))
+        line = f"{book.name}  ·  valuation date {book.valuation_date}  ·  {book.currency}"
+        bar = self.query_one("#book-line", Static)
+        bar.update(line + ("  ·  " + "  ·  ".join(state) if state else "  ·  figures current"))
+        bar.set_class(bool(self.unsaved), "-unsaved")
+        bar.set_class(bool(r.pending), "-computing")
+
+    # ---- computing -----------------------------------------------------------------------------
+    def recompute(self) -> None:
+        """Start every task for the current book; results of earlier books are dropped on arrival."""
+        self.results = Results(self.results.generation + 1, self.book).started(TASKS)
+        self._hand_down()
+        self.compute(self.results.generation, self.book)
+
+    @work(thread=True, exclusive=True, exit_on_error=False, group="figures")
+    def compute(self, generation: int, book: Book) -> None:
+        """Run the façade tasks in order (valuation first), posting each result as it lands."""
+        worker = get_current_worker()
+        done = Results(generation, book)
+        for task in TASKS:
+            if worker.is_cancelled:
+                return
+            missing = [need for need in tasks.DEPENDS[task] if done.get(need) is None]
+            if missing:
+                message = f"needs {', '.join(missing)}"
+                done = done.landed(task, error=message)
+                self.post_message(Computed(generation, task, error=message))
+                continue
+            try:
+                result = tasks.RUNNERS[task](book, done)
+            except tasks.Unavailable as error:
+                done = done.landed(task, error=str(error))
+                self.post_message(Computed(generation, task, error=str(error)))
+                continue
+            except Exception as error:  # every failure is shown in the view, never a crash
+                done = done.landed(task, error=tasks.describe(error))
+                self.post_message(Computed(generation, task, error=tasks.describe(error)))
+                continue
+            done = done.landed(task, result)
+            if not worker.is_cancelled:
+                self.post_message(Computed(generation, task, result))
+
+    def on_computed(self, message: Computed) -> None:
+        if message.generation != self.results.generation:
+            return   # stale: the book changed since this task started
+        self.results = self.results.landed(message.task, message.result, message.error)
+        self._hand_down()
+
+    def _hand_down(self) -> None:
+        for view in self.query(View):
+            view.results = self.results
+        self._show_bar()
+        self.refresh_bindings()
+
+    def change_book(self, book: Book, what: str, description: str) -> None:
+        """Take an edited book (``what``: "holdings" or "curve") and recompute every view."""
+        self.book = book
+        if what == "curve" and book.curve is self.original_curve:
+            self.unsaved.pop("curve", None)
+        else:
+            self.unsaved[what] = description
+        self.recompute()
+
+    # ---- messages from views -------------------------------------------------------------------
+    def on_curve_view_curve_edited(self, message: CurveView.CurveEdited) -> None:
+        par = message.par_curve
+        if par is not self.original_curve and (par.par_yields == self.original_curve.par_yields).all():
+            par = self.original_curve
+        self.change_book(dataclasses.replace(self.book, curve=par), "curve", "par yields edited")
+
+    def on_holdings_view_detail_wanted(self, message: HoldingsView.DetailWanted) -> None:
+        from ladder.tui.holding_detail import detail
+
+        v = self.results.valuation
+        if v is not None:
+            self.push_screen(DetailScreen(detail(v, message.row), self.book.currency))
+
+    # ---- actions -------------------------------------------------------------------------------
+    def action_show_view(self, name: str) -> None:
+        switcher = self.query_one("#views", ContentSwitcher)
+        switcher.current = name
+        view = self.current_view
+        view.catch_up()
+        self._show_bar()
+        focus = view.query("FrameTable, Input, Button, Select")
+        for widget in focus:
+            if widget.display and widget.focusable:
+                widget.focus()
+                break
+        self.refresh_bindings()
+
+    def action_keys(self) -> None:
+        if self.screen.query("HelpPanel"):
+            self.action_hide_help_panel()
+        else:
+            self.action_show_help_panel()
+
+    def check_action(self, action: str, parameters) -> bool | None:
+        if action == "save":
+            return bool(self.unsaved) or None
+        if action == "show_view" and parameters:
+            return True
+        return True
+
+    def action_save(self) -> None:
+        if not self.unsaved:
+            return
+        written = self.save()
+        self.notify("Saved " + ", ".join(p.name for p in written) + " (each previous file kept as .bak)",
+                    title="Saved")
+
+    def save(self) -> list[Path]:
+        """Write the unsaved parts of the book (atomic replace, previous file kept as .bak)."""
+        from ladder.book.save import save_holdings, write_atomic
+
+        written = []
+        if "holdings" in self.unsaved:
+            written.append(save_holdings(self.book, self.book.holdings))
+            self.saved_holdings = self.book.holdings
+        if "curve" in self.unsaved:
+            path = Path(self.book.files["curve"])
+            par = self.book.curve
+            lines = ["tenor,par_yield_pct"] + [f"{t},{y * 100:.10g}" for t, y in zip(par.tenors, par.par_yields)]
+            write_atomic(path, "\n".join(lines) + "\n")
+            self.original_curve = par
+            written.append(path)
+        self.unsaved.clear()
+        self._show_bar()
+        self.refresh_bindings()
+        return written
+
+    async def action_quit(self) -> None:
+        if not self.unsaved:
+            self.exit()
+            return
+
+        def answered(choice: str | None) -> None:
+            if choice == "save":
+                self.save()
+                self.exit()
+            elif choice == "discard":
+                self.exit()
+
+        self.push_screen(QuitScreen(list(self.unsaved.values())), answered)
+
+    def get_system_commands(self, screen):
+        for name, key, cls in VIEWS:
+            yield SystemCommand(f"Show {cls.TITLE}", f"Switch to the {cls.TITLE} view (key {key})",
+                                lambda name=name: self.action_show_view(name))
+        if self.unsaved:
+            yield SystemCommand("Save changes", "Write the edited holdings and curve to the book",
+                                self.action_save)
+        yield SystemCommand("Recompute", "Value the book again and refresh every view", self.recompute)
+        yield from super().get_system_commands(screen)
+
+
+def make_app(book) -> LadderApp:
+    """The workstation on ``book`` (a Book, or a folder path read with ``load_book``)."""
+    if not isinstance(book, Book):
+        from ladder.book.book_file import load_book
+
+        book = load_book(book)
+    return LadderApp(book)

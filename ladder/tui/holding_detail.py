@@ -1,0 +1,130 @@
+"""One holding's detail, taken from a Valuation: its terms, cash-flow schedule, price against yield,
+and for callables the call schedule and option-adjusted figures. No Textual here.
+
+Price against yield (prices per 100, dirty): the exact curve is the holding repriced at each yield
+on its own yield basis by ``ladder.pricing.quotes.dirty_from_quote`` (the street formula of
+``ladder.pricing.yield_math`` for coupon bonds, the money-market formulas for single payments);
+the estimates are the second-order Taylor expansion about the holding's yield y0 and price P0,
+with its modified duration D and convexity C from the valuation:
+    duration line          P0 (1 - D dy)
+    duration + convexity   P0 (1 - D dy + C dy^2 / 2)
+so the gap between the exact curve and the estimates is the estimation error.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from ladder.book.holdings import QUOTE_YIELD
+from ladder.pricing.quotes import cf_rows, dirty_from_quote
+from ladder.tui import format as fmt
+
+CHART_SPAN_BP = 300.0
+CHART_POINTS = 61
+
+
+@dataclass(frozen=True, eq=False)
+class PriceYield:
+    """Yields (decimal) and dirty prices per 100 along them; ``y0``, ``p0`` the holding's own."""
+
+    yields: np.ndarray
+    exact: np.ndarray
+    duration: np.ndarray
+    convexity: np.ndarray
+    y0: float
+    p0: float
+
+
+@dataclass(frozen=True, eq=False)
+class CashFlowRows:
+    """The holding's future flows: dates, pay dates, per 100 face, and money for its face."""
+
+    dates: np.ndarray
+    pay_dates: np.ndarray
+    coupon: np.ndarray
+    principal: np.ndarray
+    amount: np.ndarray
+    money: np.ndarray
+
+
+@dataclass(frozen=True, eq=False)
+class Detail:
+    row: int
+    id: str
+    terms: tuple[tuple[str, str], ...]
+    figures: tuple[tuple[str, str], ...]
+    flows: CashFlowRows
+    price_yield: PriceYield | None
+    calls: tuple[tuple[str, str], ...]      # (call date, clean call price) for callables
+    call_figures: tuple[tuple[str, str], ...]
+
+
+def price_yield(v, i: int, span_bp: float = CHART_SPAN_BP, points: int = CHART_POINTS) -> PriceYield | None:
+    """Exact price and its duration and duration-plus-convexity estimates over y0 +/- ``span_bp``."""
+    h = v.holdings
+    y0, p0 = float(v.measures.ytm[i]), float(v.dirty[i])
+    d, c = float(v.measures.modified[i]), float(v.measures.convexity[i])
+    if h.kind[i] == "fund" or not (np.isfinite(y0) and np.isfinite(p0) and np.isfinite(d) and np.isfinite(c)):
+        return None
+    dy = np.linspace(-span_bp, span_bp, points) / 1e4
+    yields = y0 + dy
+    rows = np.full(points, i)
+    grid = h.take(rows)
+    grid = replace(grid, quote_type=np.full(points, QUOTE_YIELD, dtype=object), quote=yields)
+    exact = dirty_from_quote(grid, cf_rows(v.pricer.cash_flows, rows))
+    return PriceYield(yields, exact, p0 * (1 - d * dy), p0 * (1 - d * dy + 0.5 * c * dy * dy), y0, p0)
+
+
+def cash_flow_rows(v, i: int) -> CashFlowRows:
+    cf = v.pricer.cash_flows
+    keep = cf.mask[i]
+    face = float(v.holdings.face[i])
+    return CashFlowRows(cf.dates[i][keep], cf.pay_dates[i][keep], cf.coupon[i][keep], cf.principal[i][keep],
+                        cf.amount[i][keep], cf.amount[i][keep] * face / 100.0)
+
+
+def _calls(v, i: int):
+    calls = v.pricer.calls
+    if calls is None or not v.holdings.callable[i]:
+        return (), ()
+    j = int(np.flatnonzero(v.pricer.callable_rows == i)[0])
+    keep = calls.mask[j]
+    schedule = tuple((str(d), fmt.number(p, 3)) for d, p in zip(calls.dates[j][keep], calls.prices[j][keep]))
+    figures = (
+        ("Option-adjusted spread", f"{fmt.bp(v.spread[i])} bp"),
+        ("Option value (per 100)", fmt.number(v.option_value[i], 4)),
+        ("Yield to first call", f"{fmt.percent(v.yield_to_first_call[i])}%"),
+        ("Yield to worst", f"{fmt.percent(v.yield_to_worst[i])}%"),
+        ("Effective duration", fmt.number(v.effective_duration[i], 3)),
+        ("Effective convexity", fmt.number(v.effective_convexity[i], 3)),
+    )
+    return schedule, figures
+
+
+def detail(v, i: int) -> Detail:
+    """Everything the detail panel shows for holding ``i`` of valuation ``v``."""
+    h, m = v.holdings, v.measures
+    rating = " / ".join(r for r in (h.rating[i], h.short_rating[i]) if r) or fmt.NA_TEXT
+    terms = (
+        ("Id", str(h.id[i])), ("Issuer", str(h.issuer[i])), ("Sector", str(h.sector[i])), ("Kind", str(h.kind[i])),
+        ("Face", fmt.money(h.face[i])), ("Maturity", str(h.maturity[i])), ("Coupon", f"{fmt.percent(h.coupon[i])}%"),
+        ("Coupons a year", str(int(h.frequency[i]))), ("Day count", str(h.day_count[i])),
+        ("Issue date", fmt.texts(h.issue_date[i:i + 1])[0]), ("Rating", rating),
+        ("Rating at purchase", str(h.rating_at_purchase[i]) or fmt.NA_TEXT),
+        ("Book price", fmt.number(h.book_price[i], 4)), ("Purchase date", fmt.texts(h.purchase_date[i:i + 1])[0]),
+        ("Priced from", str(v.priced_from[i])),
+    )
+    spread_name = "Option-adjusted spread" if h.callable[i] else "Spread (z)"
+    figures = (
+        ("Clean price", fmt.number(v.clean[i], 4)), ("Accrued (per 100)", fmt.number(v.accrued[i], 4)),
+        ("Dirty price", fmt.number(v.dirty[i], 4)), ("Market value", fmt.money(v.market_value[i], 2)),
+        ("Yield", f"{fmt.percent(m.ytm[i])}%"), ("Bond-equivalent yield", f"{fmt.percent(m.bey[i])}%"),
+        ("Book yield", f"{fmt.percent(v.book_yield[i])}%"), ("Macaulay duration", fmt.number(m.macaulay[i], 3)),
+        ("Modified duration", fmt.number(m.modified[i], 3)), ("Convexity", fmt.number(m.convexity[i], 3)),
+        ("DV01", fmt.money(v.dv01[i], 2)), (spread_name, f"{fmt.bp(v.spread[i])} bp"),
+        ("Unrealized gain", fmt.money(v.unrealized_gain[i], 2)), ("Days to maturity", str(int(v.days_to_maturity[i]))),
+    )
+    schedule, call_figures = _calls(v, i)
+    return Detail(i, str(h.id[i]), terms, figures, cash_flow_rows(v, i), price_yield(v, i), schedule, call_figures)

@@ -1,0 +1,122 @@
+"""Screens over the views: a holding's detail, the quit question, a yes/no confirmation."""
+
+from __future__ import annotations
+
+import numpy as np
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Grid, Horizontal, Vertical, VerticalScroll
+from textual.screen import ModalScreen
+from textual.widgets import Button, DataTable, Label, Static
+from textual_plotext import PlotextPlot
+
+from ladder import CAUTION
+from ladder.tui import format as fmt
+from ladder.tui.holding_detail import Detail
+
+
+def pairs_text(pairs) -> str:
+    width = max((len(k) for k, _ in pairs), default=0)
+    return "\n".join(f"{k.ljust(width)}  {v}" for k, v in pairs)
+
+
+class DetailScreen(ModalScreen[None]):
+    """One holding: terms, figures, cash-flow schedule, price against yield (and calls)."""
+
+    BINDINGS = [Binding("escape", "dismiss", "Back", id="detail.back"),
+                Binding("q", "dismiss", "Back", show=False)]
+
+    def __init__(self, detail: Detail, currency: str) -> None:
+        super().__init__(classes="detail-screen")
+        self.detail, self.currency = detail, currency
+
+    def compose(self) -> ComposeResult:
+        d = self.detail
+        with Vertical(id="detail"):
+            yield Label(f"{d.id}: terms, cash flows and price against yield   (Esc to go back)", classes="title")
+            with Horizontal(id="detail-top"):
+                yield Static(pairs_text(d.terms), id="detail-terms", classes="pairs")
+                yield Static(pairs_text(d.figures), id="detail-figures", classes="pairs")
+                if d.calls:
+                    calls = [("Call date", "Call price")] + list(d.calls)
+                    yield Static(pairs_text(d.call_figures) + "\n\n" + pairs_text(calls), id="detail-calls",
+                                 classes="pairs")
+            with Horizontal(id="detail-bottom"):
+                yield DataTable(id="detail-flows", cursor_type="row", zebra_stripes=True)
+                if d.price_yield is not None:
+                    yield PlotextPlot(id="detail-chart")
+                else:
+                    yield Static("No price/yield chart: a fund's price does not move with rates.", id="detail-chart")
+            yield Static(CAUTION, classes="caution")
+
+    def on_mount(self) -> None:
+        d = self.detail
+        table = self.query_one("#detail-flows", DataTable)
+        table.add_columns("Date", "Paid on", "Coupon /100", "Principal /100", f"Amount {self.currency}")
+        f = d.flows
+        for row in zip(fmt.texts(f.dates), fmt.texts(f.pay_dates), fmt.numbers(f.coupon, 4),
+                       fmt.numbers(f.principal, 4), fmt.numbers(f.money, 2)):
+            table.add_row(*row)
+        table.focus()
+        if d.price_yield is not None:
+            py = d.price_yield
+            plot = self.query_one("#detail-chart", PlotextPlot)
+            plt = plot.plt
+            x = (py.yields * 100).tolist()
+            plt.plot(x, py.exact.tolist(), label="exact", marker="braille")
+            plt.plot(x, py.duration.tolist(), label="duration", marker="braille")
+            plt.plot(x, py.convexity.tolist(), label="duration + convexity", marker="braille")
+            plt.title("Dirty price per 100 against yield (%)")
+            plt.xlabel("yield %")
+
+
+class QuitScreen(ModalScreen[str]):
+    """Unsaved changes: save and quit, quit without saving, or stay."""
+
+    BINDINGS = [Binding("escape", "stay", "Stay", id="quit.stay"),
+                Binding("s", "choose('save')", "Save and quit", id="quit.save"),
+                Binding("d", "choose('discard')", "Quit without saving", id="quit.discard")]
+
+    def __init__(self, changes: list[str]) -> None:
+        super().__init__(classes="question-screen")
+        self.changes = changes
+
+    def compose(self) -> ComposeResult:
+        with Grid(id="question"):
+            yield Label("Unsaved changes: " + ", ".join(self.changes) + ".\nSave them before quitting?",
+                        id="question-text")
+            yield Button("Save and quit (s)", id="save", variant="primary")
+            yield Button("Quit without saving (d)", id="discard", variant="error")
+            yield Button("Stay (Esc)", id="stay")
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        self.dismiss(event.button.id)
+
+    def action_choose(self, choice: str) -> None:
+        self.dismiss(choice)
+
+    def action_stay(self) -> None:
+        self.dismiss("stay")
+
+
+class ConfirmScreen(ModalScreen[bool]):
+    """A yes/no question (y / n)."""
+
+    BINDINGS = [Binding("y", "answer(True)", "Yes", id="confirm.yes"),
+                Binding("n,escape", "answer(False)", "No", id="confirm.no")]
+
+    def __init__(self, question: str) -> None:
+        super().__init__(classes="question-screen")
+        self.question = question
+
+    def compose(self) -> ComposeResult:
+        with Grid(id="question"):
+            yield Label(self.question, id="question-text")
+            yield Button("Yes (y)", id="yes", variant="primary")
+            yield Button("No (n)", id="no")
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        self.dismiss(event.button.id == "yes")
+
+    def action_answer(self, answer: bool) -> None:
+        self.dismiss(answer)

@@ -1,0 +1,1 @@
+"""Widgets of the workstation: the row table, the caution line, the status line."""
