@@ -26,10 +26,12 @@ from ladder.tui.theme import THEMES
 from ladder.tui.views.base import View
 from ladder.tui.views.curve import CurveView
 from ladder.tui.views.holdings import HoldingsView
+from ladder.tui.views.rates import RatesView
 
 # (view id, key, class); the order is the order of the view bar and the footer.
 VIEWS: tuple[tuple[str, str, type[View]], ...] = (
     ("holdings", "h", HoldingsView),
+    ("rates", "r", RatesView),
     ("curve", "y", CurveView),
 )
 
@@ -60,6 +62,7 @@ class LadderApp(App[None]):
         self.saved_holdings = book.holdings
         self.unsaved: dict[str, str] = {}
         self.results = Results(0, book)
+        self.options = tasks.Options()
 
     # ---- layout --------------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -111,14 +114,25 @@ class LadderApp(App[None]):
         """Start every task for the current book; results of earlier books are dropped on arrival."""
         self.results = Results(self.results.generation + 1, self.book).started(TASKS)
         self._hand_down()
-        self.compute(self.results.generation, self.book)
+        self.compute(self.results.generation, self.book, self.options)
+
+    def recompute_task(self, task: str) -> None:
+        """Run one task again for the same book (after a change of options); others stay."""
+        if self.results.pending:
+            self.recompute()      # a full run is under way: start it again with the new options
+            return
+        self.results = self.results.started([task])
+        self._hand_down()
+        self.compute(self.results.generation, self.book, self.options, (task,), self.results)
 
     @work(thread=True, exclusive=True, exit_on_error=False, group="figures")
-    def compute(self, generation: int, book: Book) -> None:
-        """Run the façade tasks in order (valuation first), posting each result as it lands."""
+    def compute(self, generation: int, book: Book, options: tasks.Options, only: tuple[str, ...] = TASKS,
+                done: Results | None = None) -> None:
+        """Run the façade tasks ``only`` in order (valuation first), posting each result as it lands;
+        ``done`` holds the results already known for this generation."""
         worker = get_current_worker()
-        done = Results(generation, book)
-        for task in TASKS:
+        done = done or Results(generation, book)
+        for task in only:
             if worker.is_cancelled:
                 return
             missing = [need for need in tasks.DEPENDS[task] if done.get(need) is None]
@@ -128,7 +142,7 @@ class LadderApp(App[None]):
                 self.post_message(Computed(generation, task, error=message))
                 continue
             try:
-                result = tasks.RUNNERS[task](book, done)
+                result = tasks.RUNNERS[task](book, done, options)
             except tasks.Unavailable as error:
                 done = done.landed(task, error=str(error))
                 self.post_message(Computed(generation, task, error=str(error)))
@@ -168,6 +182,11 @@ class LadderApp(App[None]):
         if par is not self.original_curve and (par.par_yields == self.original_curve.par_yields).all():
             par = self.original_curve
         self.change_book(dataclasses.replace(self.book, curve=par), "curve", "par yields edited")
+
+    def on_rates_view_scenario_wanted(self, message: RatesView.ScenarioWanted) -> None:
+        extra = self.options.extra_scenarios + (message.scenario,)
+        self.options = dataclasses.replace(self.options, extra_scenarios=extra)
+        self.recompute_task("shock")
 
     def on_holdings_view_detail_wanted(self, message: HoldingsView.DetailWanted) -> None:
         from ladder.tui.holding_detail import detail

@@ -1,14 +1,22 @@
 """The façade calls the app makes, by task name; each runs in a worker thread (no Textual here).
 
-Every function takes the Book (and the results it depends on) and returns the façade's own result
-object. A façade module that is not installed yet makes its task report ``Unavailable``.
+Every function takes the Book, the results it depends on and the app's ``Options`` (choices made on
+screen, such as extra rate scenarios) and returns the façade's own result object. A façade module that is not installed yet makes its task report ``Unavailable``.
 """
 
 from __future__ import annotations
 
 import importlib
+from dataclasses import dataclass
 
 from ladder.errors import InputError
+
+
+@dataclass(frozen=True)
+class Options:
+    """Choices made on screen that the façade calls take: scenarios added in the Rates view."""
+
+    extra_scenarios: tuple = ()
 
 
 class Unavailable(Exception):
@@ -24,20 +32,21 @@ def _facade(name: str):
         raise
 
 
-def valuation(book, results):
+def valuation(book, results, options: Options):
     return _facade("valuation").value_book(book)
 
 
-def check(book, results):
-    return _facade("check").check_book(book, valuation=results.valuation)
+def check(book, results, options: Options):
+    return _facade("check").check_book(book)
 
 
-def shock(book, results):
-    return _facade("shock").shock_book(book, valuation=results.valuation)
+def shock(book, results, options: Options):
+    facade = _facade("shock")
+    return facade.shock_book(book, scenarios=facade.shock_scenarios(book) + tuple(options.extra_scenarios))
 
 
-def plan(book, results):
-    return _facade("plan").plan_book(book, valuation=results.valuation)
+def plan(book, results, options: Options):
+    return _facade("plan").plan_book(book)
 
 
 RUNNERS = {"valuation": valuation, "check": check, "shock": shock, "plan": plan}

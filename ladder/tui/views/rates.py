@@ -1,0 +1,203 @@
+"""Rates: the book under every rate scenario, exact beside the duration and convexity estimates.
+
+Figures come from ``ladder.analysis.shock.ShockResult``: the scenario table (exact value and
+change, both estimates and their errors), the value against parallel shift, key-rate durations,
+and the chosen scenario's moves by tenor and its effect by maturity rung. ``e`` adds a scenario
+of the user's own (built by ``ladder.risk.scenarios``), which the app runs through the façade.
+"""
+
+from __future__ import annotations
+
+import re
+
+import numpy as np
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical
+from textual.message import Message
+from textual.widgets import Input, Static
+from textual_plotext import PlotextPlot
+
+from ladder.risk import scenarios as sc
+from ladder.tui import format as fmt
+from ladder.tui.frame import Column, Frame
+from ladder.tui.results import Results
+from ladder.tui.views.base import Notice, View
+from ladder.tui.widgets.frame_table import FrameTable
+
+COLUMNS = (
+    Column("name", "Scenario", max_width=30), Column("kind", "Kind"), Column("value", "Value", True),
+    Column("change", "Change", True), Column("change_pct", "Change %", True),
+    Column("est_d", "Est. duration", True), Column("err_d", "Error", True),
+    Column("est_dc", "Est. dur+convexity", True), Column("err_dc", "Error", True),
+    Column("income", "Income 12m chg", True),
+)
+SCENARIO_HELP = ("+75 (parallel bp) · steepener 50 · flattener 50 · twist -25/+25 [pivot 2Y] · short +50 · "
+                 "long -50")
+
+
+def scenario_from_text(par_curve, text: str) -> sc.Scenario:
+    """A scenario typed by the user, made by ``ladder.risk.scenarios``; ValueError if not understood."""
+    words = text.strip().lower().split()
+    number = r"[+-]?\d+(\.\d+)?"
+    if len(words) == 1 and re.fullmatch(number, words[0]):
+        return sc.parallel(par_curve, float(words[0]))
+    if len(words) >= 2 and words[0] in ("steepener", "flattener") and re.fullmatch(number, words[1]):
+        pivot = words[2].upper() if len(words) > 2 else sc.DEFAULT_PIVOT
+        maker = sc.steepener if words[0] == "steepener" else sc.flattener
+        return maker(par_curve, float(words[1]), pivot)
+    if len(words) >= 2 and words[0] == "twist" and re.fullmatch(f"{number}/{number}", words[1]):
+        short, long = (float(x) for x in words[1].split("/"))
+        pivot = words[2].upper() if len(words) > 2 else sc.DEFAULT_PIVOT
+        return sc.twist(par_curve, short, long, pivot)
+    if len(words) == 2 and words[0] in ("short", "long") and re.fullmatch(number, words[1]):
+        maker = sc.short_end_move if words[0] == "short" else sc.long_end_move
+        return maker(par_curve, float(words[1]))
+    raise ValueError(f"{text!r} is not a scenario; try: {SCENARIO_HELP}")
+
+
+def scenario_frame(r) -> Frame:
+    t = r.portfolio
+    s = len(r.scenarios)
+    income = r.income_change if r.income_change is not None else np.full(s, np.nan)
+    text = {
+        "name": np.array([x.name for x in r.scenarios], dtype=object),
+        "kind": np.array([x.kind.replace("_", " ") for x in r.scenarios], dtype=object),
+        "value": fmt.numbers(t.value[0], 0), "change": fmt.numbers(t.change[0], 0, sign=True),
+        "change_pct": fmt.percents(t.relative_change[0], 3, sign=True),
+        "est_d": fmt.numbers(t.est_duration[0], 0), "err_d": fmt.numbers(t.error_duration[0], 0, sign=True),
+        "est_dc": fmt.numbers(t.est_duration_convexity[0], 0),
+        "err_dc": fmt.numbers(t.error_duration_convexity[0], 0, sign=True),
+        "income": fmt.numbers(income, 0, sign=True),
+    }
+    sort = {"name": text["name"], "kind": text["kind"], "value": t.value[0], "change": t.change[0],
+            "change_pct": t.relative_change[0], "est_d": t.est_duration[0], "err_d": t.error_duration[0],
+            "est_dc": t.est_duration_convexity[0], "err_dc": t.error_duration_convexity[0], "income": income}
+    return Frame(COLUMNS, text, sort, search=np.char.lower(text["name"].astype(str)).astype(object))
+
+
+def scenario_text(r, s: int) -> str:
+    """The chosen scenario: its par-yield moves by tenor and its exact change by rung."""
+    scenario = r.scenarios[s]
+    moves = "  ".join(f"{t} {b:+.0f}" for t, b in zip(r.tenors, scenario.shift_bp_by_tenor))
+    rungs = r.by_rung
+    by_rung = "  ".join(f"{g} {fmt.money(c, sign=True)}" for g, c, b in zip(rungs.groups, rungs.change[:, s], rungs.base)
+                        if b)
+    return (f"{scenario.name}: par-yield moves (bp)  {moves}\n"
+            f"exact change by rung  {by_rung}")
+
+
+class RatesView(View):
+    TITLE = "Rates"
+    NEEDS = ("shock",)
+    BINDINGS = [
+        Binding("e", "edit", "Add scenario", id="rates.add", tooltip="Run a scenario of your own: " + SCENARIO_HELP),
+        Binding("enter", "pick", "Pick", id="rates.pick", tooltip="Show this scenario's moves and rung effects"),
+    ]
+
+    class ScenarioWanted(Message):
+        def __init__(self, scenario) -> None:
+            super().__init__()
+            self.scenario = scenario
+
+    def compose(self) -> ComposeResult:
+        yield Static(id="rates-summary", classes="totals")
+        yield Notice(id="rates-notice")
+        with Horizontal(classes="split"):
+            yield FrameTable(id="rates-table", classes="narrow")
+            with Vertical(classes="charts"):
+                yield PlotextPlot(id="rates-value-chart")
+                yield PlotextPlot(id="rates-krd-chart")
+        yield Static(id="rates-picked", classes="totals")
+        yield Input(placeholder=SCENARIO_HELP, id="rates-input", classes="filter")
+
+    def on_mount(self) -> None:
+        self.query_one("#rates-input").display = False
+        self._result = None
+
+    @property
+    def table(self) -> FrameTable:
+        return self.query_one("#rates-table", FrameTable)
+
+    def refresh_view(self, results: Results) -> None:
+        notice = self.query_one(Notice)
+        r = results.get("shock")
+        if r is None:
+            notice.say(self.state_text(results, "shock"), "error" if "shock" in results.errors else "computing")
+            return
+        notice.say("Recomputing…" if "shock" in results.pending else None, "stale")
+        if r is self._result:
+            return
+        self._result = r
+        self.table.show(scenario_frame(r))
+        krd = r.portfolio_key_rate_durations
+        self.query_one("#rates-summary", Static).update(
+            f"Base value {fmt.money(r.base_value)}   effective duration {fmt.number(r.effective_duration, 3)}   "
+            f"effective convexity {fmt.number(r.effective_convexity, 3)}   key-rate durations sum "
+            f"{fmt.number(krd.sum(), 3)}   {len(r.scenarios)} scenarios   errors = estimate - exact")
+        self._charts(r)
+        self._pick()
+
+    def _charts(self, r) -> None:
+        bp = np.array([np.nan if b is None else b for b in r.parallel_bp])
+        rows = np.flatnonzero(np.isfinite(bp))
+        rows = rows[np.argsort(bp[rows])]
+        t = r.portfolio
+        plt = self.query_one("#rates-value-chart", PlotextPlot).plt
+        plt.clear_data()
+        if len(rows):
+            x = bp[rows].tolist()
+            scale = 1e6
+            plt.plot(x, (t.value[0, rows] / scale).tolist(), label="exact", marker="braille")
+            plt.plot(x, (t.est_duration[0, rows] / scale).tolist(), label="duration", marker="braille")
+            plt.plot(x, (t.est_duration_convexity[0, rows] / scale).tolist(), label="duration + convexity",
+                     marker="braille")
+        plt.title("Portfolio value (millions) against parallel shift (bp)")
+        kplt = self.query_one("#rates-krd-chart", PlotextPlot).plt
+        kplt.clear_data()
+        kplt.bar(list(r.tenors), r.portfolio_key_rate_durations.tolist())
+        kplt.title("Key-rate durations (years) by tenor")
+        self.query_one("#rates-value-chart").refresh()
+        self.query_one("#rates-krd-chart").refresh()
+
+    def _pick(self) -> None:
+        row = self.table.current_row
+        if self._result is not None and row is not None:
+            self.query_one("#rates-picked", Static).update(scenario_text(self._result, row))
+
+    def on_frame_table_row_highlighted(self, event: FrameTable.RowHighlighted) -> None:
+        self._pick()
+
+    def check_action(self, action: str, parameters) -> bool | None:
+        if action in ("edit", "pick"):
+            return self._result is not None
+        return True
+
+    def action_pick(self) -> None:
+        self._pick()
+
+    def action_edit(self) -> None:
+        box = self.query_one("#rates-input", Input)
+        box.display = True
+        box.focus()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        if event.input.id != "rates-input":
+            return
+        event.stop()
+        try:
+            scenario = scenario_from_text(self.results.book.curve, event.value)
+        except ValueError as error:
+            self.notify(str(error), title="Not a scenario", severity="error")
+            return
+        event.input.display = False
+        event.input.value = ""
+        self.table.focus()
+        self.post_message(self.ScenarioWanted(scenario))
+
+    def on_key(self, event) -> None:
+        box = self.query_one("#rates-input", Input)
+        if event.key == "escape" and box.display:
+            event.stop()
+            box.display = False
+            self.table.focus()
