@@ -16,7 +16,7 @@ from ladder.book.holdings import (DAY_COUNTS, FREQUENCIES, KIND_DAY_COUNT, KINDS
                                   Holdings, make_holdings)
 from ladder.book.table_file import Table, check_columns, read_table
 from ladder.errors import Problems
-from ladder.policy.ratings import explain_long, explain_short
+from ladder.policy.ratings import explain_long, explain_short, tokens
 
 REQUIRED = ("id", "sector", "issuer", "face", "maturity_date")
 OPTIONAL = ("kind", "coupon_pct", "frequency", "day_count", "issue_date", "first_coupon_date",
@@ -107,7 +107,7 @@ def _parse_row(cells: CellReader, text: dict, at: dict, row: int, valuation: dt.
     _check_schedule(cells, at, row, kind, issue, first, maturity)
     ratings = {}
     for name, explain in (("rating", explain_long), ("short_rating", explain_short),
-                          ("rating_at_purchase", explain_long)):
+                          ("rating_at_purchase", _explain_either)):
         if text[name] and (why := explain(text[name])):
             cells.error(row, at[name], why)
         ratings[name] = text[name]
@@ -128,6 +128,12 @@ def _parse_row(cells: CellReader, text: dict, at: dict, row: int, valuation: dt.
         issue_date=issue, first_coupon=first, quote_type=quote_type, quote=quote,
         book_price=np.nan if book_price is None else book_price, purchase_date=purchase,
         first_call=first_call, call_frequency=call_frequency, call_price=call_price, row=row, **ratings)
+
+
+def _explain_either(text: str) -> str | None:
+    """``rating_at_purchase`` may hold long- and short-term symbols together ("AA-/A-1+")."""
+    unknown = [t for t in tokens(text) if explain_long(t) and explain_short(t)]
+    return explain_long(unknown[0]) if unknown else None
 
 
 def _coupon(cells, text, at, row, kind) -> float:

@@ -1,0 +1,76 @@
+"""Policy checks of a book, and of a book after proposed trades (the what-if before a trade)."""
+
+from __future__ import annotations
+
+import datetime as dt
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from ladder.analysis.valuation import Valuation, value_book
+from ladder.book.book_file import Book
+from ladder.policy.checker import check
+from ladder.policy.measures import PositionMeasures, cash_by_month
+from ladder.policy.results import CheckResult
+from ladder.policy.trades import Trades, apply_trades, read_trades
+from ladder.policy.whatif import TradeCheck, check_trades
+
+
+def coverage_months(book: Book) -> int:
+    return book.policy.portfolio.cash_needs_horizon_months or 1
+
+
+def position_measures(book: Book, v: Valuation) -> PositionMeasures:
+    """What the rule checker reads, from a valuation of ``book``."""
+    return PositionMeasures(v.holdings, np.datetime64(v.as_of), v.market_value, v.book_value, v.effective_duration,
+                            v.days_to_maturity,
+                            cash_by_month(v.pricer.cash_flows, v.holdings.face, v.as_of, coverage_months(book)),
+                            holdings_file=str(book.files["holdings"]))
+
+
+@dataclass(frozen=True, eq=False)
+class BookCheck:
+    valuation: Valuation
+    result: CheckResult
+
+
+def check_book(book: Book, at: dt.date | None = None, valuation: Valuation | None = None) -> BookCheck:
+    """Every rule of the book's policy against its holdings at ``at`` (default: valuation date)."""
+    v = valuation or value_book(book, at)
+    return BookCheck(v, check(book.policy, position_measures(book, v), book.cash_needs))
+
+
+@dataclass(frozen=True, eq=False)
+class TradeWhatIf:
+    """Every rule and the risk figures before and after proposed trades."""
+
+    before: Valuation
+    after: Valuation
+    trades: Trades
+    check: TradeCheck
+
+
+def _priced_buys(trades: Trades, after: Valuation) -> Valuation:
+    """Buys with no ``book_price`` are booked at their trade (market) price: their book value is their
+    clean market value, as a purchase at that price would be recorded."""
+    buys = np.isin(after.holdings.id, trades.holdings.id[trades.action == "buy"])
+    missing = buys & np.isnan(after.book_value)
+    if not missing.any():
+        return after
+    book_value = np.where(missing, after.clean * after.holdings.face / 100.0, after.book_value)
+    return replace(after, book_value=book_value, unrealized_gain=np.where(missing, 0.0, after.unrealized_gain))
+
+
+def check_proposed(book: Book, trades: Trades, at: dt.date | None = None,
+                   before: Valuation | None = None) -> TradeWhatIf:
+    """The what-if for ``trades`` (already read and validated against the book)."""
+    before = before or value_book(book, at)
+    after = _priced_buys(trades, value_book(book.with_holdings(apply_trades(book.holdings, trades)), before.as_of))
+    result = check_trades(book.policy, position_measures(book, before), position_measures(book, after), trades,
+                          book.cash_needs)
+    return TradeWhatIf(before, after, trades, result)
+
+
+def check_trade_file(book: Book, path, at: dt.date | None = None) -> TradeWhatIf:
+    """The what-if for the trades in ``path`` (holdings columns plus ``action`` = buy | sell)."""
+    return check_proposed(book, read_trades(path, book.holdings, book.valuation_date), at)

@@ -1,0 +1,95 @@
+"""``ladder check``: every policy rule with limit, actual, headroom and status; what-if for trades.
+
+Exit status 0 when nothing breaches (``near`` and ``review`` included), 1 on any breach, 2 on bad
+input, so it can run from a scheduler.
+"""
+
+from __future__ import annotations
+
+from ladder.analysis.check import check_book, check_trade_file
+from ladder.analysis.valuation import Totals
+from ladder.book.book_file import load_book
+from ladder.commands.common import add_book
+from ladder.commands.output import console, fmt, print_caution, write_json
+
+HELP = "check the holdings (or the book after proposed trades) against the investment policy"
+STATUS_STYLE = {"pass": "green", "near": "yellow", "review": "magenta", "breach": "bold red"}
+
+
+def add_parser(subparsers) -> None:
+    parser = subparsers.add_parser("check", help=HELP, description=HELP + ". Exit status 1 on any breach.")
+    add_book(parser, formats=("table", "json"))
+    parser.add_argument("--trade", metavar="FILE",
+                        help="proposed trades: holdings columns plus action = buy | sell")
+    parser.set_defaults(run=run)
+
+
+def _value(v) -> str:
+    return v if isinstance(v, str) else fmt(v, 2) if v is not None else "—"
+
+
+def _status(s: str) -> str:
+    return f"[{STATUS_STYLE.get(s, '')}]{s}[/]"
+
+
+def run(args) -> int:
+    book = load_book(args.book)
+    if args.trade:
+        what_if = check_trade_file(book, args.trade, args.at)
+        status = what_if.check.status
+        if args.format == "json":
+            write_json(what_if.check.to_json())
+        else:
+            _trade_table(book, what_if)
+    else:
+        result = check_book(book, args.at).result
+        status = result.status
+        if args.format == "json":
+            write_json(result.to_json())
+        else:
+            _rules_table(result)
+    return 1 if status == "breach" else 0
+
+
+def _rules_table(result) -> None:
+    from rich.table import Table
+
+    con = console()
+    table = Table(title=f"Policy check at {result.as_of}: {result.policy_title}", header_style="bold")
+    for title, justify in (("Rule", "left"), ("In words", "left"), ("Limit", "right"), ("Actual", "right"),
+                           ("Headroom", "right"), ("Status", "left"), ("Holdings", "left")):
+        table.add_column(title, justify=justify, overflow="fold")
+    for r in result.rules:
+        table.add_row(r.rule, r.text, _value(r.limit), _value(r.actual), _value(r.headroom), _status(r.status),
+                      ", ".join(r.holdings[:6]) + (" …" if len(r.holdings) > 6 else ""))
+    con.print(table)
+    counts = ", ".join(f"{n} {s}" for s, n in result.counts().items() if n)
+    con.print(f"Overall: {_status(result.status)} ({counts}); percentages on {result.basis} value; "
+              f"limits tested {result.testing.replace('_', ' ')}.")
+    print_caution(con)
+
+
+def _risk_line(label: str, t: Totals) -> str:
+    return (f"{label}: market value {fmt(t.market_value, 0)}  yield {fmt(100 * t.ytm, 3)}%  "
+            f"effective duration {fmt(t.effective_duration, 3)}  convexity {fmt(t.effective_convexity, 3)}  "
+            f"DV01 {fmt(t.dv01, 0)}  WAM {fmt(t.wam_days, 0)} days")
+
+
+def _trade_table(book, what_if) -> None:
+    from rich.table import Table
+
+    con = console()
+    tc = what_if.check
+    table = Table(title=f"What-if for {len(what_if.trades)} proposed trade(s): {tc.after.policy_title}",
+                  header_style="bold")
+    for title in ("Rule", "Before", "Status before", "After", "Status after", "Caused by"):
+        table.add_column(title, overflow="fold")
+    for c in tc.changes:
+        cause = ", ".join(f"{t.action} {t.id}" for t in c.caused_by)
+        table.add_row(c.rule, _value(c.before.actual), _status(c.before.status), _value(c.after.actual),
+                      _status(c.after.status) + (" (new)" if c.new_breach else ""), cause)
+    con.print(table)
+    con.print(_risk_line("Before", what_if.before.totals))
+    con.print(_risk_line("After ", what_if.after.totals))
+    con.print(f"Overall after the trades: {_status(tc.status)} (before: {tc.before.status}).")
+    print_caution(con)
