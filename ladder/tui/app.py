@@ -26,11 +26,15 @@ from ladder.tui.theme import THEMES
 from ladder.tui.views.base import View
 from ladder.tui.views.curve import CurveView
 from ladder.tui.views.holdings import HoldingsView
+from ladder.tui.views.ladder_view import LadderView
+from ladder.tui.views.policy import PolicyView
 from ladder.tui.views.rates import RatesView
 
 # (view id, key, class); the order is the order of the view bar and the footer.
 VIEWS: tuple[tuple[str, str, type[View]], ...] = (
     ("holdings", "h", HoldingsView),
+    ("ladder", "l", LadderView),
+    ("policy", "p", PolicyView),
     ("rates", "r", RatesView),
     ("curve", "y", CurveView),
 )

@@ -37,7 +37,7 @@ def valuation(book, results, options: Options):
 
 
 def check(book, results, options: Options):
-    return _facade("check").check_book(book)
+    return _facade("check").check_book(book, valuation=results.valuation)
 
 
 def shock(book, results, options: Options):
