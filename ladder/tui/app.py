@@ -29,6 +29,7 @@ from ladder.tui.views.holdings import HoldingsView
 from ladder.tui.views.ladder_view import LadderView
 from ladder.tui.views.policy import PolicyView
 from ladder.tui.views.rates import RatesView
+from ladder.tui.views.trade import TradeView
 
 # (view id, key, class); the order is the order of the view bar and the footer.
 VIEWS: tuple[tuple[str, str, type[View]], ...] = (
@@ -37,6 +38,7 @@ VIEWS: tuple[tuple[str, str, type[View]], ...] = (
     ("policy", "p", PolicyView),
     ("rates", "r", RatesView),
     ("curve", "y", CurveView),
+    ("trade", "t", TradeView),
 )
 
 
@@ -191,6 +193,16 @@ class LadderApp(App[None]):
         extra = self.options.extra_scenarios + (message.scenario,)
         self.options = dataclasses.replace(self.options, extra_scenarios=extra)
         self.recompute_task("shock")
+
+    def on_trade_view_trade_booked(self, message: TradeView.TradeBooked) -> None:
+        from ladder.policy.trades import apply_trades
+
+        holdings = apply_trades(self.book.holdings, message.trades)
+        self.change_book(self.book.with_holdings(holdings), "holdings", self._holdings_change(message.label))
+
+    def _holdings_change(self, label: str) -> str:
+        previous = self.unsaved.get("holdings")
+        return f"{previous}; {label}" if previous else f"holdings: {label}"
 
     def on_holdings_view_detail_wanted(self, message: HoldingsView.DetailWanted) -> None:
         from ladder.tui.holding_detail import detail

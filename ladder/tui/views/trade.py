@@ -1,0 +1,239 @@
+"""Trade ticket: enter a buy or a sell and see, before committing, every policy rule and the risk
+figures before and after it (``ladder.analysis.check.check_proposed``); commit books it."""
+
+from __future__ import annotations
+
+import numpy as np
+from textual import work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.message import Message
+from textual.widgets import Button, Input, Label, Select, Static
+from textual.worker import get_current_worker
+
+from ladder.book.holdings import KINDS, SECTORS
+from ladder.tui import format as fmt
+from ladder.tui.frame import Column, Frame
+from ladder.tui.policy_text import headroom_text, value_text
+from ladder.tui.results import Results
+from ladder.tui.ticket import BUY_FIELDS, SELL_FIELDS, Ticket, booked_trades, check_ticket
+from ladder.tui.views.base import Notice, View
+from ladder.tui.views.policy import ROW_STYLE, STATUS_ORDER, status_word
+from ladder.tui.widgets.frame_table import FrameTable
+
+LABELS = {"id": "Id", "sector": "Sector", "issuer": "Issuer", "kind": "Kind", "face": "Face",
+          "maturity_date": "Maturity (YYYY-MM-DD)", "coupon_pct": "Coupon %", "rating": "Rating (long)",
+          "short_rating": "Rating (short)", "price": "Clean price", "yield_pct": "or yield %"}
+CHOICES = {"sector": SECTORS, "kind": KINDS}
+COLUMNS = (Column("after", "After"), Column("before", "Before"), Column("rule", "Rule id", max_width=38),
+           Column("limit", "Limit", True), Column("actual_before", "Actual before", True),
+           Column("actual_after", "Actual after", True), Column("headroom", "Headroom after", True),
+           Column("new", "New breach"), Column("cause", "Caused by", max_width=30))
+RISK = (("Market value", "market_value", 0, 1.0), ("Yield %", "ytm", 3, 100.0), ("Book yield %", "book_yield", 3, 100.0),
+        ("Effective duration", "effective_duration", 3, 1.0), ("Modified duration", "modified_duration", 3, 1.0),
+        ("Convexity", "convexity", 3, 1.0), ("DV01", "dv01", 0, 1.0), ("WAM days", "wam_days", 0, 1.0),
+        ("Holdings", "count", 0, 1.0))
+
+
+def changes_frame(check) -> Frame:
+    c = check.changes
+    after = [x.after for x in c]
+    before = [x.before for x in c]
+    text = {"after": np.array([status_word(a.status) for a in after], dtype=object),
+            "before": np.array([status_word(b.status) for b in before], dtype=object),
+            "rule": np.array([x.rule for x in c], dtype=object),
+            "limit": np.array([value_text(a.limit, a.unit) for a in after], dtype=object),
+            "actual_before": np.array([value_text(b.actual, b.unit) for b in before], dtype=object),
+            "actual_after": np.array([value_text(a.actual, a.unit) for a in after], dtype=object),
+            "headroom": np.array([headroom_text(a.headroom, a.unit) for a in after], dtype=object),
+            "new": np.array(["NEW BREACH" if x.new_breach else "" for x in c], dtype=object),
+            "cause": np.array([", ".join(f"{t.action} {t.id}" for t in x.caused_by) for x in c], dtype=object)}
+    sort = dict(text)
+    sort["after"] = np.array([STATUS_ORDER[a.status] for a in after], dtype=np.float64)
+    sort["before"] = np.array([STATUS_ORDER[b.status] for b in before], dtype=np.float64)
+    style = np.array([ROW_STYLE[a.status] for a in after], dtype=object)
+    return Frame(COLUMNS, text, sort, row_style=style)
+
+
+def risk_text(whatif) -> str:
+    b, a = whatif.before.totals, whatif.after.totals
+    width = max(len(name) for name, *_ in RISK)
+    lines = [f"{'Risk'.ljust(width)}  {'before':>16}  {'after':>16}  {'change':>14}"]
+    for name, attr, digits, scale in RISK:
+        x, y = getattr(b, attr), getattr(a, attr)
+        lines.append(f"{name.ljust(width)}  {fmt.number(x, digits, scale):>16}  {fmt.number(y, digits, scale):>16}  "
+                     f"{fmt.number(y - x, digits, scale, sign=True):>14}")
+    return "\n".join(lines)
+
+
+class TradeView(View):
+    TITLE = "Trade ticket"
+    NEEDS = ("valuation",)
+    BINDINGS = [
+        Binding("ctrl+t", "check_ticket", "Check trade", id="trade.check", tooltip="Every rule before and after"),
+        Binding("ctrl+b", "commit", "Book trade", id="trade.commit",
+                tooltip="Apply the checked trade to the book (asks first; save with ctrl+s)"),
+    ]
+
+    class TradeBooked(Message):
+        def __init__(self, trades, label: str) -> None:
+            super().__init__()
+            self.trades, self.label = trades, label
+
+    def compose(self) -> ComposeResult:
+        yield Notice(id="trade-notice")
+        with Horizontal(classes="split"):
+            with VerticalScroll(id="ticket-form"):
+                yield Label("Action")
+                yield Select([("buy", "buy"), ("sell", "sell")], value="buy", allow_blank=False, id="ticket-action")
+                for name in BUY_FIELDS:
+                    yield Label(LABELS[name], classes="ticket-label", id=f"label-{name}")
+                    if name in CHOICES:
+                        yield Select([(c, c) for c in CHOICES[name]], id=f"ticket-{name}", prompt="(by sector)"
+                                     if name == "kind" else "choose")
+                    else:
+                        yield Input(id=f"ticket-{name}")
+                with Horizontal(classes="buttons"):
+                    yield Button("Check (ctrl+t)", id="ticket-check", variant="primary")
+                    yield Button("Book (ctrl+b)", id="ticket-commit")
+            with Vertical(id="ticket-result"):
+                yield Static("Fill in a trade and press ctrl+t: every rule and the risk before and after appear "
+                             "here before anything is booked.", id="ticket-status", classes="totals")
+                yield FrameTable(id="ticket-table")
+                yield Static(id="ticket-risk", classes="pairs")
+
+    def on_mount(self) -> None:
+        self.whatif = None
+        self._ticket: Ticket | None = None
+        self._asked = 0
+        self._show_fields("buy")
+
+    def refresh_view(self, results: Results) -> None:
+        notice = self.query_one(Notice)
+        notice.say(self.state_text(results, "valuation"), "error" if "valuation" in results.errors else "computing")
+        if self.whatif is not None and self.whatif.before is not results.valuation:
+            self._clear("The book changed: check the trade again (ctrl+t).")
+
+    def _clear(self, message: str) -> None:
+        self.whatif = None
+        self.query_one("#ticket-status", Static).update(message)
+        self.query_one("#ticket-table", FrameTable).show(Frame.empty())
+        self.query_one("#ticket-risk", Static).update("")
+        self.refresh_bindings()
+
+    # ---- form ----------------------------------------------------------------------------------
+    def ticket(self) -> Ticket:
+        action = self.query_one("#ticket-action", Select).value
+        fields = {}
+        for name in BUY_FIELDS if action == "buy" else SELL_FIELDS:
+            widget = self.query_one(f"#ticket-{name}")
+            blank = widget.is_blank() if isinstance(widget, Select) else not widget.value
+            fields[name] = "" if blank else str(widget.value)
+        return Ticket(str(action), fields)
+
+    def fill(self, action: str, **fields: str) -> None:
+        """Put a trade on the form (e.g. a sell of a holding chosen elsewhere)."""
+        self.query_one("#ticket-action", Select).value = action
+        for name, value in fields.items():
+            widget = self.query_one(f"#ticket-{name}")
+            widget.value = value
+        self._show_fields(action)
+        self._clear("Press ctrl+t to check this trade.")
+
+    def _show_fields(self, action: str) -> None:
+        wanted = BUY_FIELDS if action == "buy" else SELL_FIELDS
+        for name in BUY_FIELDS:
+            self.query_one(f"#ticket-{name}").display = name in wanted
+            self.query_one(f"#label-{name}").display = name in wanted
+        self.query_one("#label-face", Label).update("Face to sell" if action == "sell" else LABELS["face"])
+
+    def on_select_changed(self, event: Select.Changed) -> None:
+        if event.select.id == "ticket-action":
+            self._show_fields(str(event.value))
+        self._clear("Changed: press ctrl+t to check.")
+
+    def on_input_changed(self, event: Input.Changed) -> None:
+        if self.whatif is not None:
+            self._clear("Changed: press ctrl+t to check.")
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        if event.button.id == "ticket-check":
+            self.action_check_ticket()
+        elif event.button.id == "ticket-commit":
+            self.action_commit()
+
+    # ---- checking ------------------------------------------------------------------------------
+    def check_action(self, action: str, parameters) -> bool | None:
+        if action == "commit":
+            return self.whatif is not None or None
+        if action == "check_ticket":
+            return (self.results is not None and self.results.valuation is not None) or None
+        return True
+
+    def action_check_ticket(self) -> None:
+        if self.results is None or self.results.valuation is None:
+            return
+        self._asked += 1
+        self._ticket = self.ticket()
+        self.query_one("#ticket-status", Static).update("Checking the trade against every rule…")
+        self.set_class(True, "-computing")
+        self.run_check(self._asked, self.results.book, self._ticket, self.results.valuation)
+
+    @work(thread=True, exclusive=True, exit_on_error=False, group="ticket")
+    def run_check(self, asked: int, book, ticket: Ticket, valuation) -> None:
+        from ladder.tui.tasks import describe
+
+        try:
+            result, error = check_ticket(book, ticket, valuation), None
+        except Exception as problem:   # shown on the ticket, never a crash
+            result, error = None, describe(problem)
+        if not get_current_worker().is_cancelled:
+            self.post_message(self.Checked(asked, result, error))
+
+    class Checked(Message):
+        def __init__(self, asked: int, whatif, error: str | None) -> None:
+            super().__init__()
+            self.asked, self.whatif, self.error = asked, whatif, error
+
+    def on_trade_view_checked(self, message: "TradeView.Checked") -> None:
+        if message.asked != self._asked:
+            return   # an older ticket
+        self.set_class(False, "-computing")
+        status = self.query_one("#ticket-status", Static)
+        if message.error is not None:
+            self._clear("")
+            status.update("The ticket cannot be checked:\n" + message.error)
+            status.set_class(True, "-breach")
+            return
+        w = message.whatif
+        self.whatif = w
+        new = w.check.new_breaches
+        words = (f"BREACH: this trade breaks {len(new)} rule(s): " + ", ".join(c.rule for c in new)) if new else \
+            f"No new breach. Status after the trade: {status_word(w.check.status)}"
+        status.update(f"{self._ticket.label()}   before: {status_word(w.check.before.status)}   "
+                      f"after: {status_word(w.check.status)}\n{words}")
+        status.set_class(bool(new), "-breach")
+        table = self.query_one("#ticket-table", FrameTable)
+        table.show(changes_frame(w.check), keep_place=False)
+        table.sort_by("after")
+        self.query_one("#ticket-risk", Static).update(risk_text(w))
+        self.refresh_bindings()
+
+    def action_commit(self) -> None:
+        if self.whatif is None:
+            return
+        from ladder.tui.screens import ConfirmScreen
+
+        w = self.whatif
+        warning = " It BREAKS the policy: " + ", ".join(c.rule for c in w.check.new_breaches) + "." \
+            if w.check.new_breaches else ""
+        label = self._ticket.label()
+
+        def answered(yes: bool | None) -> None:
+            if yes and self.whatif is w:
+                self.post_message(self.TradeBooked(booked_trades(w), label))
+                self._clear(f"Booked: {label}. Save the book with ctrl+s.")
+
+        self.app.push_screen(ConfirmScreen(f"Book the trade: {label}?{warning}\nThe book changes on screen; "
+                                           "ctrl+s writes it to the holdings file."), answered)
