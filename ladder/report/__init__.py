@@ -1,0 +1,1 @@
+"""The month-end report: accounting figures, the activity journal, the history and the report files."""

@@ -1,0 +1,97 @@
+"""The income projection and the six-month liquidity statement of the month-end report.
+
+Months run from the day after the settlement date to each calendar month-end (a month-end
+settlement date gives whole months). Cash: coupons and principal of the holdings by payment date
+(funds excluded: a fund is available at its balance on any day). Income: interest earned by the
+effective-interest method (``ladder.report.accounting.interest_by_period``), holdings as they stand,
+each earning until it matures, nothing reinvested. Cash needs: ``cash_needs.csv`` (+ needed).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ladder.analysis.valuation import Valuation
+from ladder.book.book_file import Book
+from ladder.market.dates import add_months, month_end
+from ladder.report.accounting import interest_by_period
+from ladder.report.model import Chart, Column, Table
+
+PROJECTION_MONTHS = 12
+LIQUIDITY_MONTHS = 6
+
+
+def month_boundaries(as_of, months: int) -> np.ndarray:
+    """``as_of`` then the last day of each of the next ``months`` calendar months: (months+1,)."""
+    start = np.datetime64(as_of, "D")
+    ends = month_end(add_months(np.full(months, start + 1), np.arange(months)))
+    return np.concatenate([[start], ends])
+
+
+def _by_period(dates, amounts, boundaries) -> np.ndarray:
+    """Sum of ``amounts`` whose ``dates`` fall in each (b[p-1], b[p]]; others dropped."""
+    dates, amounts = np.ravel(dates), np.ravel(amounts)
+    ok = ~np.isnat(dates) & (dates > boundaries[0]) & (dates <= boundaries[-1])
+    period = np.searchsorted(boundaries, dates[ok], side="left") - 1
+    return np.bincount(period, weights=amounts[ok], minlength=len(boundaries) - 1)
+
+
+def cash_by_period(v: Valuation, boundaries) -> tuple[np.ndarray, np.ndarray]:
+    """(coupons, principal) received by the holdings (funds excluded) in each period, currency."""
+    cf, h = v.pricer.cash_flows, v.holdings
+    held = (h.kind != "fund")[:, None] & cf.mask
+    money = h.face[:, None] / 100.0
+    dates = np.where(held, cf.pay_dates, np.datetime64("NaT"))
+    return (_by_period(dates, np.where(held, cf.coupon * money, 0.0), boundaries),
+            _by_period(dates, np.where(held, cf.principal * money, 0.0), boundaries))
+
+
+PROJECTION_COLUMNS = (Column("month", "Month"), Column("income", "Interest earned", "money"),
+                      Column("coupons", "Coupons received", "money"), Column("principal", "Principal maturing", "money"),
+                      Column("needs", "Net cash needs", "money"), Column("net", "Cash in less needs", "money"))
+
+
+def income_projection(book: Book, v: Valuation) -> tuple[Table, Chart, float]:
+    """The next 12 months month by month, its chart, and the 12-month interest earned (currency)."""
+    b = month_boundaries(v.as_of, PROJECTION_MONTHS)
+    income = interest_by_period(v, b).sum(axis=0)
+    coupons, principal = cash_by_period(v, b)
+    needs = _by_period(book.cash_needs.date, book.cash_needs.amount, b)
+    labels = tuple(str(d.astype("datetime64[M]")) for d in b[1:])
+    rows = tuple((m, float(i), float(c), float(p), float(n), float(c + p - n))
+                 for m, i, c, p, n in zip(labels, income, coupons, principal, needs))
+    total = ("Total", float(income.sum()), float(coupons.sum()), float(principal.sum()), float(needs.sum()),
+             float((coupons + principal - needs).sum()))
+    chart = Chart("Interest earned by month (holdings as they stand, nothing reinvested)", "bar", labels,
+                  (("interest earned", tuple(float(x) / 1e3 for x in income)),), "month",
+                  f"{book.currency} thousands")
+    return Table("Income projection, next 12 months", PROJECTION_COLUMNS, rows, total), chart, float(income.sum())
+
+
+LIQUIDITY_COLUMNS = (Column("month", "Month"), Column("coming_in", "Maturities and coupons", "money"),
+                     Column("needs", "Net cash needs", "money"), Column("available", "Available at month-end", "money"))
+
+
+def liquidity_statement(book: Book, v: Valuation) -> tuple[Table, str]:
+    """Six months of fund balances plus maturities and coupons against the cash needs, and the statement."""
+    b = month_boundaries(v.as_of, LIQUIDITY_MONTHS)
+    coupons, principal = cash_by_period(v, b)
+    needs = _by_period(book.cash_needs.date, book.cash_needs.amount, b)
+    funds = float(v.market_value[v.holdings.kind == "fund"].sum())
+    available = funds + np.cumsum(coupons + principal - needs)
+    labels = [str(d.astype("datetime64[M]")) for d in b[1:]]
+    rows = tuple((m, float(c + p), float(n), float(a)) for m, c, p, n, a in zip(labels, coupons, principal, needs,
+                                                                              available))
+    low = int(np.argmin(available))
+    cur = book.currency
+    if available.min() >= 0:
+        text = (f"Liquidity for the next six months: fund and sweep balances of {cur} {funds:,.0f} plus "
+                f"{cur} {float((coupons + principal).sum()):,.0f} of maturities and coupons cover the "
+                f"{cur} {float(needs.sum()):,.0f} of net cash needs forecast in cash_needs.csv in every month; "
+                f"the lowest month-end balance is {cur} {available[low]:,.0f} ({labels[low]}), before any "
+                "sale or reinvestment.")
+    else:
+        text = (f"Liquidity for the next six months is NOT sufficient: by {labels[low]} the net cash needs "
+                f"exceed fund balances plus maturities and coupons by {cur} {-available[low]:,.0f}; holdings "
+                "would have to be sold before maturity or cash found elsewhere.")
+    return Table("Six-month liquidity", LIQUIDITY_COLUMNS, rows), text
