@@ -19,7 +19,8 @@ from dataclasses import dataclass
 import numpy as np
 
 from ladder import __version__
-from ladder.analysis.check import check_book
+from ladder.analysis.check import check_book, position_measures
+from ladder.analysis.plan import plan_book
 from ladder.analysis.shock import shock_book
 from ladder.analysis.valuation import Valuation, value_book
 from ladder.book.book_file import BOOK_FILE, Book
@@ -35,7 +36,6 @@ from ladder.report.journal import entries_between, journal_path, read_journal
 from ladder.report.model import Report, Section
 from ladder.report.shock_table import shock_section
 from ladder.report.summary import summary_figures, summary_table
-from ladder.analysis.check import position_measures
 from ladder.risk.scenarios import parallel_set
 
 REPORT_CAUTIONS = (
@@ -46,10 +46,10 @@ REPORT_CAUTIONS = (
     "The board-approved investment policy governs; where this report and the policy differ, the policy prevails.",
 )
 SECTION_KEYS = ("summary", "holdings", "activity", "allocation", "maturities", "shock", "income", "certificate")
-NO_PLAN_INCOME = ("Next-12-month income: the base case is the interest earned by the holdings as they stand "
-                  "(effective-interest method), each until it matures, nothing reinvested. The change of that "
-                  "income under each move needs the cash plan's reinvestment model, which this build does not "
-                  "provide: the other scenarios' income is left blank (a gap, not a zero).")
+PLAN_INCOME = ("Next-12-month income: the cash plan's accrual income over the next 12 months under each move "
+               "(ladder plan's income at risk): the holdings' interest earned, the calls each move makes likely, "
+               "maturities reinvested by the book's reinvestment rule at the moved rates, which stay moved, and "
+               "the funds' income at the moved short rate.")
 
 
 @dataclass(frozen=True, eq=False)
@@ -87,9 +87,8 @@ def _holding_figures(v: Valuation, a: Accounting) -> dict[str, dict]:
     return {hid: {k: _number(x[i]) for k, x in fields.items()} for i, hid in enumerate(v.holdings.id)}
 
 
-def month_end_report(book: Book, at: dt.date | None = None, income=None) -> MonthEnd:
-    """The month-end report of ``book`` at ``at`` (default: its valuation date). ``income``: the cash
-    plan's income model for the shock table (``ladder.analysis.shock.IncomeModel``), optional."""
+def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
+    """The month-end report of ``book`` at ``at`` (default: its valuation date)."""
     checked = check_book(book, at)
     v, check = checked.valuation, checked.result
     previous = history.previous_snapshot(book, v.as_of)
@@ -102,8 +101,10 @@ def month_end_report(book: Book, at: dt.date | None = None, income=None) -> Mont
     activity = entries_between(read_journal(book), start, v.as_of)
     weight = position_measures(book, v).basis_values(book.policy.basis)
     ladder_table, ladder_chart = maturity_table(book, v.as_of, v.market_value)
-    projection, income_chart, income_12m = income_projection(book, v)
-    shocks = shock_book(book, v.as_of, parallel_set(book.curve), income=income)
+    shocks = shock_book(book, v.as_of, parallel_set(book.curve))
+    plan = plan_book(book, v.as_of)
+    projection, income_chart = income_projection(book, v, plan.periods.boundaries, plan.projection.income)
+    incomes = {s.scenario: s.income for s in plan.income_at_risk}
     liquidity, liquidity_text = liquidity_statement(book, v)
     period = f"{start.isoformat()} (exclusive) to {v.as_of.isoformat()}"
     last = previous.as_of.isoformat() if previous else "none recorded"
@@ -129,14 +130,13 @@ def month_end_report(book: Book, at: dt.date | None = None, income=None) -> Mont
                 ("A ladder's target is to have money maturing before it is needed: each rung's maturities against "
                  "the net cash needs of cash_needs.csv falling in the same rung. Funds count in the first rung at "
                  "their balance; callables by final maturity.",), (ladder_chart,)),
-        shock_section(book, shocks, a.total("amortized_cost"), a.total("accrued"), income_12m,
-                      NO_PLAN_INCOME if income is None else
-                      "Next-12-month income: the base case's interest earned plus the cash plan's change of income "
-                      "under each move (reinvestment at the moved rates)."),
+        shock_section(book, shocks, a.total("amortized_cost"), a.total("accrued"), incomes, PLAN_INCOME),
         Section("income", "Income projection", (projection,),
-                ("Interest earned by the effective-interest method (coupon accrual plus amortization), the holdings "
-                 "as they stand, each until it matures, nothing reinvested; coupons and principal by payment "
-                 "date; funds earn their stated yield on their balance.",), (income_chart,)),
+                ("Interest earned by the effective-interest method (coupon accrual plus amortization): the holdings "
+                 "as they stand, each until it matures, nothing reinvested, funds at their stated yield on their "
+                 "balance; beside it the cash plan's accrual income with maturities reinvested by the book's rule "
+                 "and shortfalls met by sales (ladder plan, base case). Coupons and principal by payment date.",),
+                (income_chart,)),
         certificate_section(book, check, v, liquidity, liquidity_text, checksums),
     )
     report = Report(f"{book.name}: month-end report at {v.as_of.isoformat()}", book.name, v.as_of, start, sections,

@@ -46,26 +46,33 @@ def cash_by_period(v: Valuation, boundaries) -> tuple[np.ndarray, np.ndarray]:
             _by_period(dates, np.where(held, cf.principal * money, 0.0), boundaries))
 
 
-PROJECTION_COLUMNS = (Column("month", "Month"), Column("income", "Interest earned", "money"),
+PROJECTION_COLUMNS = (Column("month", "Month"), Column("income", "Interest earned, holdings as they stand", "money"),
+                      Column("plan_income", "Income with reinvestment (cash plan)", "money"),
                       Column("coupons", "Coupons received", "money"), Column("principal", "Principal maturing", "money"),
                       Column("needs", "Net cash needs", "money"), Column("net", "Cash in less needs", "money"))
 
 
-def income_projection(book: Book, v: Valuation) -> tuple[Table, Chart, float]:
-    """The next 12 months month by month, its chart, and the 12-month interest earned (currency)."""
+def income_projection(book: Book, v: Valuation, plan_boundaries, plan_income) -> tuple[Table, Chart]:
+    """The next 12 months month by month and its chart. ``plan_boundaries`` / ``plan_income``: the
+    cash plan's period ends and accrual income by period (used where its months are these months)."""
     b = month_boundaries(v.as_of, PROJECTION_MONTHS)
     income = interest_by_period(v, b).sum(axis=0)
+    plan_boundaries = np.asarray(plan_boundaries, dtype="datetime64[D]")
+    same = len(plan_boundaries) > PROJECTION_MONTHS and (plan_boundaries[:len(b)] == b).all()
+    planned = np.asarray(plan_income[:PROJECTION_MONTHS], dtype=float) if same else np.full(PROJECTION_MONTHS, np.nan)
     coupons, principal = cash_by_period(v, b)
     needs = _by_period(book.cash_needs.date, book.cash_needs.amount, b)
     labels = tuple(str(d.astype("datetime64[M]")) for d in b[1:])
-    rows = tuple((m, float(i), float(c), float(p), float(n), float(c + p - n))
-                 for m, i, c, p, n in zip(labels, income, coupons, principal, needs))
-    total = ("Total", float(income.sum()), float(coupons.sum()), float(principal.sum()), float(needs.sum()),
-             float((coupons + principal - needs).sum()))
-    chart = Chart("Interest earned by month (holdings as they stand, nothing reinvested)", "bar", labels,
-                  (("interest earned", tuple(float(x) / 1e3 for x in income)),), "month",
-                  f"{book.currency} thousands")
-    return Table("Income projection, next 12 months", PROJECTION_COLUMNS, rows, total), chart, float(income.sum())
+    optional = lambda x: float(x) if np.isfinite(x) else None  # noqa: E731
+    rows = tuple((m, float(i), optional(q), float(c), float(p), float(n), float(c + p - n))
+                 for m, i, q, c, p, n in zip(labels, income, planned, coupons, principal, needs))
+    total = ("Total", float(income.sum()), optional(planned.sum()), float(coupons.sum()), float(principal.sum()),
+             float(needs.sum()), float((coupons + principal - needs).sum()))
+    series = [("holdings as they stand", tuple(float(x) / 1e3 for x in income))]
+    if same:
+        series.append(("with reinvestment (cash plan)", tuple(float(x) / 1e3 for x in planned)))
+    chart = Chart("Income by month", "bar", labels, tuple(series), "month", f"{book.currency} thousands")
+    return Table("Income projection, next 12 months", PROJECTION_COLUMNS, rows, total), chart
 
 
 LIQUIDITY_COLUMNS = (Column("month", "Month"), Column("coming_in", "Maturities and coupons", "money"),

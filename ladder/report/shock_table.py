@@ -3,6 +3,7 @@ the assumptions printed beneath the table."""
 
 from __future__ import annotations
 
+from ladder.analysis.plan import BASE
 from ladder.analysis.shock import ShockResult
 from ladder.book.book_file import Book
 from ladder.report.model import Chart, Column, Section, Table
@@ -14,17 +15,18 @@ SHOCK_COLUMNS = (Column("shift_bp", "Parallel move, bp", "bp"), Column("value", 
                  Column("income_change", "Change in 12-month income", "money"))
 
 
-def shock_section(book: Book, r: ShockResult, amortized_cost: float, accrued: float, income_12m: float,
+def shock_section(book: Book, r: ShockResult, amortized_cost: float, accrued: float, incomes: dict[str, float],
                   income_note: str) -> Section:
-    """``income_12m``: the base case's next-12-month interest earned; ``r.income_change`` (if any)
-    moves it per scenario. Unrealized gain = scenario value less accrued interest less amortized cost
+    """``incomes``: next-12-month income by scenario name (the cash plan's income at risk; the no-move
+    case under ``BASE``). Unrealized gain = scenario value less accrued interest less amortized cost
     (an instantaneous move leaves the accrued interest as it is)."""
     t = r.portfolio
+    base = incomes.get(BASE)
     rows = []
-    for s, bp in enumerate(r.parallel_bp):
+    for s, (scenario, bp) in enumerate(zip(r.scenarios, r.parallel_bp)):
         value, change = float(t.value[0, s]), float(t.change[0, s])
-        d_income = None if r.income_change is None else float(r.income_change[s])
-        income = income_12m + d_income if d_income is not None else (income_12m if bp == 0 else None)
+        income = base if bp == 0 else incomes.get(scenario.name)
+        d_income = income - base if income is not None and base is not None else None
         rows.append((bp, value, change, float(t.relative_change[0, s]), value - accrued - amortized_cost,
                      income, d_income))
     params = book.model
