@@ -14,7 +14,7 @@ from textual import work
 from textual.app import App, ComposeResult, SystemCommand
 from textual.binding import Binding
 from textual.message import Message
-from textual.widgets import ContentSwitcher, Footer, Static
+from textual.widgets import ContentSwitcher, Static
 from textual.worker import get_current_worker
 
 from ladder import CAUTION
@@ -24,6 +24,7 @@ from ladder.tui.results import TASKS, Results
 from ladder.tui.screens import DetailScreen, QuitScreen
 from ladder.tui.theme import THEMES
 from ladder.tui.views.base import View
+from ladder.tui.widgets.footer import KeyFooter
 from ladder.tui.views.curve import CurveView
 from ladder.tui.views.holdings import HoldingsView
 from ladder.tui.views.ladder_view import LadderView
@@ -42,6 +43,9 @@ VIEWS: tuple[tuple[str, str, type[View]], ...] = (
 )
 
 
+VIEW_KEYS = Binding.Group("Views", compact=True)
+
+
 class Computed(Message):
     """A task's result (or error text) for the book of ``generation``."""
 
@@ -54,8 +58,8 @@ class LadderApp(App[None]):
     CSS_PATH = "ladder.tcss"
     TITLE = "ladder"
     BINDINGS = [
-        *[Binding(key, f"show_view('{name}')", cls.TITLE, id=f"view.{name}", tooltip=f"Show the {cls.TITLE} view")
-          for name, key, cls in VIEWS],
+        *[Binding(key, f"show_view('{name}')", cls.TITLE, id=f"view.{name}", tooltip=f"Show the {cls.TITLE} view",
+                  group=VIEW_KEYS) for name, key, cls in VIEWS],
         Binding("question_mark", "keys", "Keys", id="app.keys", tooltip="Show or hide every key of this screen"),
         Binding("ctrl+s", "save", "Save", id="app.save", tooltip="Write changes to the book (atomic, with backup)"),
         Binding("q", "quit", "Quit", id="app.quit", tooltip="Quit (asks first when there are unsaved changes)"),
@@ -78,7 +82,7 @@ class LadderApp(App[None]):
             for name, _, cls in VIEWS:
                 yield cls(id=name)
         yield Static(CAUTION, id="caution", classes="caution")
-        yield Footer()
+        yield KeyFooter()
 
     def on_mount(self) -> None:
         for theme in THEMES:
@@ -223,7 +227,6 @@ class LadderApp(App[None]):
             if widget.display and widget.focusable:
                 widget.focus()
                 break
-        self.refresh_bindings()
 
     def action_keys(self) -> None:
         if self.screen.query("HelpPanel"):

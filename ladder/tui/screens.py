@@ -2,17 +2,16 @@
 
 from __future__ import annotations
 
-import numpy as np
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Grid, Horizontal, Vertical, VerticalScroll
+from textual.containers import Grid, Horizontal, Vertical
 from textual.screen import ModalScreen
 from textual.widgets import Button, DataTable, Label, Static
-from textual_plotext import PlotextPlot
 
 from ladder import CAUTION
 from ladder.tui import format as fmt
 from ladder.tui.holding_detail import Detail
+from ladder.tui.widgets.chart import Chart
 
 
 def pairs_text(pairs) -> str:
@@ -44,7 +43,7 @@ class DetailScreen(ModalScreen[None]):
             with Horizontal(id="detail-bottom"):
                 yield DataTable(id="detail-flows", cursor_type="row", zebra_stripes=True)
                 if d.price_yield is not None:
-                    yield PlotextPlot(id="detail-chart")
+                    yield Chart(id="detail-chart")
                 else:
                     yield Static("No price/yield chart: a fund's price does not move with rates.", id="detail-chart")
             yield Static(CAUTION, classes="caution")
@@ -60,14 +59,16 @@ class DetailScreen(ModalScreen[None]):
         table.focus()
         if d.price_yield is not None:
             py = d.price_yield
-            plot = self.query_one("#detail-chart", PlotextPlot)
-            plt = plot.plt
             x = (py.yields * 100).tolist()
-            plt.plot(x, py.exact.tolist(), label="exact", marker="braille")
-            plt.plot(x, py.duration.tolist(), label="duration", marker="braille")
-            plt.plot(x, py.convexity.tolist(), label="duration + convexity", marker="braille")
-            plt.title("Dirty price per 100 against yield (%)")
-            plt.xlabel("yield %")
+
+            def paint(plt) -> None:
+                plt.plot(x, py.exact.tolist(), label="exact", marker="braille")
+                plt.plot(x, py.duration.tolist(), label="duration", marker="braille")
+                plt.plot(x, py.convexity.tolist(), label="duration + convexity", marker="braille")
+                plt.title("Dirty price per 100 against yield (%)")
+                plt.xlabel("yield %")
+
+            self.query_one("#detail-chart", Chart).draw(paint)
 
 
 class QuitScreen(ModalScreen[str]):

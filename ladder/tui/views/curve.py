@@ -15,7 +15,6 @@ from textual.binding import Binding
 from textual.containers import Horizontal
 from textual.message import Message
 from textual.widgets import Input, Static
-from textual_plotext import PlotextPlot
 
 from ladder.pricing.curve import ParCurve
 from ladder.pricing.curve_file import YIELD_RANGE_PCT
@@ -23,6 +22,7 @@ from ladder.tui import format as fmt
 from ladder.tui.frame import Column, Frame
 from ladder.tui.results import Results
 from ladder.tui.views.base import Notice, View
+from ladder.tui.widgets.chart import Chart
 from ladder.tui.widgets.frame_table import FrameTable
 
 COLUMNS = (Column("tenor", "Tenor"), Column("years", "Years", True), Column("par", "Par yield %", True),
@@ -78,7 +78,7 @@ class CurveView(View):
         yield Notice(id="curve-notice")
         with Horizontal(classes="split"):
             yield FrameTable(id="curve-table", classes="narrow")
-            yield PlotextPlot(id="curve-chart")
+            yield Chart(id="curve-chart")
         yield Input(placeholder="par yield in percent, e.g. 4.25 (Enter to apply, Esc to cancel)", id="curve-input",
                     classes="filter")
 
@@ -103,17 +103,18 @@ class CurveView(View):
         self.query_one("#curve-summary", Static).update(
             f"Curve of {curve.curve_date}: {len(curve.par_curve)} tenors, {curve.method.replace('_', ' ')} "
             "interpolation; zero rates semiannual, forwards continuous, ACT/365F years")
-        plot = self.query_one("#curve-chart", PlotextPlot)
-        plt = plot.plt
-        plt.clear_data()
         t_end = float(curve.instruments.maturity_times[-1])
         t = np.linspace(t_end / CHART_POINTS, t_end, CHART_POINTS)
-        plt.plot(curve.instruments.maturity_times.tolist(), (curve.par_curve.par_yields * 100).tolist(),
-                 label="par", marker="dot")
-        plt.plot(t.tolist(), (curve.zero_rate(t, "semiannual") * 100).tolist(), label="zero", marker="braille")
-        plt.plot(t.tolist(), (curve.instantaneous_forward(t) * 100).tolist(), label="forward", marker="braille")
-        plt.title("Par, zero and forward rates (%) by years")
-        plot.refresh()
+        zero, forward = curve.zero_rate(t, "semiannual") * 100, curve.instantaneous_forward(t) * 100
+
+        def paint(plt) -> None:
+            plt.plot(curve.instruments.maturity_times.tolist(), (curve.par_curve.par_yields * 100).tolist(),
+                     label="par", marker="dot")
+            plt.plot(t.tolist(), zero.tolist(), label="zero", marker="braille")
+            plt.plot(t.tolist(), forward.tolist(), label="forward", marker="braille")
+            plt.title("Par, zero and forward rates (%) by years")
+
+        self.query_one("#curve-chart", Chart).draw(paint)
 
     def _par(self) -> ParCurve | None:
         v = self.results.valuation if self.results else None

@@ -6,13 +6,13 @@ from __future__ import annotations
 import numpy as np
 from textual.app import ComposeResult
 from textual.widgets import Static
-from textual_plotext import PlotextPlot
 
 from ladder.tui import format as fmt
 from ladder.tui.frame import Column, Frame
 from ladder.tui.results import Results
 from ladder.tui.rung_summary import CROWDED_SHARE, GAP_SHARE, RungSummary, rung_summary
 from ladder.tui.views.base import Notice, View
+from ladder.tui.widgets.chart import Chart
 from ladder.tui.widgets.frame_table import FrameTable
 
 COLUMNS = (Column("rung", "Rung"), Column("count", "Holdings", True), Column("face", "Face maturing", True),
@@ -40,7 +40,7 @@ class LadderView(View):
     def compose(self) -> ComposeResult:
         yield Static(id="ladder-summary", classes="totals")
         yield Notice(id="ladder-notice")
-        yield PlotextPlot(id="ladder-chart")
+        yield Chart(id="ladder-chart")
         yield FrameTable(id="ladder-table", classes="short-table")
 
     def refresh_view(self, results: Results) -> None:
@@ -56,13 +56,14 @@ class LadderView(View):
             f"Maturities by rung from {v.as_of} (final maturity; calls not assumed). Marks: gap = under "
             f"{GAP_SHARE:g}x an even ladder's share, crowded = over {CROWDED_SHARE:g}x, short of needs = net cash "
             "needs above the face maturing.")
-        plt = self.query_one("#ladder-chart", PlotextPlot).plt
-        plt.clear_data()
         labels = [f"{r} {'/'.join(m)}" if m else r for r, m in zip(s.rungs, s.marks)]
         x = list(range(1, len(s.rungs) + 1))
-        plt.multiple_bar(x, [(s.face / SCALE).tolist(), (s.market_value / SCALE).tolist()],
-                         labels=["face maturing", "market value"])
-        plt.plot(x, (np.maximum(s.needs, 0) / SCALE).tolist(), label="net cash needs", marker="braille")
-        plt.xticks(x, labels)
-        plt.title(f"By rung, millions of {results.book.currency}")
-        self.query_one("#ladder-chart", PlotextPlot).refresh()
+
+        def paint(plt) -> None:
+            plt.multiple_bar(x, [(s.face / SCALE).tolist(), (s.market_value / SCALE).tolist()],
+                             labels=["face maturing", "market value"])
+            plt.plot(x, (np.maximum(s.needs, 0) / SCALE).tolist(), label="net cash needs", marker="braille")
+            plt.xticks(x, labels)
+            plt.title(f"By rung, millions of {results.book.currency}")
+
+        self.query_one("#ladder-chart", Chart).draw(paint)

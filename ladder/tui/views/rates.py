@@ -16,13 +16,13 @@ from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.message import Message
 from textual.widgets import Input, Static
-from textual_plotext import PlotextPlot
 
 from ladder.risk import scenarios as sc
 from ladder.tui import format as fmt
 from ladder.tui.frame import Column, Frame
 from ladder.tui.results import Results
 from ladder.tui.views.base import Notice, View
+from ladder.tui.widgets.chart import Chart
 from ladder.tui.widgets.frame_table import FrameTable
 
 COLUMNS = (
@@ -106,8 +106,8 @@ class RatesView(View):
         with Horizontal(classes="split"):
             yield FrameTable(id="rates-table", classes="narrow")
             with Vertical(classes="charts"):
-                yield PlotextPlot(id="rates-value-chart")
-                yield PlotextPlot(id="rates-krd-chart")
+                yield Chart(id="rates-value-chart")
+                yield Chart(id="rates-krd-chart")
         yield Static(id="rates-picked", classes="totals")
         yield Input(placeholder=SCENARIO_HELP, id="rates-input", classes="filter")
 
@@ -143,22 +143,23 @@ class RatesView(View):
         rows = np.flatnonzero(np.isfinite(bp))
         rows = rows[np.argsort(bp[rows])]
         t = r.portfolio
-        plt = self.query_one("#rates-value-chart", PlotextPlot).plt
-        plt.clear_data()
-        if len(rows):
-            x = bp[rows].tolist()
-            scale = 1e6
-            plt.plot(x, (t.value[0, rows] / scale).tolist(), label="exact", marker="braille")
-            plt.plot(x, (t.est_duration[0, rows] / scale).tolist(), label="duration", marker="braille")
-            plt.plot(x, (t.est_duration_convexity[0, rows] / scale).tolist(), label="duration + convexity",
-                     marker="braille")
-        plt.title("Portfolio value (millions) against parallel shift (bp)")
-        kplt = self.query_one("#rates-krd-chart", PlotextPlot).plt
-        kplt.clear_data()
-        kplt.bar(list(r.tenors), r.portfolio_key_rate_durations.tolist())
-        kplt.title("Key-rate durations (years) by tenor")
-        self.query_one("#rates-value-chart").refresh()
-        self.query_one("#rates-krd-chart").refresh()
+
+        def value_chart(plt) -> None:
+            if len(rows):
+                x = bp[rows].tolist()
+                scale = 1e6
+                plt.plot(x, (t.value[0, rows] / scale).tolist(), label="exact", marker="braille")
+                plt.plot(x, (t.est_duration[0, rows] / scale).tolist(), label="duration", marker="braille")
+                plt.plot(x, (t.est_duration_convexity[0, rows] / scale).tolist(), label="duration + convexity",
+                         marker="braille")
+            plt.title("Portfolio value (millions) against parallel shift (bp)")
+
+        def krd_chart(plt) -> None:
+            plt.bar(list(r.tenors), r.portfolio_key_rate_durations.tolist())
+            plt.title("Key-rate durations (years) by tenor")
+
+        self.query_one("#rates-value-chart", Chart).draw(value_chart)
+        self.query_one("#rates-krd-chart", Chart).draw(krd_chart)
 
     def _pick(self) -> None:
         row = self.table.current_row

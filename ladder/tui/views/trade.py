@@ -7,7 +7,7 @@ import numpy as np
 from textual import work
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Horizontal, Vertical, VerticalScroll
+from textual.containers import Grid, Horizontal, Vertical, VerticalScroll
 from textual.message import Message
 from textual.widgets import Button, Input, Label, Select, Static
 from textual.worker import get_current_worker
@@ -74,6 +74,7 @@ class TradeView(View):
         Binding("ctrl+t", "check_ticket", "Check trade", id="trade.check", tooltip="Every rule before and after"),
         Binding("ctrl+b", "commit", "Book trade", id="trade.commit",
                 tooltip="Apply the checked trade to the book (asks first; save with ctrl+s)"),
+        Binding("escape", "leave_form", "Leave form", id="trade.leave", tooltip="Focus the results table"),
     ]
 
     class TradeBooked(Message):
@@ -85,18 +86,22 @@ class TradeView(View):
         yield Notice(id="trade-notice")
         with Horizontal(classes="split"):
             with VerticalScroll(id="ticket-form"):
-                yield Label("Action")
-                yield Select([("buy", "buy"), ("sell", "sell")], value="buy", allow_blank=False, id="ticket-action")
-                for name in BUY_FIELDS:
-                    yield Label(LABELS[name], classes="ticket-label", id=f"label-{name}")
-                    if name in CHOICES:
-                        yield Select([(c, c) for c in CHOICES[name]], id=f"ticket-{name}", prompt="(by sector)"
-                                     if name == "kind" else "choose")
-                    else:
-                        yield Input(id=f"ticket-{name}")
+                with Grid(id="ticket-grid"):
+                    yield Label("Action")
+                    yield Select([("buy", "buy"), ("sell", "sell")], value="buy", allow_blank=False,
+                                 id="ticket-action", compact=True)
+                    for name in BUY_FIELDS:
+                        yield Label(LABELS[name], classes="ticket-label", id=f"label-{name}")
+                        if name in CHOICES:
+                            yield Select([(c, c) for c in CHOICES[name]], id=f"ticket-{name}", compact=True,
+                                         prompt="(by sector)" if name == "kind" else "choose")
+                        else:
+                            yield Input(id=f"ticket-{name}", compact=True)
                 with Horizontal(classes="buttons"):
-                    yield Button("Check (ctrl+t)", id="ticket-check", variant="primary")
-                    yield Button("Book (ctrl+b)", id="ticket-commit")
+                    yield Button("Check ^t", id="ticket-check", variant="primary", compact=True)
+                    yield Button("Book ^b", id="ticket-commit", compact=True)
+                yield Static("Tab moves between fields; Esc leaves the form (then the view keys work).",
+                             classes="hint")
             with Vertical(id="ticket-result"):
                 yield Static("Fill in a trade and press ctrl+t: every rule and the risk before and after appear "
                              "here before anything is booked.", id="ticket-status", classes="totals")
@@ -170,6 +175,9 @@ class TradeView(View):
         if action == "check_ticket":
             return (self.results is not None and self.results.valuation is not None) or None
         return True
+
+    def action_leave_form(self) -> None:
+        self.query_one("#ticket-table", FrameTable).focus()
 
     def action_check_ticket(self) -> None:
         if self.results is None or self.results.valuation is None:
