@@ -25,6 +25,7 @@ from ladder.tui.screens import DetailScreen, QuitScreen
 from ladder.tui.theme import THEMES
 from ladder.tui.views.base import View
 from ladder.tui.widgets.footer import KeyFooter
+from ladder.tui.views.cash_plan import CashPlanView
 from ladder.tui.views.curve import CurveView
 from ladder.tui.views.holdings import HoldingsView
 from ladder.tui.views.ladder_view import LadderView
@@ -38,6 +39,7 @@ VIEWS: tuple[tuple[str, str, type[View]], ...] = (
     ("ladder", "l", LadderView),
     ("policy", "p", PolicyView),
     ("rates", "r", RatesView),
+    ("plan", "c", CashPlanView),
     ("curve", "y", CurveView),
     ("trade", "t", TradeView),
 )
@@ -207,6 +209,10 @@ class LadderApp(App[None]):
     def _holdings_change(self, label: str) -> str:
         previous = self.unsaved.get("holdings")
         return f"{previous}; {label}" if previous else f"holdings: {label}"
+
+    def on_cash_plan_view_scenario_wanted(self, message: CashPlanView.ScenarioWanted) -> None:
+        self.options = dataclasses.replace(self.options, plan_scenario=message.name, plan_bp=message.bp)
+        self.recompute_task("plan")
 
     def on_holdings_view_detail_wanted(self, message: HoldingsView.DetailWanted) -> None:
         from ladder.tui.holding_detail import detail

@@ -17,6 +17,8 @@ class Options:
     """Choices made on screen that the façade calls take: scenarios added in the Rates view."""
 
     extra_scenarios: tuple = ()
+    plan_scenario: str | None = None     # a scenario name for the cash plan (None: the base case)
+    plan_bp: float | None = None         # or a parallel move, bp
 
 
 class Unavailable(Exception):
@@ -46,7 +48,7 @@ def shock(book, results, options: Options):
 
 
 def plan(book, results, options: Options):
-    return _facade("plan").plan_book(book)
+    return _facade("plan").plan_book(book, scenario=options.plan_scenario, bp=options.plan_bp)
 
 
 RUNNERS = {"valuation": valuation, "check": check, "shock": shock, "plan": plan}

@@ -1,0 +1,172 @@
+"""Cash plan: the period table (shortfalls marked in words), a chart of cash against needs, and the
+next 12 months' income under each scenario, from ``ladder.analysis.plan.CashPlan``. ``n`` plans
+under another scenario (a name from the list, or a parallel move in bp)."""
+
+from __future__ import annotations
+
+import numpy as np
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Horizontal
+from textual.message import Message
+from textual.widgets import Input, Static
+
+from ladder.tui import format as fmt
+from ladder.tui.frame import Column, Frame
+from ladder.tui.results import Results
+from ladder.tui.views.base import Notice, View
+from ladder.tui.widgets.chart import Chart
+from ladder.tui.widgets.frame_table import FrameTable
+
+COLUMNS = (Column("end", "Period end"), Column("status", "Status"), Column("opening", "Opening cash", True),
+           Column("coupons", "Coupons", True), Column("principal", "Principal", True),
+           Column("called", "Called", True), Column("fund", "Fund income", True), Column("needs", "Needs", True),
+           Column("available", "Before sales", True), Column("shortfall", "Shortfall", True),
+           Column("sales", "Sales", True), Column("unfunded", "Unfunded", True),
+           Column("reinvested", "Reinvested", True), Column("closing", "Closing cash", True),
+           Column("yield", "Reinvest yld %", True), Column("income", "Income", True))
+INCOME_COLUMNS = (Column("scenario", "Scenario", max_width=30), Column("income", "Income 12m", True),
+                  Column("change", "Change", True), Column("price", "Price change 12m", True),
+                  Column("total", "Total return 12m", True), Column("total_pct", "Return %", True),
+                  Column("calls", "Calls expected", True))
+SCALE = 1e6
+
+
+def period_status(pr, buffer: float) -> np.ndarray:
+    """A word per period: UNFUNDED (sales could not cover), SHORTFALL (sales needed), tight (cash
+    before sales under the buffer), ok."""
+    return np.where(pr.unfunded > 0, "UNFUNDED", np.where(pr.shortfall > 0, "SHORTFALL",
+                    np.where(pr.available < buffer, "tight", "ok"))).astype(object)
+
+
+def periods_frame(plan) -> Frame:
+    pr = plan.projection
+    status = period_status(pr, plan.reinvestment.buffer)
+    money = {"opening": pr.opening_cash, "coupons": pr.coupons, "principal": pr.principal, "called": pr.called,
+             "fund": pr.fund_income, "needs": pr.needs, "available": pr.available, "shortfall": pr.shortfall,
+             "sales": pr.sales, "unfunded": pr.unfunded, "reinvested": pr.reinvested, "closing": pr.closing_cash,
+             "income": pr.income}
+    text = {k: fmt.numbers(v, 0) for k, v in money.items()}
+    text.update(end=fmt.texts(pr.periods.end), status=status, **{"yield": fmt.percents(pr.reinvest_yield, 3)})
+    sort = dict(money)
+    sort.update(end=np.arange(len(status), dtype=np.float64), status=status, **{"yield": pr.reinvest_yield})
+    style = np.where(status == "UNFUNDED", "breach", np.where(status == "SHORTFALL", "breach",
+                     np.where(status == "tight", "review", ""))).astype(object)
+    return Frame(COLUMNS, text, sort, row_style=style)
+
+
+def income_frame(plan) -> Frame:
+    rows = plan.income_at_risk
+    base = plan.base.income if rows else np.nan
+    income = np.array([r.income for r in rows], dtype=np.float64)
+    price = np.array([r.horizon.price_change for r in rows], dtype=np.float64)
+    total = np.array([r.horizon.gain for r in rows], dtype=np.float64)
+    pct = np.array([r.horizon.return_pct for r in rows], dtype=np.float64)
+    calls = np.array([len(r.calls) for r in rows], dtype=np.float64)
+    text = {"scenario": np.array([r.scenario for r in rows], dtype=object), "income": fmt.numbers(income, 0),
+            "change": fmt.numbers(income - base, 0, sign=True), "price": fmt.numbers(price, 0, sign=True),
+            "total": fmt.numbers(total, 0, sign=True), "total_pct": fmt.numbers(pct, 3, sign=True),
+            "calls": fmt.numbers(calls, 0)}
+    sort = {"scenario": text["scenario"], "income": income, "change": income - base, "price": price,
+            "total": total, "total_pct": pct, "calls": calls}
+    return Frame(INCOME_COLUMNS, text, sort)
+
+
+def summary_text(plan) -> str:
+    pr, r = plan.projection, plan.reinvestment
+    first = plan.first_shortfall
+    shortfall = (f"first SHORTFALL in the period ending {pr.periods.end[first]}: {fmt.money(pr.shortfall[first])} "
+                 f"to raise by sales" + (f", {fmt.money(pr.unfunded[first])} UNFUNDED" if pr.unfunded[first] > 0 else "")
+                 if first is not None else "no shortfall over the horizon")
+    rule = r.rule.replace("_", " ") + (f" {r.tenor}" if r.tenor else "") + (f" ({r.sector})" if r.sector else "")
+    lines = [f"Scenario {plan.scenario}   {len(pr.periods)} {plan.options.period}s from {plan.as_of}   reinvest: "
+             f"{rule}, buffer {fmt.money(r.buffer)}   rates {plan.options.rates}", shortfall.capitalize()]
+    lines += [f"Note: {n}" for n in plan.notes]
+    return "\n".join(lines)
+
+
+class CashPlanView(View):
+    TITLE = "Cash plan"
+    NEEDS = ("plan",)
+    BINDINGS = [Binding("n", "scenario", "Plan scenario", id="plan.scenario",
+                        tooltip="Plan under another scenario: a name from the income table or a move in bp")]
+
+    class ScenarioWanted(Message):
+        def __init__(self, name: str | None, bp: float | None) -> None:
+            super().__init__()
+            self.name, self.bp = name, bp
+
+    def compose(self) -> ComposeResult:
+        yield Static(id="plan-summary", classes="totals")
+        yield Notice(id="plan-notice")
+        yield FrameTable(id="plan-table")
+        with Horizontal(id="plan-bottom"):
+            yield FrameTable(id="plan-income", classes="narrow")
+            yield Chart(id="plan-chart")
+        yield Input(placeholder="scenario name (e.g. +100 bp, bear-flattener, base) or a parallel move in bp",
+                    id="plan-input", classes="filter")
+
+    def on_mount(self) -> None:
+        self.query_one("#plan-input").display = False
+        self._plan = None
+
+    def refresh_view(self, results: Results) -> None:
+        notice = self.query_one(Notice)
+        plan = results.get("plan")
+        if plan is None:
+            notice.say(self.state_text(results, "plan"), "error" if "plan" in results.errors else "computing")
+            return
+        notice.say("Recomputing…" if "plan" in results.pending else None, "stale")
+        if plan is self._plan:
+            return
+        self._plan = plan
+        summary = self.query_one("#plan-summary", Static)
+        summary.update(summary_text(plan))
+        summary.set_class(plan.first_shortfall is not None, "-breach")
+        self.query_one("#plan-table", FrameTable).show(periods_frame(plan))
+        self.query_one("#plan-income", FrameTable).show(income_frame(plan))
+        pr = plan.projection
+        x = list(range(1, len(pr.periods) + 1))
+        labels = [str(d)[:7] for d in pr.periods.end]
+
+        def paint(plt) -> None:
+            plt.bar(x, (pr.available / SCALE).tolist(), label="cash before sales")
+            plt.plot(x, (pr.needs / SCALE).tolist(), label="needs", marker="braille")
+            plt.plot(x, (pr.closing_cash / SCALE).tolist(), label="closing cash", marker="braille")
+            step = max(1, len(x) // 8)
+            plt.xticks(x[::step], labels[::step])
+            plt.title(f"Cash by period, millions of {results.book.currency}")
+
+        self.query_one("#plan-chart", Chart).draw(paint)
+
+    def check_action(self, action: str, parameters) -> bool | None:
+        if action == "scenario":
+            return self._plan is not None
+        return True
+
+    def action_scenario(self) -> None:
+        box = self.query_one("#plan-input", Input)
+        box.display = True
+        box.focus()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        if event.input.id != "plan-input":
+            return
+        event.stop()
+        text = event.value.strip()
+        event.input.display = False
+        event.input.value = ""
+        self.query_one("#plan-table", FrameTable).focus()
+        try:
+            bp = float(text.replace("bp", "").strip())
+            name = None
+        except ValueError:
+            bp, name = None, text or None
+        self.post_message(self.ScenarioWanted(name, bp))
+
+    def on_key(self, event) -> None:
+        box = self.query_one("#plan-input", Input)
+        if event.key == "escape" and box.display:
+            event.stop()
+            box.display = False
+            self.query_one("#plan-table", FrameTable).focus()
