@@ -1,0 +1,1 @@
+"""The ladder builder: candidates, rungs, the mixed-integer program and its explanation."""

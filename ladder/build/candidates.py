@@ -1,0 +1,251 @@
+"""Securities the builder may buy: an offerings file, or generic candidates from the curve.
+
+An offerings file (CSV or .xlsx) has the holdings columns (docs/formats.md) plus ``available_face``
+(the most that can be bought), ``min_lot`` (the smallest purchase) and ``lot_increment`` (the step
+above it), all face amounts in currency units; ``min_lot`` must be a whole number of increments, so a
+purchase is ``n * lot_increment`` face with ``n = 0`` or ``min_lot / lot_increment <= n``. Every row
+needs a quote (price, yield or discount rate): an offering is bought at its quoted price.
+
+Generic candidates (no offerings file) stand for "a security of this sector and rating maturing at
+this rung's end": one per rung, authorized sector and rating bucket of the book's spread table,
+priced from the curve plus that spread, with a coupon that puts it at par on the settlement date.
+Their ids start ``GENERIC-`` and their issuer names with ``generic``; each is its own issuer, so a
+per-issuer cap applies to each generic line (the treasurer then sources a real issuer per line).
+
+The residual cash goes to a fund: the offerings' fund rows, else the book's own funds offered again,
+else a generic government fund at the curve's one-month rate.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from dataclasses import dataclass, replace
+from pathlib import Path
+
+import numpy as np
+
+from ladder.book.book_file import Book
+from ladder.book.holdings import SECTORS, Holdings, make_holdings
+from ladder.book.holdings_file import read_holdings
+from ladder.book.table_file import read_table
+from ladder.build.rungs import Rungs
+from ladder.errors import Problems
+from ladder.policy import ratings
+from ladder.policy.model import Policy, issuer_key
+from ladder.pricing.cashflows import cash_flows
+from ladder.pricing.curve import bootstrap
+from ladder.pricing.spreads import dirty_at_spread, settle_discount, table_spreads_bp
+
+OFFERING_COLUMNS = ("available_face", "min_lot", "lot_increment")
+GENERIC_LOT = 100_000.0        # face, the step of a generic purchase (common practice: 100,000 lots)
+GENERIC_PREFIX = "GENERIC-"
+LONG_BUCKETS = ("AAA", "AA", "A", "BBB")
+BILL_MONTHS = 12               # a generic Treasury maturing within a year is a bill (discount)
+
+
+@dataclass(frozen=True, eq=False)
+class Candidates:
+    """Securities to choose from, one row each; ``holdings.face`` is not used (see ``available``)."""
+
+    holdings: Holdings
+    available: np.ndarray   # (n,) face that can be bought, inf when unlimited
+    min_lot: np.ndarray     # (n,) face
+    lot: np.ndarray         # (n,) face increment; funds are bought in any amount (lot 0.01)
+    generic: np.ndarray     # (n,) bool
+    source: str             # the offerings file, or "generic (curve + spread table)"
+    left_out: tuple[tuple[str, int], ...] = ()   # (reason, count) of candidates the policy rules out
+
+    def __len__(self) -> int:
+        return len(self.holdings)
+
+    @property
+    def fund(self) -> np.ndarray:
+        return self.holdings.kind == "fund"
+
+    def take(self, index) -> "Candidates":
+        return replace(self, holdings=self.holdings.take(index), available=self.available[index],
+                       min_lot=self.min_lot[index], lot=self.lot[index], generic=self.generic[index])
+
+    @staticmethod
+    def concat(parts: "list[Candidates]") -> "Candidates":
+        first = parts[0]
+        return replace(first, holdings=Holdings.concat([p.holdings for p in parts]),
+                       available=np.concatenate([p.available for p in parts]),
+                       min_lot=np.concatenate([p.min_lot for p in parts]),
+                       lot=np.concatenate([p.lot for p in parts]),
+                       generic=np.concatenate([p.generic for p in parts]))
+
+
+def _face_numbers(texts: list[str]) -> tuple[np.ndarray, list[int]]:
+    values, bad = [], []
+    for i, text in enumerate(texts):
+        try:
+            value = float(text.replace(",", "")) if text.strip() else np.nan
+        except ValueError:
+            value = np.nan
+        if not np.isfinite(value) or value <= 0:
+            bad.append(i)
+        values.append(value)
+    return np.array(values, dtype=np.float64), bad
+
+
+def read_offerings(path, book: Book) -> Candidates:
+    """The offerings in ``path``; raises ``InputError`` with every problem (nothing half-read)."""
+    path = Path(path)
+    label = str(path)
+    problems = Problems()
+    h, extras = read_holdings(path, book.valuation_date, problems, label, extra_columns=OFFERING_COLUMNS)
+    table = read_table(path, Problems(), label)
+    if table is not None:
+        for name in OFFERING_COLUMNS:
+            if name not in table.column:
+                problems.add(label, 1, 0, f"required column {name!r} is missing (face amounts in currency units)")
+    if h is None or table is None or problems:
+        problems.raise_if_any()
+    col = table.column
+    numbers = {}
+    for name in OFFERING_COLUMNS:
+        numbers[name], bad = _face_numbers(extras[name])
+        for i in bad:
+            problems.add(label, int(h.row[i]), col[name], f"{name} {extras[name][i]!r} is not a positive face amount")
+    held = set(book.holdings.id)
+    for i in range(len(h)):
+        row = int(h.row[i])
+        if h.kind[i] != "fund" and h.quote_type[i] == "":
+            problems.add(label, row, 0, f"offering {h.id[i]} has no quote; give price, yield_pct or discount_rate_pct")
+        if h.id[i] in held:
+            problems.add(label, row, col["id"], f"{h.id[i]} is already in the book; an offering needs a new id")
+        avail, low, step = (numbers[n][i] for n in OFFERING_COLUMNS)
+        if np.isfinite(low) and np.isfinite(avail) and low > avail:
+            problems.add(label, row, col["min_lot"], f"min_lot {low:,.2f} is more than available_face {avail:,.2f}")
+        if np.isfinite(low) and np.isfinite(step) and abs(low / step - round(low / step)) > 1e-9:
+            problems.add(label, row, col["min_lot"],
+                         f"min_lot {low:,.2f} is not a whole number of lot_increment {step:,.2f}")
+    problems.raise_if_any()
+    fund = h.kind == "fund"
+    return Candidates(h, numbers["available_face"], np.where(fund, 0.0, numbers["min_lot"]),
+                      np.where(fund, 0.01, numbers["lot_increment"]), np.zeros(len(h), bool), label)
+
+
+def _authorized(policy: Policy) -> list[str]:
+    if not policy.sectors:
+        return [s for s in SECTORS if s != "fund"]
+    return [s.name for s in policy.sectors if s.allowed and s.name != "fund"]
+
+
+def _par_coupons(h: Holdings, curve, settle, spreads_bp: np.ndarray) -> np.ndarray:
+    """Coupon (decimal, rounded to 0.001%) putting each coupon-bearing row at par on ``settle``:
+    the dirty price is linear in the coupon, so two pricings give it."""
+    prices = []
+    for c in (0.0, 0.01):
+        trial = replace(h, coupon=np.where(h.kind == "discount", 0.0, c))
+        cf = cash_flows(trial, settle)
+        prices.append(dirty_at_spread(cf, settle_discount(curve, cf), spreads_bp / 1e4))
+    slope = (prices[1] - prices[0]) / 0.01
+    coupon = np.where(slope > 0, (100.0 - prices[0]) / np.where(slope > 0, slope, 1.0), 0.0)
+    return np.where(h.kind == "discount", 0.0, np.round(np.maximum(coupon, 0.0) * 1e5) / 1e5)
+
+
+def generic_candidates(book: Book, rungs: Rungs, settle: dt.date) -> Candidates:
+    """One generic security per rung, authorized sector and spread-table bucket (see module docstring)."""
+    policy = book.policy
+    settle64 = np.datetime64(settle, "D")
+    rows: dict[str, list] = {k: [] for k in ("id", "sector", "issuer", "kind", "maturity", "rating", "short_rating",
+                                             "issue_date", "frequency")}
+    starts = np.concatenate([[settle64], rungs.ends[:-1]])
+    for sector in _authorized(policy):
+        rule = policy.sector(sector)
+        limit = rule.max_maturity if rule is not None else None
+        latest = settle64 + limit.days(settle64) if limit is not None else None
+        for bucket in book.spreads.get(sector, {}):
+            long_, short = (bucket, "") if bucket in LONG_BUCKETS else ("", "" if bucket == "default" else bucket)
+            for k, (start, end, label) in enumerate(zip(starts, rungs.ends, rungs.labels)):
+                maturity = end if latest is None else min(end, latest)
+                if maturity <= start:
+                    continue
+                bill = sector == "treasury" and rungs.months[k] <= BILL_MONTHS
+                kind = "discount" if bill else ""
+                rows["id"].append(f"{GENERIC_PREFIX}{sector}-{bucket}-{label}")
+                rows["sector"].append(sector)
+                rows["issuer"].append(f"generic {sector} {bucket} issuer, rung {label}")
+                rows["kind"].append(kind)
+                rows["maturity"].append(maturity)
+                rows["rating"].append(long_)
+                rows["short_rating"].append(short)
+                rows["issue_date"].append(settle64)
+                rows["frequency"].append(-1)
+    n = len(rows["id"])
+    h = make_holdings(**rows, face=np.full(n, GENERIC_LOT))
+    curve = bootstrap(book.curve, np.datetime64(book.valuation_date))
+    spread_bp = table_spreads_bp(h, book.spreads)
+    h = replace(h, coupon=_par_coupons(h, curve, settle64, spread_bp))
+    return Candidates(h, np.full(n, np.inf), np.full(n, GENERIC_LOT), np.full(n, GENERIC_LOT), np.ones(n, bool),
+                      "generic (curve + spread table)")
+
+
+def fund_candidates(book: Book, settle: dt.date) -> Candidates:
+    """Where the residual goes: the book's funds offered again (new lots, same issuer and yield), else a
+    generic government fund at the curve's one-month continuously compounded zero rate."""
+    h = book.holdings
+    funds = np.flatnonzero((h.kind == "fund") & (h.sector == "fund"))
+    maturity = np.datetime64(settle, "D") + 1
+    if len(funds):
+        src = h.take(funds)
+        offered = make_holdings(id=[f"BUILD-{i}" for i in src.id], sector=src.sector, issuer=src.issuer,
+                                kind=src.kind, face=np.ones(len(src)), maturity=[maturity] * len(src),
+                                day_count=src.day_count, quote_type=src.quote_type, quote=src.quote)
+        generic = np.zeros(len(src), bool)
+    else:
+        curve = bootstrap(book.curve, np.datetime64(book.valuation_date))
+        rate = float(curve.zero_rate(np.array([1.0 / 12.0]))[0])
+        offered = make_holdings(id=[f"{GENERIC_PREFIX}fund"], sector=["fund"], issuer=["generic government fund"],
+                                kind=["fund"], face=[1.0], maturity=[maturity], quote_type=["yield"],
+                                quote=[round(rate, 6)])
+        generic = np.ones(1, bool)
+    n = len(offered)
+    return Candidates(offered, np.full(n, np.inf), np.zeros(n), np.full(n, 0.01), generic, "fund")
+
+
+def eligible(policy: Policy, c: Candidates, rungs: Rungs, settle: dt.date) -> Candidates:
+    """The candidates a purchase may take under ``policy`` (named and authorized sector, rating minima,
+    maximum maturities) and inside the rungs (funds need no rung); ``left_out`` counts the rest by reason."""
+    h = c.holdings
+    settle64 = np.datetime64(settle, "D")
+    days = np.where(np.isnat(h.maturity), 1, (h.maturity - settle64).astype(np.int64))
+    keep = np.ones(len(h), bool)
+    reasons: list[tuple[str, int]] = []
+
+    def rule_out(mask, reason):
+        nonlocal keep
+        hit = keep & mask
+        if hit.any():
+            reasons.append((reason, int(hit.sum())))
+        keep = keep & ~mask
+
+    named = {s.name for s in policy.sectors}
+    if named:
+        rule_out(~np.isin(h.sector, list(named)), "sectors: in a sector the policy does not name")
+    long_ = ratings.long_notches(h.rating, policy.split)
+    short = ratings.short_notches(h.short_rating, policy.split)
+    for s in policy.sectors:
+        here = h.sector == s.name
+        if not s.allowed:
+            rule_out(here, s.key("allowed"))
+            continue
+        if s.max_maturity is not None:
+            rule_out(here & (days > s.max_maturity.days(settle64)), s.max_maturity.key)
+        if s.min_long_rating is not None:
+            notch = ratings.LONG_NOTCH[s.min_long_rating]
+            rule_out(here & ~(long_ <= notch), s.key("min_long_rating"))
+        if s.min_short_rating is not None:
+            notch = ratings.SHORT_NOTCH[s.min_short_rating]
+            rule_out(here & ~(short <= notch), s.key("min_short_rating"))
+    if policy.portfolio.max_maturity is not None:
+        rule_out(days > policy.portfolio.max_maturity.days(settle64), policy.portfolio.max_maturity.key)
+    rule_out((h.kind != "fund") & (rungs.index(h.maturity) < 0), f"matures after the last rung ({rungs.ends[-1]})")
+    rule_out(days <= 0, "matures on or before the settlement date")
+    return replace(c.take(keep), left_out=c.left_out + tuple(reasons))
+
+
+def issuer_keys(h: Holdings) -> np.ndarray:
+    return np.array([issuer_key(x) for x in h.issuer], dtype=object)

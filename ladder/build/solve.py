@@ -1,0 +1,188 @@
+"""Solving the builder's program with HiGHS (through scipy), and explaining the answer.
+
+- ``solve``: the mixed-integer program (``scipy.optimize.milp``), to a relative gap of ``MIP_GAP``.
+- ``relaxation``: the linear relaxation (``scipy.optimize.linprog``, method "highs"): lots may be
+  fractional and a semi-integer lot count may take any value from 0 to its maximum. Its dual values
+  (``marginals``) say how much income a year one more unit of each row's right-hand side would
+  buy; with the row's sensitivity to its limit they price each binding limit (the linear
+  programming duality theorem; e.g. Chvatal, "Linear Programming", 1983, ch. 5 and 10). They are the
+  relaxation's, so the figures for the integer program are approximate.
+- ``diagnose``: when no ladder exists, every row but the budget gets a slack variable in the limit's
+  own unit, penalised by its size relative to the limit; the mixed-integer program that minimizes the
+  sum of relative slacks is always feasible and names the smallest relaxation, grouped by rule.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+from scipy import sparse
+from scipy.optimize import Bounds, LinearConstraint, linprog, milp
+
+from ladder.build.program import BUDGET, SENS_BUYS, SENS_ONE, Program
+
+MIP_GAP = 1e-7
+TIME_LIMIT_S = 120.0
+_BINDING_DUAL = 1e-9
+
+
+@dataclass(frozen=True, eq=False)
+class Solution:
+    status: str           # "optimal" | "infeasible" | "time_limit" | "error"
+    x: np.ndarray | None  # variable values (lots rounded to integers)
+    income: float         # objective, currency a year
+    message: str
+    seconds: float
+    gap: float | None = None
+
+
+def _row_scale(p: Program) -> np.ndarray:
+    """Each row divided by its largest coefficient (HiGHS works best with rows of unit size)."""
+    size = np.abs(p.A).max(axis=1) if p.A.size else np.ones(0)
+    return np.where(size > 0, size, 1.0)
+
+
+def _constraints(p: Program, A: np.ndarray, b: np.ndarray):
+    lower = np.where(p.eq, b, -np.inf)
+    return LinearConstraint(sparse.csr_matrix(A), lower, b)
+
+
+def solve(p: Program, time_limit: float = TIME_LIMIT_S) -> Solution:
+    """The mixed-integer optimum of ``p``."""
+    import time
+
+    scale = _row_scale(p)
+    objective_scale = max(p.cash, 1.0)
+    start = time.perf_counter()
+    res = milp(-p.c / objective_scale, integrality=p.integrality, bounds=Bounds(p.lb, p.ub),
+               constraints=_constraints(p, p.A / scale[:, None], p.b / scale),
+               options={"mip_rel_gap": MIP_GAP, "time_limit": time_limit, "presolve": True})
+    seconds = time.perf_counter() - start
+    status = {0: "optimal", 1: "time_limit", 2: "infeasible"}.get(res.status, "error")
+    if res.x is None:
+        return Solution(status if status != "time_limit" else "time_limit", None, float("nan"), res.message, seconds)
+    x = np.where(p.integrality > 0, np.round(res.x), res.x)
+    gap = getattr(res, "mip_gap", None)
+    return Solution(status, x, float(p.c @ x), res.message, seconds, None if gap is None else float(gap))
+
+
+@dataclass(frozen=True, eq=False)
+class Relaxation:
+    status: str
+    x: np.ndarray | None
+    income: float
+    duals: np.ndarray        # (m,) d income / d rhs of each row (>= 0 for a <= row that binds)
+    bound_duals: np.ndarray  # (k,) d income / d upper bound of each variable
+    seconds: float
+
+
+def relaxation(p: Program) -> Relaxation:
+    """The linear relaxation of ``p`` and its dual values (income a year per unit of right-hand side)."""
+    import time
+
+    scale = _row_scale(p)
+    A, b = p.A / scale[:, None], p.b / scale
+    ineq = ~p.eq
+    start = time.perf_counter()
+    res = linprog(-p.c, A_ub=A[ineq] if ineq.any() else None, b_ub=b[ineq] if ineq.any() else None,
+                  A_eq=A[p.eq] if p.eq.any() else None, b_eq=b[p.eq] if p.eq.any() else None,
+                  bounds=np.column_stack([np.zeros(len(p.c)), p.ub]), method="highs")
+    seconds = time.perf_counter() - start
+    m = len(p.b)
+    if res.status != 0:
+        return Relaxation("infeasible" if res.status == 2 else "error", None, float("nan"), np.zeros(m),
+                          np.zeros(len(p.c)), seconds)
+    duals = np.zeros(m)
+    if ineq.any():
+        duals[ineq] = -res.ineqlin.marginals / scale[ineq]
+    if p.eq.any():
+        duals[p.eq] = -res.eqlin.marginals / scale[p.eq]
+    return Relaxation("optimal", res.x, float(-res.fun), duals, -res.upper.marginals, seconds)
+
+
+@dataclass(frozen=True)
+class Binding:
+    """A limit the relaxation presses against, and about what moving it by one ``step`` is worth."""
+
+    group: str
+    label: str
+    text: str
+    limit: float
+    unit: str
+    step: float               # in the limit's unit
+    income_per_step: float    # currency a year gained by relaxing the limit one step
+    yield_bp_per_step: float  # the same as basis points of the portfolio's yield
+
+
+STEP = {"pct": 1.0, "years": 0.1, "days": 30.0, "currency": 1_000_000.0, "buys_pct": 1.0}
+
+
+def _sensitivity(p: Program, r: Relaxation) -> np.ndarray:
+    """d rhs / d limit of each row at the relaxation's solution (see ``ladder.build.program``)."""
+    after = p.positions.mv @ p.face0 + p.cash
+    buys = float((p.positions.mv[p.var_pos] * p.var_unit * r.x * p.buys).sum())
+    return np.select([p.sens == SENS_ONE, p.sens == SENS_BUYS], [1.0, buys / 100.0], default=after)
+
+
+def binding(p: Program, r: Relaxation, basis_total: float) -> tuple[Binding, ...]:
+    """Rows whose dual value is non-zero, most valuable first; ``basis_total`` is the portfolio's value
+    after the trades (currency) for converting income into basis points of yield."""
+    if r.x is None:
+        return ()
+    sens = _sensitivity(p, r)
+    # A cap moves its rhs by +sensitivity when raised (a floor, coverage: by -); direction is in the
+    # sign of the dual, so the value of relaxing is |dual| x sensitivity per unit of limit.
+    value = np.abs(r.duals) * sens
+    out = []
+    for i in np.argsort(-value):
+        if value[i] <= _BINDING_DUAL * max(p.cash, 1.0) or p.group[i] == BUDGET:
+            continue
+        step = STEP[p.unit[i]]
+        income = float(value[i] * step)
+        out.append(Binding(str(p.group[i]), str(p.label[i]), p.text.get(p.group[i], ""), float(p.limit[i]),
+                           str(p.unit[i]), step, income, 1e4 * income / basis_total if basis_total else 0.0))
+    return tuple(out)
+
+
+@dataclass(frozen=True)
+class Conflict:
+    """A group of rows that must give for any ladder to exist, and by how much (in the limit's unit)."""
+
+    group: str
+    text: str
+    unit: str
+    members: tuple[tuple[str, float, float], ...]   # (label, limit, relaxation needed)
+
+    @property
+    def worst(self) -> float:
+        return max(m[2] for m in self.members)
+
+
+def diagnose(p: Program, time_limit: float = TIME_LIMIT_S) -> tuple[Conflict, ...]:
+    """The smallest relaxation (sum of relaxations relative to each limit) that admits a ladder."""
+    soft = np.flatnonzero(p.group != BUDGET)
+    sens = np.select([p.sens == SENS_ONE, p.sens == SENS_BUYS], [1.0, max(p.cash, 1.0) / 100.0],
+                     default=max(p.positions.mv @ p.face0 + p.cash, 1.0))
+    # one slack per soft row, in the limit's unit: row - sens * slack <= b
+    S = np.zeros((len(p.b), len(soft)))
+    S[soft, np.arange(len(soft))] = -sens[soft]
+    A = np.hstack([p.A, S])
+    weight = 1.0 / np.maximum(np.abs(p.limit[soft]), np.where(p.unit[soft] == "currency", 1e6, 1e-1))
+    k = len(p.c)
+    c = np.concatenate([-1e-9 * p.c / max(p.cash, 1.0), weight])
+    scale = np.where(np.abs(A).max(axis=1) > 0, np.abs(A).max(axis=1), 1.0)
+    res = milp(c, integrality=np.concatenate([p.integrality, np.zeros(len(soft), np.int64)]),
+               bounds=Bounds(np.concatenate([p.lb, np.zeros(len(soft))]), np.concatenate([p.ub, np.full(len(soft),
+                                                                                                np.inf)])),
+               constraints=_constraints(p, A / scale[:, None], p.b / scale),
+               options={"mip_rel_gap": 1e-6, "time_limit": time_limit})
+    if res.x is None:
+        return (Conflict(BUDGET, "no purchase fits the cash to invest", "currency", (("", p.cash, np.nan),)),)
+    slack = res.x[k:]
+    out: dict[str, list] = {}
+    for j, i in enumerate(soft):
+        if slack[j] * weight[j] > 1e-7:
+            out.setdefault(str(p.group[i]), []).append((str(p.label[i]), float(p.limit[i]), float(slack[j])))
+    return tuple(Conflict(g, p.text.get(g, ""), str(p.unit[np.flatnonzero(p.group == g)[0]]), tuple(members))
+                 for g, members in out.items())
