@@ -25,6 +25,7 @@ from ladder.tui.screens import DetailScreen, QuitScreen
 from ladder.tui.theme import THEMES
 from ladder.tui.views.base import View
 from ladder.tui.widgets.footer import KeyFooter
+from ladder.tui.views.builder import BuilderView
 from ladder.tui.views.cash_plan import CashPlanView
 from ladder.tui.views.curve import CurveView
 from ladder.tui.views.holdings import HoldingsView
@@ -40,6 +41,7 @@ VIEWS: tuple[tuple[str, str, type[View]], ...] = (
     ("policy", "p", PolicyView),
     ("rates", "r", RatesView),
     ("plan", "c", CashPlanView),
+    ("builder", "b", BuilderView),
     ("curve", "y", CurveView),
     ("trade", "t", TradeView),
 )
@@ -213,6 +215,17 @@ class LadderApp(App[None]):
     def on_cash_plan_view_scenario_wanted(self, message: CashPlanView.ScenarioWanted) -> None:
         self.options = dataclasses.replace(self.options, plan_scenario=message.name, plan_bp=message.bp)
         self.recompute_task("plan")
+
+    def on_builder_view_accepted(self, message: BuilderView.Accepted) -> None:
+        from ladder.analysis.build import apply_build
+        from ladder.tui.tasks import describe
+
+        try:
+            book = apply_build(self.book, message.result)
+        except Exception as error:   # an InputError explains why it cannot be applied
+            self.notify(describe(error), title="Not applied", severity="error")
+            return
+        self.change_book(book, "holdings", self._holdings_change(f"builder: {len(message.result.trades)} trade(s)"))
 
     def on_holdings_view_detail_wanted(self, message: HoldingsView.DetailWanted) -> None:
         from ladder.tui.holding_detail import detail

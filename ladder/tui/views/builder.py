@@ -1,0 +1,215 @@
+"""Builder: cash, rungs and options in a form; the solve runs in a worker with its progress shown;
+the proposed trades with the compliance before and after; accept applies them after a confirmation.
+Every figure comes from ``ladder.analysis.build.build_ladder``."""
+
+from __future__ import annotations
+
+import numpy as np
+from textual import work
+from textual.app import ComposeResult
+from textual.binding import Binding
+from textual.containers import Grid, Horizontal, Vertical
+from textual.message import Message
+from textual.widgets import Checkbox, Input, Label, ProgressBar, Static
+from textual.worker import get_current_worker
+
+from ladder.tui import format as fmt
+from ladder.tui.frame import Column, Frame
+from ladder.tui.results import Results
+from ladder.tui.views.base import Notice, View
+from ladder.tui.views.policy import status_word
+from ladder.tui.views.trade import changes_frame
+from ladder.tui.widgets.frame_table import FrameTable
+
+TRADE_COLUMNS = (Column("action", "Action"), Column("id", "Id", max_width=30), Column("sector", "Sector"),
+                 Column("issuer", "Issuer", max_width=24), Column("rating", "Rating"), Column("maturity", "Maturity"),
+                 Column("coupon", "Coupon %", True), Column("face", "Face", True), Column("price", "Price", True))
+
+
+def trades_frame(trades) -> Frame:
+    h = trades.holdings
+    rating = np.where(h.rating != "", h.rating, h.short_rating).astype(object)
+    text = {"action": trades.action, "id": h.id, "sector": h.sector, "issuer": h.issuer, "rating": rating,
+            "maturity": fmt.texts(h.maturity), "coupon": fmt.percents(h.coupon, 3), "face": fmt.numbers(h.face, 0),
+            "price": fmt.numbers(h.book_price, 4)}
+    sort = dict(text)
+    sort.update(coupon=h.coupon, face=h.face, price=h.book_price,
+                maturity=np.where(np.isnat(h.maturity), np.nan, h.maturity.astype("datetime64[D]").astype(np.float64)))
+    return Frame(TRADE_COLUMNS, text, sort)
+
+
+def _summary_line(name: str, s) -> str:
+    if s is None:
+        return f"{name:<7} {fmt.NA_TEXT}"
+    shares = "  ".join(f"{k} {v:.1f}%" for k, v in s.rung_shares if v)
+    return (f"{name:<7} value {fmt.money(s.market_value):>14}   expected yield {fmt.percent(s.expected_yield)}%   "
+            f"eff dur {fmt.number(s.effective_duration, 3)}   WAM {fmt.number(s.wam_days, 0)} d   {shares}")
+
+
+def result_text(r) -> str:
+    if r.status != "built":
+        lines = ["NO LADDER fits every rule. The smallest relaxation that would admit one:"]
+        for c in r.conflicts:
+            members = "; ".join(f"{label}: limit {limit:g}, needs {need:g}" for label, limit, need in c.members)
+            lines.append(f"  {c.group}: {c.text} ({c.unit}) {members}")
+        return "\n".join(lines)
+    naive = (f"   naive even ladder {fmt.percent(r.naive_yield)}% "
+             f"({'meets every rule' if r.naive_feasible else 'breaks a rule'})" if r.naive_yield is not None else "")
+    compliance = status_word(r.compliance_status) if r.compliance_status else fmt.NA_TEXT
+    lines = [f"BUILT: {len(r.trades)} trade(s), invested {fmt.money(r.invested)} of {fmt.money(r.cash)}   rungs "
+             f"{r.rungs.spec}   policy after: {compliance}{naive}   solved in {r.seconds:.2f} s",
+             _summary_line("before", r.before), _summary_line("after", r.after)]
+    for b in r.binding[:4]:
+        lines.append(f"binding: {b.group} {b.label} ({b.text}): {fmt.money(b.income_per_step)} a year, "
+                     f"{b.yield_bp_per_step:.3f} bp per {b.step:g} {b.unit}")
+    return "\n".join(lines)
+
+
+class BuilderView(View):
+    TITLE = "Builder"
+    NEEDS = ("valuation",)
+    BINDINGS = [
+        Binding("ctrl+g", "solve", "Build", id="builder.solve", tooltip="Design the ladder for this cash"),
+        Binding("ctrl+y", "accept", "Accept", id="builder.accept",
+                tooltip="Add the proposed trades to the book (asks first; save with ctrl+s)"),
+        Binding("escape", "leave_form", "Leave form", id="builder.leave", tooltip="Focus the trades table"),
+    ]
+
+    class Progressed(Message):
+        def __init__(self, asked: int, fraction: float, text: str) -> None:
+            super().__init__()
+            self.asked, self.fraction, self.text = asked, fraction, text
+
+    class Built(Message):
+        def __init__(self, asked: int, result, error: str | None) -> None:
+            super().__init__()
+            self.asked, self.result, self.error = asked, result, error
+
+    class Accepted(Message):
+        """The user accepted the build: the app applies ``result`` to the book."""
+
+        def __init__(self, result) -> None:
+            super().__init__()
+            self.result = result
+
+    def compose(self) -> ComposeResult:
+        yield Notice(id="builder-notice")
+        with Horizontal(id="builder-top"):
+            with Grid(id="builder-form"):
+                yield Label("Cash to invest")
+                yield Input(placeholder="e.g. 25,000,000", id="builder-cash", compact=True)
+                yield Label("Rungs")
+                yield Input(placeholder="default: even to the policy's maximum; 5x1Y, 12x3M, 3M,6M,1Y,2Y",
+                            id="builder-rungs", compact=True)
+                yield Label("Sales")
+                yield Checkbox("allow selling holdings", id="builder-sales", compact=True)
+            with Vertical(id="builder-state"):
+                yield Static("Enter the cash and press ctrl+g to build. Esc leaves the form.", id="builder-status")
+                yield ProgressBar(total=1.0, show_eta=False, id="builder-progress")
+        yield Static(id="builder-result", classes="totals")
+        with Horizontal(classes="split"):
+            yield FrameTable(id="builder-trades", classes="narrow")
+            yield FrameTable(id="builder-compliance", classes="narrow")
+
+    def on_mount(self) -> None:
+        self.result = None
+        self._asked = 0
+        self.query_one("#builder-progress").display = False
+
+    def refresh_view(self, results: Results) -> None:
+        self.query_one(Notice).say(self.state_text(results, "valuation"),
+                                   "error" if "valuation" in results.errors else "computing")
+        if self.result is not None and self._book is not results.book:
+            self._show(None, "The book changed since this build: build again (ctrl+g).")
+
+    def check_action(self, action: str, parameters) -> bool | None:
+        if action == "accept":
+            return (self.result is not None and self.result.status == "built" and len(self.result.trades) > 0) or None
+        if action == "solve":
+            return (self.results is not None and self.results.valuation is not None) or None
+        return True
+
+    def action_leave_form(self) -> None:
+        self.query_one("#builder-trades", FrameTable).focus()
+
+    def action_solve(self) -> None:
+        if self.results is None:
+            return
+        self._asked += 1
+        self._book = self.results.book
+        bar = self.query_one("#builder-progress", ProgressBar)
+        bar.display = True
+        bar.update(progress=0.0)
+        self.query_one("#builder-status", Static).update("Building…")
+        self.set_class(True, "-computing")
+        rungs = self.query_one("#builder-rungs", Input).value.strip() or None
+        self.run_build(self._asked, self._book, self.query_one("#builder-cash", Input).value, rungs,
+                       self.query_one("#builder-sales", Checkbox).value)
+
+    @work(thread=True, exclusive=True, exit_on_error=False, group="builder")
+    def run_build(self, asked: int, book, cash: str, rungs: str | None, allow_sales: bool) -> None:
+        from ladder.analysis.build import build_ladder
+        from ladder.tui.tasks import describe
+
+        worker = get_current_worker()
+
+        def progress(fraction: float, text: str) -> None:
+            if not worker.is_cancelled:
+                self.post_message(self.Progressed(asked, fraction, text))
+
+        try:
+            result, error = build_ladder(book, cash, rungs=rungs, allow_sales=allow_sales, progress=progress), None
+        except Exception as problem:   # shown in the view, never a crash
+            result, error = None, describe(problem)
+        if not worker.is_cancelled:
+            self.post_message(self.Built(asked, result, error))
+
+    def on_builder_view_progressed(self, message: "BuilderView.Progressed") -> None:
+        if message.asked == self._asked:
+            self.query_one("#builder-progress", ProgressBar).update(progress=message.fraction)
+            self.query_one("#builder-status", Static).update(f"Building: {message.text}…")
+
+    def on_builder_view_built(self, message: "BuilderView.Built") -> None:
+        if message.asked != self._asked:
+            return
+        self.set_class(False, "-computing")
+        self.query_one("#builder-progress").display = False
+        if message.error is not None:
+            self._show(None, "The build was refused:\n" + message.error)
+            return
+        self._show(message.result, "Proposed: review the trades and the policy after them; ctrl+y accepts."
+                   if message.result.status == "built" else "No ladder: see why below.")
+
+    def _show(self, result, status: str) -> None:
+        self.result = result
+        self.query_one("#builder-status", Static).update(status)
+        text = self.query_one("#builder-result", Static)
+        text.update(result_text(result) if result is not None else "")
+        text.set_class(result is not None and (result.status != "built" or result.compliance_status == "breach"),
+                       "-breach")
+        trades = self.query_one("#builder-trades", FrameTable)
+        compliance = self.query_one("#builder-compliance", FrameTable)
+        if result is not None and result.trades is not None:
+            trades.show(trades_frame(result.trades), keep_place=False)
+        else:
+            trades.show(Frame.empty())
+        check = getattr(result.compliance, "check", None) if result is not None else None
+        compliance.show(changes_frame(check) if check is not None else Frame.empty(), keep_place=False)
+        if check is not None:
+            compliance.sort_by("after")
+        self.refresh_bindings()
+
+    def action_accept(self) -> None:
+        r = self.result
+        if r is None or r.status != "built":
+            return
+        from ladder.tui.screens import ConfirmScreen
+
+        def answered(yes: bool | None) -> None:
+            if yes and self.result is r:
+                self.post_message(self.Accepted(r))
+                self._show(None, f"Accepted: {len(r.trades)} trade(s) added to the book. Save with ctrl+s.")
+
+        after = status_word(r.compliance_status) if r.compliance_status else fmt.NA_TEXT
+        self.app.push_screen(ConfirmScreen(f"Add the {len(r.trades)} proposed trade(s) to the book? Policy after "
+                                           f"them: {after}.\nThe book changes on screen; ctrl+s writes it."), answered)
