@@ -1,0 +1,98 @@
+"""A killed write leaves the previous history database, journal and holdings file intact."""
+
+from __future__ import annotations
+
+import datetime as dt
+import sqlite3
+
+import pytest
+
+import ladder.book.save as save
+import ladder.report.custodian as custodian
+from ladder.book.book_file import load_book
+from ladder.errors import InputError
+from ladder.report import history
+from ladder.report.history import Snapshot, input_file, load_snapshot, record_snapshot, snapshot_dates
+from ladder.report.journal import JournalEntry, append_journal, journal_path, read_journal
+
+
+def _snapshot(as_of: dt.date, value: float, holdings: dict | None = None) -> Snapshot:
+    return Snapshot(as_of, as_of - dt.timedelta(days=30), "2026-12-01T00:00:00+00:00", "book", "policy", "1",
+                    dt.date(2026, 1, 1), "pass", "0", {"market_value": value, "count": 2.0},
+                    holdings or {"A": {"face": 1.0}}, {"rule": ("pass", "5", "1")}, {"holdings": ("h.csv", "ab")},
+                    {"title": "t"})
+
+
+def _dump(path) -> list:
+    with sqlite3.connect(path) as conn:
+        return [conn.execute(f"SELECT * FROM {t} ORDER BY 1, 2").fetchall() for t in history.TABLES + ("contents",)]
+
+
+def test_history_write_failing_midway_rolls_back(demo_copy):
+    files = (input_file("holdings", demo_copy / "holdings.csv"),)
+    record_snapshot(demo_copy, _snapshot(dt.date(2026, 10, 31), 1.0), files)
+    before = _dump(history.history_path(demo_copy))
+    # the same month-end again and a new one, each failing after the snapshot row and its figures are
+    # written (an object JSON cannot hold, in the holdings' figures): nothing of either may remain
+    for day in (dt.date(2026, 10, 31), dt.date(2026, 11, 30)):
+        with pytest.raises(TypeError):
+            record_snapshot(demo_copy, _snapshot(day, 2.0, {"A": {"face": 1.0}, "B": {"face": object()}}), files)
+    assert _dump(history.history_path(demo_copy)) == before
+    assert snapshot_dates(demo_copy) == [dt.date(2026, 10, 31)]
+    assert load_snapshot(demo_copy, dt.date(2026, 10, 31)).figures["market_value"] == 1.0
+    with sqlite3.connect(history.history_path(demo_copy)) as conn:
+        assert conn.execute("PRAGMA integrity_check").fetchone() == ("ok",)
+
+
+def test_history_keeps_input_bytes_and_replaces_a_month(demo_copy):
+    files = (input_file("holdings", demo_copy / "holdings.csv"),)
+    record_snapshot(demo_copy, _snapshot(dt.date(2026, 11, 30), 1.0), files)
+    record_snapshot(demo_copy, _snapshot(dt.date(2026, 11, 30), 3.0), files)
+    s = load_snapshot(demo_copy, dt.date(2026, 11, 30))
+    assert s.figures["market_value"] == 3.0 and snapshot_dates(demo_copy) == [dt.date(2026, 11, 30)]
+    assert history.input_content(demo_copy, files[0].sha256) == (demo_copy / "holdings.csv").read_bytes()
+    assert history.previous_snapshot(demo_copy, dt.date(2026, 11, 30)) is None
+    assert history.previous_snapshot(demo_copy, dt.date(2026, 12, 31)).as_of == dt.date(2026, 11, 30)
+
+
+def test_holdings_save_failing_midway_keeps_the_old_file(demo_copy, monkeypatch):
+    book = load_book(demo_copy)
+    original = (demo_copy / "holdings.csv").read_bytes()
+
+    def fail(*args):
+        raise OSError("disk full (simulated)")
+    monkeypatch.setattr(save.os, "replace", fail)
+    with pytest.raises(OSError):
+        save.save_holdings(book, book.holdings.take(slice(0, 3)))
+    assert (demo_copy / "holdings.csv").read_bytes() == original
+    assert not list(demo_copy.glob(".holdings.csv.*.tmp"))
+
+
+def test_import_whose_journal_fails_puts_the_holdings_back(demo_copy, monkeypatch):
+    book = load_book(demo_copy)
+    original = (demo_copy / "holdings.csv").read_bytes()
+    new = book.holdings.take(slice(1, None))
+    changes = custodian.compare_holdings(book.holdings, new)
+
+    def fail(*args):
+        raise OSError("journal not writable (simulated)")
+    monkeypatch.setattr(custodian, "append_journal", fail)
+    with pytest.raises(OSError):
+        custodian.replace_holdings(book, new, changes, "custodian.csv")
+    assert (demo_copy / "holdings.csv").read_bytes() == original
+    assert not journal_path(demo_copy).exists()
+
+
+def test_journal_is_append_only(demo_copy):
+    first = append_journal(demo_copy, [JournalEntry(dt.date(2026, 11, 3), "buy", "X1", 1e6, -995_000.0, 99.5, "ladder fill")])
+    text = journal_path(demo_copy).read_text(encoding="utf-8")
+    append_journal(demo_copy, [JournalEntry(dt.date(2026, 11, 20), "sell", "X1", 1e6, 996_000.0, 99.6, "raise cash")])
+    after = journal_path(demo_copy).read_text(encoding="utf-8")
+    assert after.startswith(text) and after.count("\n") == 2
+    entries = read_journal(demo_copy)
+    assert entries[0] == first[0] and first[0].recorded
+    assert [e.action for e in entries] == ["buy", "sell"] and entries[1].amount == 996_000.0
+    assert JournalEntry(dt.date(2026, 11, 1), "note").to_json()["face"] is None      # JSON has no NaN
+    with pytest.raises(InputError, match="not one of"):
+        append_journal(demo_copy, [JournalEntry(dt.date(2026, 11, 21), "edit", "X1")])
+    assert journal_path(demo_copy).read_text(encoding="utf-8") == after
