@@ -16,18 +16,18 @@ from typing import Callable
 
 import numpy as np
 
-from ladder.analysis.check import TradeWhatIf, BookCheck, check_book, check_proposed, coverage_months
+from ladder.analysis.check import BookCheck, TradeWhatIf, check_book, check_proposed, coverage_months
 from ladder.analysis.records import clean_number
 from ladder.analysis.valuation import Valuation, settlement_date, value_book
 from ladder.book.book_file import Book
-from ladder.book.holdings import Holdings, make_holdings
+from ladder.book.holdings import Holdings
 from ladder.build.candidates import Candidates, eligible, fund_candidates, generic_candidates, read_offerings
 from ladder.build.naive import feasible, naive_ladder
 from ladder.build.positions import Positions
-from ladder.build.program import Program, build_program, RUNG_BAND
+from ladder.build.program import RUNG_BAND, Program, build_program
 from ladder.build.rungs import Rungs, make_rungs
 from ladder.build.solve import Binding, Conflict, Relaxation, Solution, binding, diagnose, relaxation, solve
-from ladder.errors import InputError, Problems
+from ladder.errors import Problems
 from ladder.policy.measures import cash_by_month
 from ladder.policy.trades import Trades, apply_trades
 
@@ -240,6 +240,8 @@ def build_ladder(book: Book, cash, rungs: str | None = None, offerings=None, all
     cands, cand_pos = _value_candidates(book, cands, settle)
     months = coverage_months(book)
     v_before = value_book(book, settle) if len(book.holdings) else None
+    if v_before is not None and not fresh:
+        check_book(book, settle, valuation=v_before)   # refuses a book the policy's rules cannot read
     existing = _positions(v_before, months, purchase=False) if v_before is not None else cand_pos.take([])
     report(0.35, "building the program")
     program = build_program(book.policy, book.cash_needs, settle, spec, existing, cands, cand_pos, cash,
@@ -273,7 +275,6 @@ def build_ladder(book: Book, cash, rungs: str | None = None, offerings=None, all
         if compliance is not None:
             after_v = compliance.after
             pos_after = _positions(after_v, months, purchase=False)
-            pos_after = replace(pos_after, yld=_after_yields(after_v, pos_after))
             after = _summary(after_v.holdings, after_v, pos_after, after_v.holdings.face, spec)
         else:
             after = before
@@ -287,10 +288,6 @@ def build_ladder(book: Book, cash, rungs: str | None = None, offerings=None, all
                          seconds=time.perf_counter() - started, **common)
     report(1.0, "done")
     return result
-
-
-def _after_yields(v: Valuation, pos: Positions) -> np.ndarray:
-    return pos.yld
 
 
 def apply_build(book: Book, result: BuildResult) -> Book:
