@@ -52,6 +52,9 @@ def main(argv: list[str] | None = None) -> int:
         return EXIT_INPUT
     except KeyboardInterrupt:
         return 130
+    except BrokenPipeError:          # output piped into a program that stopped reading (e.g. head)
+        sys.stderr.close()
+        return EXIT_OK
 
 
 if __name__ == "__main__":

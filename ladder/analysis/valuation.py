@@ -13,6 +13,7 @@ from dataclasses import dataclass, field
 from functools import cached_property
 
 import numpy as np
+from scipy import sparse
 
 from ladder.book.book_file import Book
 from ladder.book.holdings import QUOTE_NONE, Holdings
@@ -22,11 +23,14 @@ from ladder.pricing.callable import HullWhiteParams, callable_prices, option_adj
 from ladder.pricing.callable_terms import CallTerms, call_terms
 from ladder.pricing.callable import workout_yields
 from ladder.pricing.cashflows import CashFlows, cash_flows
-from ladder.pricing.curve import Curve, bootstrap
+from ladder.pricing.curve import Curve, CurveSet, bootstrap
 from ladder.pricing.quotes import Measures, cf_rows, dirty_from_quote, measures_from_dirty
 from ladder.pricing.spreads import dirty_at_spread, settle_discount, table_spreads_bp, z_spreads
 
 EFFECTIVE_SHIFT_BP = 25.0
+# A fund or sweep balance is available the next business day: one day for WAM and liquidity
+# (common practice; SEC Rule 2a-7 treats such balances as daily liquid assets).
+FUND_DAYS = 1.0
 
 
 @dataclass(frozen=True, eq=False)
@@ -43,18 +47,68 @@ class Pricer:
     def callable_rows(self) -> np.ndarray:
         return np.flatnonzero(self.holdings.callable)
 
+    @cached_property
+    def _grids(self) -> dict:
+        return {}
+
+    def _grid(self, curve_date) -> tuple[np.ndarray, sparse.csr_matrix, np.ndarray]:
+        """The flows on one curve-time grid: the distinct flow and settlement times (U,), ACT/365F
+        years from ``curve_date``; the (n, U) sparse weights, each flow's amount per 100 times its
+        spread factor exp(-z t) summed per holding and time; and each holding's settlement column."""
+        key = np.datetime64(curve_date, "D")
+        if key not in self._grids:
+            cf = self.cash_flows
+            rows, slots = np.nonzero(cf.mask)
+            days = np.concatenate([(cf.dates[rows, slots] - key).astype(np.int64),
+                                   (cf.settle - key).astype(np.int64)])
+            unique, column = np.unique(days, return_inverse=True)
+            weight = cf.amount[rows, slots] * np.exp(-self.spread[rows] * cf.years[rows, slots])
+            weights = sparse.csr_matrix((weight, (rows, column[:len(rows)])), shape=(len(cf.settle), len(unique)))
+            self._grids[key] = (unique / 365.0, weights, column[len(rows):])
+        return self._grids[key]
+
     def dirty(self, curve) -> np.ndarray:
-        """Dirty price per 100 of every holding on ``curve`` (a Curve or a CurveSet: (S, n))."""
-        discount = settle_discount(curve, self.cash_flows) if not hasattr(curve, "__len__") else np.stack(
-            [settle_discount(curve[s], self.cash_flows) for s in range(len(curve))])
-        prices = dirty_at_spread(self.cash_flows, discount, self.spread)
+        """Dirty price per 100 of every holding on ``curve`` (a Curve: (n,); a CurveSet: (S, n)).
+
+        One evaluation of the discount factors on (curves x distinct flow dates), then one sparse
+        product: price = sum amount * DF(t) / DF(t_settle) * exp(-z t), as ``dirty_at_spread``.
+        """
+        many = isinstance(curve, CurveSet)
+        times, weights, settle_column = self._grid(curve.curve_date)
+        discount = np.atleast_2d(curve.discount(times))                       # (S, U)
+        prices = (weights @ discount.T).T / discount[:, settle_column]        # (S, n)
         if self.calls is not None and len(self.callable_rows):
-            curves = [curve] if not hasattr(curve, "__len__") else [curve[s] for s in range(len(curve))]
-            model = np.stack([callable_prices(self.calls.bonds, _from_settle(c, self.cash_flows.settle[0]),
-                                              self.spread[self.callable_rows], self.params) for c in curves])
-            prices = np.array(prices, copy=True)
-            prices[..., self.callable_rows] = model if hasattr(curve, "__len__") else model[0]
-        return prices
+            settle = self.cash_flows.settle[0]
+            shared = _SharedDiscount(curve, settle) if many else None
+            discounts = [shared.of(s) for s in range(len(curve))] if many else [_from_settle(curve, settle)]
+            prices[:, self.callable_rows] = np.stack(
+                [callable_prices(self.calls.bonds, d, self.spread[self.callable_rows], self.params)
+                 for d in discounts])
+        return prices if many else prices[0]
+
+
+class _SharedDiscount:
+    """Discount functions from ``settle`` (ACT/365F years) for every curve of a CurveSet.
+
+    The callable tree asks each curve for the same times; the first request for a set of times
+    evaluates it on all the curves at once and later requests are served from that evaluation.
+    """
+
+    def __init__(self, curves: CurveSet, settle):
+        self.curves = curves
+        self.t0 = float(curves.years(np.array([settle]))[0])
+        self.base = curves.discount(np.array([self.t0]))[:, 0]
+        self.cache: dict = {}
+
+    def of(self, s: int):
+        return lambda t: self(s, t)
+
+    def __call__(self, s: int, t) -> np.ndarray:
+        t = np.asarray(t, dtype=np.float64)
+        key = (t.shape, t.tobytes())
+        if key not in self.cache:
+            self.cache[key] = self.curves.discount(t + self.t0) / self.base.reshape((-1,) + (1,) * t.ndim)
+        return self.cache[key][s]
 
 
 def _from_settle(curve: Curve, settle) -> callable:
@@ -141,7 +195,7 @@ def settlement_date(book: Book, at: dt.date | None) -> dt.date:
     if settle < book.valuation_date:
         problems.add("--at", 0, 0, f"{settle} is before the book's valuation date {book.valuation_date}; "
                                    "the curve and prices are as of that date")
-    matured = book.holdings.maturity <= np.datetime64(settle)
+    matured = (book.holdings.maturity <= np.datetime64(settle)) & (book.holdings.kind != "fund")
     for row, hid, mat in zip(book.holdings.row[matured], book.holdings.id[matured], book.holdings.maturity[matured]):
         problems.add(str(book.files["holdings"]), int(row), 0,
                      f"holding {hid} matures on {mat}, on or before the settlement date {settle}")
@@ -211,7 +265,7 @@ def value_book(book: Book, at: dt.date | None = None) -> Valuation:
         market_value=dirty * face, measures=measures, dv01=measures.modified * dirty * face * 1e-4,
         book_value=book_value, unrealized_gain=clean * face - book_value, book_yield=_book_yields(h),
         spread=spread, effective_duration=eff_dur, effective_convexity=eff_cx,
-        days_to_maturity=days_between(np.datetime64(settle), h.maturity),
+        days_to_maturity=np.where(h.kind == "fund", FUND_DAYS, days_between(np.datetime64(settle), h.maturity)),
         priced_from=np.where(quoted | (h.kind == "fund"), "quote", "curve").astype(object),
         option_value=option_value, yield_to_worst=ytw, yield_to_first_call=ytfc)
 

@@ -207,9 +207,12 @@ def load_book(folder) -> Book:
     holdings = None
     if valuation is not None:
         holdings, _ = read_holdings(_holdings_path(files, named), valuation, problems)
-    curve = _collect(problems, read_curve, files["curve"])
-    policy = _collect(problems, load_policy, files["policy"])
-    needs = _collect(problems, read_cash_needs, files["cash_needs"])
+    for key in ("curve", "policy", "cash_needs"):
+        if not files[key].exists():
+            problems.add(str(files[key]), 0, 0, f"file not found; a book needs its {key} file (see docs/formats.md)")
+    curve = _collect(problems, read_curve, files["curve"]) if files["curve"].exists() else None
+    policy = _collect(problems, load_policy, files["policy"]) if files["policy"].exists() else None
+    needs = _collect(problems, read_cash_needs, files["cash_needs"]) if files["cash_needs"].exists() else None
     scenarios: tuple[Scenario, ...] = ()
     if curve is not None and files["scenarios"].exists():
         scenarios = _collect(problems, read_scenarios, files["scenarios"], curve) or ()

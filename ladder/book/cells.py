@@ -55,6 +55,6 @@ class CellReader:
             if text.casefold() == str(option).casefold():
                 return str(option)
         close = difflib.get_close_matches(text, [str(a) for a in allowed], n=1, cutoff=0.6)
-        hint = f"; did you mean {close[0]!r}?" if close else ""
-        self.error(row, column, f"unknown {name} {text!r}{hint} Known: {', '.join(map(str, allowed))}")
+        hint = f" (did you mean {close[0]!r}?)" if close else ""
+        self.error(row, column, f"unknown {name} {text!r}{hint}; known: {', '.join(map(str, allowed))}")
         return None

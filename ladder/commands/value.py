@@ -8,6 +8,8 @@ from ladder.book.book_file import load_book
 from ladder.commands.common import add_book
 from ladder.commands.output import console, fmt, print_caution, write_csv, write_json
 
+WIDE_TABLE = 190   # characters the full table needs; narrower terminals get the essential columns
+NARROW_COLUMNS = ("id", "maturity_date", "face", "clean_price", "ytm_pct", "effective_duration")
 HELP = "value every holding at a settlement date: prices, yields, duration, convexity, DV01, totals"
 
 
@@ -33,17 +35,22 @@ def _table(book, valuation) -> None:
     from rich.table import Table
 
     con = console()
-    table = Table(title=f"{book.name}: valuation at {valuation.as_of}", header_style="bold", show_lines=False)
+    from rich import box
+
+    table = Table(title=f"{book.name}: valuation at {valuation.as_of}", header_style="bold", box=box.SIMPLE_HEAD,
+                  pad_edge=False)
     columns = [("id", "Id", None), ("sector", "Sector", None), ("maturity_date", "Maturity", None),
                ("coupon_pct", "Cpn %", 3), ("face", "Face", 0), ("clean_price", "Clean", 4),
                ("accrued", "Accrued", 4), ("market_value", "Market value", 0), ("ytm_pct", "Yield %", 3),
                ("modified_duration", "Mod dur", 3), ("effective_duration", "Eff dur", 3),
                ("convexity", "Convexity", 3), ("dv01", "DV01", 0), ("spread_bp", "Spread bp", 1),
                ("unrealized_gain", "Unrealized", 0)]
-    for _, title, digits in columns:
-        table.add_column(title, justify="left" if digits is None else "right")
+    if con.width < WIDE_TABLE:
+        columns = [c for c in columns if c[0] in NARROW_COLUMNS]
+    for key, title, digits in columns:
+        table.add_column(title, justify="left" if digits is None else "right", no_wrap=True)
     for record in holding_records(valuation):
-        marks = (" *" if record["callable"] else "") + (" (curve)" if record["priced_from"] == "curve" else "")
+        marks = ("*" if record["callable"] else "") + ("~" if record["priced_from"] == "curve" else "")
         table.add_row(*[(str(record[key]) + (marks if key == "id" else "")) if digits is None
                         else fmt(record[key], digits) for key, _, digits in columns])
     con.print(table)
@@ -55,6 +62,6 @@ def _table(book, valuation) -> None:
         f"{fmt(t['modified_duration'], 3)}  effective duration {fmt(t['effective_duration'], 3)}  convexity "
         f"{fmt(t['convexity'], 3)}  effective convexity {fmt(t['effective_convexity'], 3)}  DV01 {fmt(t['dv01'], 0)}"
         f"  WAM {fmt(t['wam_days'], 0)} days")
-    con.print("* callable: valued with the Hull-White tree at its option-adjusted spread (spread bp is the OAS); "
-              "(curve): no quote, priced from the curve plus the book's spread table.")
+    con.print("* callable: valued with the Hull-White tree at its option-adjusted spread (spread bp is the OAS).\n"
+              "~ no quote: priced from the curve plus the book's spread table.")
     print_caution(con)

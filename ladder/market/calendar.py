@@ -17,7 +17,7 @@ import numpy as np
 
 from ladder.market.dates import NAT, to_days
 
-FIRST_YEAR, LAST_YEAR = 1990, 2080
+FIRST_YEAR, LAST_YEAR = 1996, 2080   # the SIFMA schedule in `holidays` starts in 1996
 
 
 @lru_cache(maxsize=1)

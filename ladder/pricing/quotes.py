@@ -3,7 +3,8 @@ by kind. Everything per 100 face, rates decimal, vectorized over holdings.
 
 Yield bases (each holding's ``ytm`` is on its own basis; ``bey`` puts all on one):
 - ``fixed`` / ``zero``: street yield compounded at the coupon frequency (``yield_math``);
-- ``discount``: bond-equivalent yield (the Treasury investment rate, 31 CFR 356 App. B VI.D);
+- ``discount``: bond-equivalent yield (the Treasury investment rate, 31 CFR 356 App. B VI.D, on a
+  365-day year, or 366 when the year after the settlement date contains 29 February, VI.D.1);
 - ``at_maturity``: simple yield on the holding's day count (the money-market yield for ACT/360);
 - ``fund``: the stated yield; price always 100 per 100 (1.00 a share), no rate sensitivity.
 ``bey``: semiannual bond-equivalent yield, for portfolio totals: 2((1 + y/f)^(f/2) - 1) for coupon
@@ -12,7 +13,7 @@ bonds, and App. B VI.D's investment-rate formulas on the dirty price and payoff 
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, fields, replace
 
 import numpy as np
 
@@ -21,9 +22,9 @@ from ladder.market.dates import days_between
 from ladder.market.daycount import year_fraction_by_row
 from ladder.pricing import money_market as mm
 from ladder.pricing.cashflows import CashFlows
+from ladder.pricing.treasury import year_basis
 from ladder.pricing.yield_math import dirty_from_yield, measures_at_yield, yield_from_dirty
 
-BILL_YEAR_DAYS = 365
 
 
 @dataclass(frozen=True, eq=False)
@@ -57,13 +58,14 @@ def dirty_from_quote(h: Holdings, cf: CashFlows) -> np.ndarray:
     coupon, discount, at_maturity, fund = _kinds(h)
     q, kind = h.quote, h.quote_type
     days = _days(cf, h)
+    year_days = year_basis(cf.settle)
     payoff = cf.amount.sum(axis=1)
     dirty = np.full(len(h), np.nan)
     dirty = np.where(kind == QUOTE_PRICE, q + cf.accrued, dirty)
     with np.errstate(invalid="ignore", divide="ignore"):
         dirty = np.where((kind == QUOTE_YIELD) & coupon, dirty_from_yield(cf, np.nan_to_num(q), h.frequency), dirty)
         dirty = np.where((kind == QUOTE_YIELD) & discount,
-                         mm.price_from_bond_equivalent_yield(q, days, payoff, BILL_YEAR_DAYS), dirty)
+                         mm.price_from_bond_equivalent_yield(q, days, payoff, year_days), dirty)
         dirty = np.where((kind == QUOTE_YIELD) & at_maturity,
                          payoff / (1.0 + q * _simple_term(cf, h)), dirty)
         dirty = np.where((kind == QUOTE_DISCOUNT) & discount, mm.discount_price(q, days), dirty)
@@ -85,10 +87,11 @@ def measures_from_dirty(h: Holdings, cf: CashFlows, dirty) -> Measures:
     single = discount | at_maturity
     payoff = cf.amount.sum(axis=1)
     days = _days(cf, h)
-    tau = np.where(discount, days / BILL_YEAR_DAYS, _simple_term(cf, h))
+    year_days = year_basis(cf.settle)
+    tau = np.where(discount, days / year_days, _simple_term(cf, h))
     with np.errstate(invalid="ignore", divide="ignore"):
         simple_yield = (payoff / dirty - 1.0) / tau
-        bill_bey = mm.bond_equivalent_yield(dirty, days, payoff, BILL_YEAR_DAYS)
+        bill_bey = mm.bond_equivalent_yield(dirty, days, payoff, year_days)
         risk = mm.single_payment_risk(simple_yield, tau, payoff)
         ytm = np.where(discount, bill_bey, np.where(at_maturity, simple_yield, ytm))
         macaulay = np.where(single, risk.macaulay_duration, macaulay)
@@ -102,6 +105,4 @@ def measures_from_dirty(h: Holdings, cf: CashFlows, dirty) -> Measures:
 
 def cf_rows(cf: CashFlows, rows) -> CashFlows:
     """The cash flows of the holdings selected by ``rows``."""
-    from dataclasses import fields, replace
-
     return replace(cf, **{f.name: getattr(cf, f.name)[rows] for f in fields(cf)})
