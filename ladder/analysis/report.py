@@ -29,6 +29,7 @@ from ladder.report import history
 from ladder.report.accounting import Accounting, accounting_figures
 from ladder.report.allocation import issuer_table, maturity_table, rating_table, sector_table
 from ladder.report.certificate import certificate_section
+from ladder.report.departed import departed_income, departed_table, previous_holdings
 from ladder.report.history import InputFile, Snapshot, input_file
 from ladder.report.holdings_table import activity_table, holdings_table
 from ladder.report.income import income_projection, liquidity_statement
@@ -94,11 +95,14 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
     previous = history.previous_snapshot(book, v.as_of)
     start = previous.as_of if previous else previous_month_end(v.as_of)
     a = accounting_figures(v, start)
-    figures = summary_figures(v, a, previous)
+    journal = read_journal(book)
+    activity = entries_between(journal, start, v.as_of)
+    departed = departed_income(previous_holdings(book, previous) if previous else None, v.holdings.id, start,
+                               v.as_of, activity)
+    figures = summary_figures(v, a, previous, departed)
     year = history.year_snapshots(book, v.as_of)
     inputs = input_files(book)
     checksums = {f.role: (f.name, f.sha256) for f in inputs}
-    activity = entries_between(read_journal(book), start, v.as_of)
     weight = position_measures(book, v).basis_values(book.policy.basis)
     ladder_table, ladder_chart = maturity_table(book, v.as_of, v.market_value)
     shocks = shock_book(book, v.as_of, parallel_set(book.curve))
@@ -119,8 +123,10 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
                 ("Amortized cost by the effective-interest method; a premium on a callable is amortized to its "
                  "earliest call at the call price and reset if the bond is not called. Book yield: the effective "
                  "yield at purchase. Market yield: bond-equivalent yield at today's price. Share: of market value.",)),
-        Section("activity", "Activity", (activity_table(activity),),
-                (f"Every entry of {journal_path(book).name} dated in the period {period}, as recorded.",)),
+        Section("activity", "Activity", (activity_table(activity), departed_table(departed)),
+                (f"Every entry of {journal_path(book).name} dated in the period {period}, as recorded.",
+                 "Holdings in last month's snapshot that are no longer held earned interest until they left; "
+                 "that income is part of the period's income in the summary.")),
         Section("allocation", "Allocation against limits",
                 (sector_table(book, check, v.market_value, weight), issuer_table(book, check, v.market_value, weight),
                  rating_table(book, check, v.market_value, weight)),

@@ -14,6 +14,7 @@ import numpy as np
 
 from ladder.analysis.valuation import Valuation
 from ladder.report.accounting import Accounting
+from ladder.report.departed import Departed
 from ladder.report.history import Snapshot
 from ladder.report.model import Column, Table
 
@@ -30,6 +31,7 @@ FIGURES = (
     ("coupon_income", "Coupon interest accrued in the period", "money", True),
     ("amortization", "Accretion of discount less amortization of premium", "money", True),
     ("interest_earned", "Income for the period (interest earned)", "money", True),
+    ("departed_income", "of which: holdings that left the book in the period", "money", True),
     ("market_yield", "Market yield (bond-equivalent, weighted by market value)", "pct", False),
     ("book_yield", "Book yield (effective yield, weighted by amortized cost)", "pct", False),
     ("effective_duration", "Effective duration, years", "years", False),
@@ -45,16 +47,19 @@ def _weighted(values, weights) -> float:
     return float((values[ok] * weights[ok]).sum() / total) if total else math.nan
 
 
-def summary_figures(v: Valuation, a: Accounting, previous: Snapshot | None) -> dict[str, float]:
-    """This month-end's figures by name (see FIGURES)."""
+def summary_figures(v: Valuation, a: Accounting, previous: Snapshot | None, departed: Departed) -> dict[str, float]:
+    """This month-end's figures by name (see FIGURES); the period's income includes ``departed``'s."""
     t = v.totals
+    gone = float(departed.interest_earned.sum())
     face = v.holdings.face / 100.0
     return {
         "beginning_market_value": previous.figures["market_value"] if previous else math.nan,
         "market_value": t.market_value, "clean_value": float((v.clean * face).sum()), "accrued": t.accrued,
         "amortized_cost": a.total("amortized_cost"), "unrealized_gain": a.total("unrealized_gain"),
-        "face": t.face, "count": float(t.count), "coupon_income": a.total("coupon_income"),
-        "amortization": a.total("amortization"), "interest_earned": a.total("interest_earned"),
+        "face": t.face, "count": float(t.count),
+        "coupon_income": a.total("coupon_income") + float(departed.coupon_income.sum()),
+        "amortization": a.total("amortization") + float(departed.amortization.sum()),
+        "interest_earned": a.total("interest_earned") + gone, "departed_income": gone,
         "market_yield": t.ytm, "book_yield": _weighted(a.book_yield, a.amortized_cost),
         "effective_duration": t.effective_duration, "modified_duration": t.modified_duration,
         "wam_days": t.wam_days, "dv01": t.dv01,

@@ -81,6 +81,14 @@ def test_second_month_shows_the_first_as_last_month(first_month):
     assert activity.total[4] == pytest.approx(sum(e.amount for e in journal))
     assert all(r[1] != "note" for r in activity.rows)           # November's note is not December's activity
 
+    # December's income, including the holdings that matured during it, is what November's income
+    # projection expected for December: nothing was bought and the funds kept their balances
+    projected = first.report.section("income").tables[0].row("2026-12")[1]
+    assert income[1] == pytest.approx(projected, rel=1e-12)
+    departed = second.report.section("activity").tables[1]
+    assert sorted(r[0] for r in departed.rows) == sorted(e.holding for e in entries)
+    assert last.row("of which: holdings that left the book in the period")[1] == pytest.approx(departed.total[5])
+
     # the first month-end is written again exactly as it was, though the book has moved on
     assert past_report(folder, FIRST).to_json() == first.report.to_json()
     assert not math.isnan(second.snapshot.figures["beginning_market_value"])
