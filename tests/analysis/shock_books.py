@@ -1,0 +1,56 @@
+"""Books for the shock tests: the demo book, or its settings with other holdings, curve or date.
+
+``book_with`` keeps the demo's spreads and model and replaces what a test needs; ``notes`` makes
+option-free holdings priced from the curve (no quotes), so a test controls every price.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+from dataclasses import replace
+from functools import lru_cache
+from pathlib import Path
+
+import numpy as np
+
+from ladder.book.book_file import Book, load_book
+from ladder.book.holdings import Holdings, make_holdings
+from ladder.pricing.curve import ParCurve
+
+DEMO = Path(__file__).resolve().parents[2] / "demo_portfolios" / "tessaline"
+TENORS = ("1M", "3M", "6M", "1Y", "2Y", "3Y", "5Y", "7Y", "10Y", "20Y", "30Y")
+UPWARD_PCT = (3.60, 3.70, 3.80, 3.90, 4.00, 4.10, 4.25, 4.40, 4.55, 4.80, 4.90)   # smooth, rising
+
+
+@lru_cache(maxsize=1)
+def demo_book() -> Book:
+    return load_book(DEMO)
+
+
+def book_with(holdings: Holdings | None = None, par_yields_pct=None, tenors=TENORS, valuation_date=None,
+              scenarios=()) -> Book:
+    """The demo book with other holdings, par curve (percent), valuation date or scenarios."""
+    book = demo_book()
+    curve = book.curve if par_yields_pct is None else ParCurve(tuple(tenors), np.asarray(par_yields_pct) / 100)
+    return replace(book, holdings=book.holdings if holdings is None else holdings, curve=curve,
+                   valuation_date=valuation_date or book.valuation_date, scenarios=tuple(scenarios))
+
+
+def notes(maturities, coupons_pct, sector: str = "treasury", kind: str = "fixed", issue_dates=None,
+          face: float = 1_000_000.0, prefix: str = "T") -> Holdings:
+    """Option-free holdings with no quote (priced from the curve plus the demo's spread table)."""
+    n = len(maturities)
+    return make_holdings(
+        id=[f"{prefix}{i:03d}" for i in range(n)], sector=[sector] * n, kind=[kind] * n, face=[face] * n,
+        maturity=[str(m) for m in maturities], coupon=np.asarray(coupons_pct, dtype=float) / 100,
+        issue_date=None if issue_dates is None else [str(d) for d in issue_dates],
+        rating=["AA+"] * n, short_rating=["A-1+"] * n, row=np.arange(2, n + 2))
+
+
+def months_after(date: dt.date, months) -> list[str]:
+    """``date`` plus each number of months (the day kept; days 1-28 only)."""
+    out = []
+    for m in months:
+        total = date.month - 1 + int(m)
+        out.append(dt.date(date.year + total // 12, total % 12 + 1, date.day).isoformat())
+    return out
