@@ -16,13 +16,11 @@ import datetime as dt
 import math
 from dataclasses import dataclass
 
-import numpy as np
-
 from ladder import __version__
 from ladder.analysis.check import check_book, position_measures
 from ladder.analysis.plan import plan_book
 from ladder.analysis.shock import shock_book
-from ladder.analysis.valuation import Valuation, value_book
+from ladder.analysis.valuation import Valuation
 from ladder.book.book_file import BOOK_FILE, Book
 from ladder.policy.results import CheckResult
 from ladder.report import history
@@ -111,10 +109,11 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
     incomes = {s.scenario: s.income for s in plan.income_at_risk}
     liquidity, liquidity_text = liquidity_statement(book, v)
     period = f"{start.isoformat()} (exclusive) to {v.as_of.isoformat()}"
-    last = previous.as_of.isoformat() if previous else "none recorded"
+    last = (f"the snapshot of {previous.as_of.isoformat()} in the history" if previous else
+            "none (no earlier month-end is recorded in the history)")
     sections = (
         Section("summary", "Summary", (summary_table(figures, previous, year),),
-                (f"Period: {period}. Last month: the snapshot of {last} in the history.",
+                (f"Period: {period}. Last month: {last}.",
                  "Year to date: the income recorded for this year's earlier month-ends plus this period's "
                  f"({len(year)} earlier month-end(s) of {v.as_of.year} in the history).",
                  "Market value includes accrued interest; unrealized gain or loss is the clean value less the "

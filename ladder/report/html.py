@@ -15,7 +15,7 @@ h1 { font-size: 1.5em; } h2 { font-size: 1.2em; border-bottom: 1px solid #999; m
 h3 { font-size: 1em; }
 table { border-collapse: collapse; font-size: 0.8em; margin-bottom: 1em; }
 th, td { border: 1px solid #bbb; padding: 2px 6px; } th { background: #eee; }
-td.n { text-align: right; font-variant-numeric: tabular-nums; } tr.total td { font-weight: bold; }
+td.n { text-align: right; white-space: nowrap; font-variant-numeric: tabular-nums; } tr.total td { font-weight: bold; }
 .cautions { border: 1px solid #999; padding: 0.5em 1em; background: #f7f7f7; }
 .signature { margin-top: 2.5em; border-top: 1px solid #000; width: 28em; padding-top: 0.2em; }
 @media print { h2 { page-break-before: always; } }
