@@ -45,7 +45,8 @@ def run(args) -> int:
                   + ", ".join(f"{name} {sha[:12]}" for name, sha in snapshot.inputs.values()))
     else:
         book = load_book(folder)
-        m = month_end_report(book, args.at)
+        with con.status("Valuing, testing the policy, shocking rates and planning cash for the month-end..."):
+            m = month_end_report(book, args.at)
         report = m.report
         if not args.no_record:
             con.print(f"Recorded the month-end {report.as_of} in {record_month_end(book, m)}")

@@ -9,6 +9,7 @@ import datetime as dt
 import math
 
 import pytest
+from report_books import copy_demo, recorded_month_end
 
 from ladder.analysis.report import month_end_report, past_report, record_month_end
 from ladder.book.book_file import load_book
@@ -48,8 +49,8 @@ def roll_to_next_month(folder, book) -> list[JournalEntry]:
     return [JournalEntry(day, "mature", hid, face, face, 100.0, "matured at par") for hid, face, day in matured]
 
 
-def test_second_month_shows_the_first_as_last_month(first_month):
-    folder, book, first = first_month
+def test_second_month_shows_the_first_as_last_month(tmp_path):
+    folder, book, first = recorded_month_end(copy_demo(tmp_path / "tessaline"))
     # one entry inside the first period, recorded before the second month-end
     append_journal(folder, [JournalEntry(dt.date(2026, 11, 20), "note", "", reason="custodian statement reconciled")])
     entries = roll_to_next_month(folder, book)
