@@ -241,8 +241,8 @@ class LadderApp(App[None]):
         view = self.current_view
         view.catch_up()
         self._show_bar()
-        focus = view.query("FrameTable, Input, Button, Select")
-        for widget in focus:
+        # A table first: single-letter view keys keep working; forms are one key (f) or Tab away.
+        for widget in view.query("FrameTable"):
             if widget.display and widget.focusable:
                 widget.focus()
                 break

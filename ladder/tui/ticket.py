@@ -15,7 +15,7 @@ from pathlib import Path
 import numpy as np
 
 from ladder.book.holdings_file import COLUMNS
-from ladder.errors import InputError
+from ladder.errors import InputError, Problems
 
 TICKET_FILE = "ticket.csv"
 BUY_FIELDS = ("id", "sector", "issuer", "kind", "face", "maturity_date", "coupon_pct", "rating", "short_rating",
@@ -35,14 +35,19 @@ class Ticket:
 
 
 def ticket_row(ticket: Ticket, holdings) -> dict[str, str]:
-    """The trades-file row: a sell takes sector, issuer and maturity from the holding it names."""
+    """The trades-file row: a sell takes sector, issuer and maturity from the holding it names
+    (InputError when the book holds no such id: there is nothing to complete the row from)."""
     row = {name: ticket.fields.get(name, "").strip() for name in COLUMNS}
     if ticket.action == "sell":
         hit = np.flatnonzero(holdings.id == row["id"])
-        if len(hit):
-            i = int(hit[0])
-            row.update(sector=str(holdings.sector[i]), issuer=str(holdings.issuer[i]),
-                       maturity_date=str(holdings.maturity[i]))
+        if not len(hit):
+            problems = Problems()
+            problems.add(TICKET_FILE, 2, COLUMNS.index("id") + 1,
+                         f"{row['id'] or 'an empty id'} is not in the book, so it cannot be sold")
+            problems.raise_if_any()
+        i = int(hit[0])
+        row.update(sector=str(holdings.sector[i]), issuer=str(holdings.issuer[i]),
+                   maturity_date=str(holdings.maturity[i]))
     row["action"] = ticket.action
     return row
 
@@ -53,12 +58,13 @@ def check_ticket(book, ticket: Ticket, valuation=None):
     from ladder.analysis.check import check_proposed
     from ladder.policy.trades import read_trades
 
+    row = ticket_row(ticket, book.holdings)
     with tempfile.TemporaryDirectory(prefix="ladder-ticket-") as folder:
         path = Path(folder) / TICKET_FILE
         with open(path, "w", newline="", encoding="utf-8") as out:
             writer = csv.DictWriter(out, fieldnames=list(COLUMNS) + ["action"])
             writer.writeheader()
-            writer.writerow(ticket_row(ticket, book.holdings))
+            writer.writerow(row)
         try:
             trades = read_trades(path, book.holdings, book.valuation_date)
         except InputError as error:

@@ -72,6 +72,7 @@ class BuilderView(View):
         Binding("ctrl+g", "solve", "Build", id="builder.solve", tooltip="Design the ladder for this cash"),
         Binding("ctrl+y", "accept", "Accept", id="builder.accept",
                 tooltip="Add the proposed trades to the book (asks first; save with ctrl+s)"),
+        Binding("f", "form", "Form", id="builder.form", tooltip="Go to the first field of the form"),
         Binding("escape", "leave_form", "Leave form", id="builder.leave", tooltip="Focus the trades table"),
     ]
 
@@ -104,7 +105,7 @@ class BuilderView(View):
                 yield Label("Sales")
                 yield Checkbox("allow selling holdings", id="builder-sales", compact=True)
             with Vertical(id="builder-state"):
-                yield Static("Enter the cash and press ctrl+g to build. Esc leaves the form.", id="builder-status")
+                yield Static("f goes to the form: enter the cash, press ctrl+g to build; Esc leaves the form.", id="builder-status")
                 yield ProgressBar(total=1.0, show_eta=False, id="builder-progress")
         yield Static(id="builder-result", classes="totals")
         with Horizontal(classes="split"):
@@ -128,6 +129,9 @@ class BuilderView(View):
         if action == "solve":
             return (self.results is not None and self.results.valuation is not None) or None
         return True
+
+    def action_form(self) -> None:
+        self.query_one("#builder-cash").focus()
 
     def action_leave_form(self) -> None:
         self.query_one("#builder-trades", FrameTable).focus()

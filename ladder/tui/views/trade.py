@@ -74,6 +74,7 @@ class TradeView(View):
         Binding("ctrl+t", "check_ticket", "Check trade", id="trade.check", tooltip="Every rule before and after"),
         Binding("ctrl+b", "commit", "Book trade", id="trade.commit",
                 tooltip="Apply the checked trade to the book (asks first; save with ctrl+s)"),
+        Binding("f", "form", "Form", id="trade.form", tooltip="Go to the first field of the form"),
         Binding("escape", "leave_form", "Leave form", id="trade.leave", tooltip="Focus the results table"),
     ]
 
@@ -100,7 +101,7 @@ class TradeView(View):
                 with Horizontal(classes="buttons"):
                     yield Button("Check ^t", id="ticket-check", variant="primary", compact=True)
                     yield Button("Book ^b", id="ticket-commit", compact=True)
-                yield Static("Tab moves between fields; Esc leaves the form (then the view keys work).",
+                yield Static("f goes to the form, Tab moves between fields, Esc leaves the form.",
                              classes="hint")
             with Vertical(id="ticket-result"):
                 yield Static("Fill in a trade and press ctrl+t: every rule and the risk before and after appear "
@@ -175,6 +176,9 @@ class TradeView(View):
         if action == "check_ticket":
             return (self.results is not None and self.results.valuation is not None) or None
         return True
+
+    def action_form(self) -> None:
+        self.query_one("#ticket-action").focus()
 
     def action_leave_form(self) -> None:
         self.query_one("#ticket-table", FrameTable).focus()

@@ -1,0 +1,142 @@
+"""The app shell: keys switch views, the palette lists every view, bindings carry ids and
+descriptions, unavailable actions are greyed out, stale results are dropped, quitting with changes
+asks, and the command line never loads Textual for the reporting commands."""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+
+from conftest import drive
+from ladder import CAUTION
+from ladder.demo import DEMO_BOOK
+
+
+def test_keys_switch_every_view_and_focus_follows(demo_book):
+    from ladder.tui.app import VIEWS
+
+    seen = {}
+
+    async def script(app, pilot):
+        for name, key, _ in VIEWS:
+            await pilot.press(key)
+            await pilot.pause()
+            seen[name] = (app.query_one("#views").current, app.current_view.id,
+                          app.focused is not None and app.current_view in app.focused.ancestors_with_self)
+        await pilot.press(VIEWS[0][1])
+
+    drive(demo_book, script)
+    assert seen == {name: (name, name, True) for name, _, _ in VIEWS}
+
+
+def test_palette_lists_every_view_and_bindings_have_ids(demo_book):
+    from ladder.tui.app import VIEWS, LadderApp
+
+    titles = []
+
+    async def script(app, pilot):
+        titles.extend(command.title for command in app.get_system_commands(app.screen))
+
+    drive(demo_book, script)
+    for _, _, cls in VIEWS:
+        assert f"Show {cls.TITLE}" in titles
+    keys = {b.key for b in LadderApp.BINDINGS}
+    assert {key for _, key, _ in VIEWS} <= keys and "question_mark" in keys
+    for owner in [LadderApp] + [cls for _, _, cls in VIEWS]:
+        for binding in owner.BINDINGS:
+            assert binding.id and binding.description, (owner.__name__, binding.key)
+
+
+def test_caution_is_always_on_screen_and_keys_panel_toggles(demo_book):
+    shown = []
+
+    async def script(app, pilot):
+        shown.append(str(app.query_one("#caution").render()))
+        await pilot.press("question_mark")
+        await pilot.pause()
+        shown.append(bool(app.screen.query("HelpPanel")))
+        await pilot.press("question_mark")
+        await pilot.pause()
+        shown.append(bool(app.screen.query("HelpPanel")))
+
+    drive(demo_book, script)
+    assert shown == [CAUTION, True, False]
+
+
+def test_save_is_greyed_out_until_something_changes_and_stale_results_are_dropped(demo_book):
+    from ladder.tui.app import Computed
+
+    seen = {}
+
+    async def script(app, pilot):
+        seen["save_before"] = app.check_action("save", ())
+        current = app.results
+        app.post_message(Computed(current.generation - 1, "valuation", result="stale"))
+        await pilot.pause()
+        seen["kept"] = app.results is current and app.results.valuation != "stale"
+
+    drive(demo_book, script)
+    assert seen == {"save_before": None, "kept": True}
+
+
+def test_every_task_of_the_demo_book_lands_without_error(demo_book):
+    state = {}
+
+    async def script(app, pilot):
+        state["errors"] = dict(app.results.errors)
+        state["pending"] = set(app.results.pending)
+        state["tasks"] = set(app.results.values)
+
+    drive(demo_book, script)
+    assert state == {"errors": {}, "pending": set(), "tasks": {"valuation", "check", "shock", "plan"}}
+
+
+def test_quitting_with_changes_asks_and_stay_keeps_the_app(demo_book):
+    from ladder.tui.screens import QuitScreen
+
+    state = {}
+
+    async def script(app, pilot):
+        await pilot.press("y")                      # Curve view
+        await pilot.pause()
+        await pilot.press("plus")                   # +1 bp on the first tenor: an unsaved change
+        await pilot.pause()
+        state["unsaved"] = dict(app.unsaved)
+        await pilot.press("q")
+        await pilot.pause()
+        state["asked"] = isinstance(app.screen, QuitScreen)
+        await pilot.press("escape")                 # stay
+        await pilot.pause()
+        state["stayed"] = not isinstance(app.screen, QuitScreen) and app.is_running
+        await pilot.press("q")
+        await pilot.pause()
+        await pilot.press("d")                      # quit without saving
+        await pilot.pause()
+
+    app = drive(demo_book, script)
+    assert state["unsaved"] == {"curve": "par yields edited"}
+    assert state["asked"] and state["stayed"]
+    assert not app.is_running
+
+
+def test_quitting_without_changes_does_not_ask(demo_book):
+    async def script(app, pilot):
+        await pilot.press("q")
+        await pilot.pause()
+
+    assert not drive(demo_book, script).is_running
+
+
+def test_open_is_the_default_command_on_the_demo_book():
+    from ladder.cli import _parser
+
+    args = _parser().parse_args(["open"])
+    assert args.book == str(DEMO_BOOK)
+    assert args.run.__module__ == "ladder.commands.open"
+
+
+def test_reporting_commands_never_load_textual():
+    code = ("import sys; from ladder.cli import _parser; p = _parser(); p.parse_args(['value', 'x']); "
+            "import ladder.commands.open, ladder.tui; print(any(m.startswith('textual') for m in sys.modules))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
+    assert out.stdout.strip() == "False"

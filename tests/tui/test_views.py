@@ -1,0 +1,292 @@
+"""Every view on the demo book: the figures shown are the façade's, sorting and picking work, the
+trade ticket shows a breach for a trade that breaks a limit, the builder's accept adds holdings,
+a curve edit reaches every view, and saving writes the book atomically with a backup."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from conftest import drive, settle
+from ladder.analysis.check import check_book
+from ladder.analysis.plan import plan_book
+from ladder.analysis.shock import shock_book
+from ladder.analysis.valuation import value_book
+from ladder.book.book_file import load_book
+from ladder.risk.rungs import RUNGS, rung_index
+from ladder.tui import format as fmt
+
+
+def cells(table, key):
+    """The text of column ``key`` in screen order."""
+    return [table.frame.text[key][row] for row in table.visible_rows()]
+
+
+def test_holdings_show_the_valuation_sort_and_filter(demo_book):
+    v = value_book(demo_book)
+    seen = {}
+
+    async def script(app, pilot):
+        table = app.query_one("#holdings-table")
+        seen["rows"] = table.row_count
+        seen["ids"] = cells(table, "id")
+        seen["mv"] = cells(table, "market_value")
+        seen["ytm"] = cells(table, "ytm")
+        seen["totals"] = str(app.query_one("#holdings-totals").render())
+        columns = [c.key for c in table.frame.columns]
+        await pilot.press(*["right"] * columns.index("market_value"), "s")
+        await pilot.pause()
+        seen["sorted_desc"] = list(table.visible_rows())
+        await pilot.press("s")
+        await pilot.pause()
+        seen["sorted_asc"] = list(table.visible_rows())
+        await pilot.press("slash", *"municipal")
+        await pilot.pause()
+        seen["filtered"] = cells(table, "sector")
+        await pilot.press("enter", "escape")
+        await pilot.pause()
+        seen["cleared"] = table.row_count
+
+    drive(demo_book, script)
+    assert seen["rows"] == len(v.holdings) == seen["cleared"]
+    assert seen["ids"] == list(v.holdings.id)
+    assert seen["mv"] == [fmt.money(x) for x in v.market_value]
+    assert seen["ytm"] == [fmt.percent(x) for x in v.measures.ytm]
+    assert fmt.money(v.totals.market_value) in seen["totals"] and fmt.money(v.totals.dv01) in seen["totals"]
+    assert seen["sorted_desc"] == list(np.argsort(-v.market_value, kind="stable"))
+    assert seen["sorted_asc"] == list(np.argsort(v.market_value, kind="stable"))
+    assert seen["filtered"] and set(seen["filtered"]) == {"municipal"}
+    assert len(seen["filtered"]) == int((v.holdings.sector == "municipal").sum())
+
+
+def test_holding_detail_opens_with_terms_flows_chart_and_calls(demo_book):
+    from ladder.tui.screens import DetailScreen
+
+    v = value_book(demo_book)
+    first_callable = int(np.flatnonzero(v.holdings.callable)[0])
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press(*["down"] * first_callable, "enter")
+        await pilot.pause()
+        screen = app.screen
+        seen["detail"] = isinstance(screen, DetailScreen) and screen.detail
+        seen["flow_rows"] = screen.query_one("#detail-flows").row_count
+        await pilot.press("escape")
+        await pilot.pause()
+        seen["back"] = not isinstance(app.screen, DetailScreen)
+
+    drive(demo_book, script)
+    d = seen["detail"]
+    assert d.id == v.holdings.id[first_callable]
+    assert seen["flow_rows"] == int(v.pricer.cash_flows.mask[first_callable].sum()) == len(d.flows.dates)
+    assert d.calls and d.call_figures[0] == ("Option-adjusted spread", f"{fmt.bp(v.spread[first_callable])} bp")
+    assert d.price_yield is not None and seen["back"]
+
+
+def test_ladder_shows_face_and_value_by_rung_with_needs(demo_book):
+    v = value_book(demo_book)
+    index = rung_index(np.datetime64(v.as_of), v.holdings.maturity)
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("l")
+        await pilot.pause()
+        table = app.query_one("#ladder-table")
+        seen.update(rungs=cells(table, "rung"), face=cells(table, "face"), mv=cells(table, "mv"),
+                    marks=cells(table, "marks"))
+
+    drive(demo_book, script)
+    assert seen["rungs"] == list(RUNGS)
+    assert seen["face"] == [fmt.money(x) for x in np.bincount(index, v.holdings.face, len(RUNGS))]
+    assert seen["mv"] == [fmt.money(x) for x in np.bincount(index, v.market_value, len(RUNGS))]
+    assert all(m for m in seen["marks"])   # every rung has a word: ok or its marks
+
+
+def test_policy_lists_every_rule_and_the_holdings_behind_one(demo_book):
+    result = check_book(demo_book).result
+    flagged = next(r for r in result.rules if r.status in ("review", "breach") and r.holdings)
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("p")
+        await pilot.pause()
+        table = app.query_one("#policy-table")
+        seen["rules"] = cells(table, "rule")
+        seen["status"] = cells(table, "status")
+        table.sort_by("status")
+        await pilot.pause()
+        seen["worst_first"] = cells(table, "rule")[0]
+        await pilot.press("home", "enter")
+        await pilot.pause()
+        findings = app.query_one("#policy-findings")
+        seen["behind"] = cells(findings, "holdings")
+        seen["focus"] = app.focused.id
+
+    drive(demo_book, script)
+    assert seen["rules"] == [r.rule for r in result.rules]
+    assert seen["status"] == [r.status.upper() if r.status in ("breach", "review") else r.status for r in result.rules]
+    assert seen["worst_first"] == flagged.rule
+    assert ", ".join(flagged.findings[0].holdings) == seen["behind"][0]
+    assert seen["focus"] == "policy-findings"
+
+
+def test_rates_show_the_shock_and_run_a_scenario_of_ones_own(demo_book):
+    r = shock_book(demo_book)
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("r")
+        await pilot.pause()
+        table = app.query_one("#rates-table")
+        seen["names"] = cells(table, "name")
+        seen["value"] = cells(table, "value")
+        seen["err"] = cells(table, "err_dc")
+        await pilot.press("e", *"+75", "enter")
+        await settle(app, pilot)
+        seen["after"] = cells(table, "name")
+
+    drive(demo_book, script)
+    assert seen["names"] == [s.name for s in r.scenarios]
+    assert seen["value"] == [fmt.money(x) for x in r.portfolio.value[0]]
+    assert seen["err"] == [fmt.money(x, sign=True) for x in r.portfolio.error_duration_convexity[0]]
+    assert seen["after"] == seen["names"] + ["+75 bp"]
+
+
+def test_cash_plan_shows_periods_shortfalls_and_income(demo_book):
+    plan = plan_book(demo_book)
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("c")
+        await pilot.pause()
+        table = app.query_one("#plan-table")
+        seen["closing"] = cells(table, "closing")
+        seen["status"] = cells(table, "status")
+        seen["income"] = cells(app.query_one("#plan-income"), "income")
+        await pilot.press("n", *"+100 bp", "enter")
+        await settle(app, pilot)
+        seen["scenario"] = app.results.get("plan").scenario
+
+    drive(demo_book, script)
+    pr = plan.projection
+    assert seen["closing"] == [fmt.money(x) for x in pr.closing_cash]
+    first = plan.first_shortfall
+    assert first is not None and seen["status"][first] == "SHORTFALL"
+    assert "SHORTFALL" not in seen["status"][:first]
+    assert seen["income"] == [fmt.money(x.income) for x in plan.income_at_risk]
+    assert seen["scenario"] == "+100 bp"
+
+
+def test_curve_edit_reaches_every_view_and_reset_undoes_it(demo_book):
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("y")
+        await pilot.pause()
+        table = app.query_one("#curve-table")
+        seen["tenors"] = cells(table, "tenor")
+        row = seen["tenors"].index("2Y")
+        await pilot.press(*["down"] * row, "enter", *"4.50", "enter")
+        await settle(app, pilot)
+        seen["par"] = float(app.book.curve.par_yields[row])
+        seen["valued_on"] = float(app.results.valuation.curve.par_curve.par_yields[row])
+        seen["shock_on"] = float(app.results.get("shock").valuation.curve.par_curve.par_yields[row])
+        seen["unsaved"] = dict(app.unsaved)
+        seen["mv"] = app.results.valuation.totals.market_value
+        await pilot.press("z")
+        await settle(app, pilot)
+        seen["reset"] = (app.book.curve is app.original_curve, dict(app.unsaved))
+
+    drive(demo_book, script)
+    assert seen["tenors"] == list(demo_book.curve.tenors)
+    assert seen["par"] == seen["valued_on"] == seen["shock_on"] == 0.045
+    edited = demo_book.with_holdings(demo_book.holdings)
+    from dataclasses import replace
+
+    from ladder.pricing.curve import ParCurve
+    yields = demo_book.curve.par_yields.copy()
+    yields[list(demo_book.curve.tenors).index("2Y")] = 0.045
+    edited = replace(demo_book, curve=ParCurve(demo_book.curve.tenors, yields))
+    assert seen["mv"] == value_book(edited).totals.market_value
+    assert seen["unsaved"] == {"curve": "par yields edited"}
+    assert seen["reset"] == (True, {})
+
+
+def _buy(view, face="40000000"):
+    view.fill("buy", id="NEW-CORP-1", sector="corporate", issuer="Brand New Issuer Inc", face=face,
+              maturity_date="2029-06-15", coupon_pct="4.5", rating="AA", price="100.5")
+
+
+def test_trade_ticket_shows_a_breach_before_committing_and_books_after(demo_book):
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("t")
+        await pilot.pause()
+        view = app.query_one("#trade")
+        seen["commit_greyed"] = view.check_action("commit", ())
+        _buy(view)                       # 40 million of one new issuer: over the 5% issuer cap
+        await pilot.press("ctrl+t")
+        await settle(app, pilot)
+        seen["status"] = str(app.query_one("#ticket-status").render())
+        seen["new"] = [c.rule for c in view.whatif.check.new_breaches]
+        seen["table_first"] = cells(app.query_one("#ticket-table"), "after")[0]
+        seen["holdings_before"] = len(app.book.holdings)
+        await pilot.press("ctrl+b", "y")
+        await settle(app, pilot)
+        seen["holdings_after"] = len(app.book.holdings)
+        seen["unsaved"] = dict(app.unsaved)
+        seen["booked_price"] = float(app.book.holdings.book_price[-1])
+
+    drive(demo_book, script)
+    assert seen["commit_greyed"] is None
+    assert "BREACH" in seen["status"] and "portfolio.issuer_max_pct" in seen["status"]
+    assert "portfolio.issuer_max_pct" in seen["new"] and seen["table_first"] == "BREACH"
+    assert seen["holdings_after"] == seen["holdings_before"] + 1
+    assert seen["unsaved"] == {"holdings": "holdings: buy 40000000 NEW-CORP-1"}
+    assert seen["booked_price"] == 100.5
+
+
+def test_trade_ticket_lists_every_problem_of_a_bad_ticket(demo_book):
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("t")
+        view = app.query_one("#trade")
+        view.fill("sell", id="NO-SUCH-HOLDING", face="1000")
+        await pilot.press("ctrl+t")
+        await settle(app, pilot)
+        seen["status"] = str(app.query_one("#ticket-status").render())
+        seen["whatif"] = view.whatif
+
+    drive(demo_book, script)
+    assert "ticket.csv:2:" in seen["status"] and "NO-SUCH-HOLDING is not in the book" in seen["status"]
+    assert seen["whatif"] is None
+
+
+def test_builder_accept_adds_the_proposed_holdings_and_save_writes_them(book_copy):
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("b", "f", *"25000000", "ctrl+g")
+        await settle(app, pilot)
+        view = app.query_one("#builder")
+        seen["status"] = view.result.status
+        seen["trades"] = list(view.result.trades.holdings.id)
+        seen["shown"] = cells(app.query_one("#builder-trades"), "id")
+        seen["before"] = len(app.book.holdings)
+        await pilot.press("ctrl+y", "y")
+        await settle(app, pilot)
+        seen["after"] = list(app.book.holdings.id)
+        await pilot.press("ctrl+s")
+        await pilot.pause()
+        seen["unsaved"] = dict(app.unsaved)
+
+    drive(book_copy, script)
+    assert seen["status"] == "built" and seen["shown"] == seen["trades"]
+    assert len(seen["after"]) == seen["before"] + len(seen["trades"])
+    assert seen["after"][-len(seen["trades"]):] == seen["trades"]
+    assert seen["unsaved"] == {}
+    reread = load_book(book_copy.folder)
+    assert list(reread.holdings.id) == seen["after"]
+    assert (book_copy.folder / "holdings.csv.bak").exists()
