@@ -1,0 +1,391 @@
+"""The cash plan of a book: ``plan_book`` projects cash, reinvestment, shortfalls and income.
+
+What it does (the rules are in ``ladder.plan``'s modules and docs/methods.md, "Cash plan"):
+- values the book (``value_book``) and moves the curve by the scenario (``--scenario`` / ``--bp``;
+  the base case is no move), which then stays or follows today's forwards (``rates``);
+- buckets the holdings' coupons and principal (with the calls the scenario expects) and the cash
+  needs by period, runs the periods (``ladder.plan.projection``) with the reinvestment rule, and
+  finds the first shortfall and the sales that would cover it;
+- for the base case and every scenario of the shock set (the parallel set, the standard non-parallel
+  set and the book's own scenarios) runs the first 12 months again: interest income on an accrual
+  basis and the 12-month total return (the income-at-risk table).
+Holdings without a book price or purchase date are amortized from the plan date at today's price.
+"""
+
+from __future__ import annotations
+
+import datetime as dt
+import difflib
+from collections.abc import Callable
+from dataclasses import dataclass
+from functools import cached_property
+
+import numpy as np
+
+from ladder.analysis.records import clean_number
+from ladder.analysis.valuation import Valuation, value_book
+from ladder.book.book_file import Book
+from ladder.book.holdings import Holdings
+from ladder.errors import InputError, Problems
+from ladder.market.dates import NAT, to_days
+from ladder.plan.calls import expected_calls
+from ladder.plan.holding_flows import HoldingCash, holding_cash
+from ladder.plan.periods import STEPS, Periods, horizon_end, make_periods
+from ladder.plan.projection import PlanSetup, Projection, project
+from ladder.plan.rates import RULES, RatePath
+from ladder.plan.reinvestment import Reinvestment, resolve_reinvestment, with_spread
+from ladder.plan.returns import HorizonReturn, holdings_value, modified_dietz
+from ladder.pricing.amortization import Amortization, CallSchedule, amortize
+from ladder.pricing.quotes import cf_rows
+from ladder.risk.scenarios import (
+    DEFAULT_PARALLEL_BP, MAX_SHIFT_BP, Scenario, parallel, parallel_set, standard_non_parallel,
+)
+
+PLAN_MONTHS = 24
+INCOME_MONTHS = 12
+MAX_MONTHS = 120
+BASE = "base"
+
+
+@dataclass(frozen=True)
+class PlanOptions:
+    """How to plan: horizon in months, period (``STEPS``), reinvestment overrides (None: book.toml),
+    and the rates rule (``RULES``)."""
+
+    months: int = PLAN_MONTHS
+    period: str = "month"
+    rule: str | None = None
+    tenor: str | None = None
+    sector: str | None = None
+    buffer: float | None = None
+    rates: str = "stay"
+
+
+@dataclass(frozen=True)
+class ExpectedCall:
+    """A callable the scenario expects to be called: holding id, call date, clean call price per 100."""
+
+    id: str
+    date: dt.date
+    price: float
+
+
+@dataclass(frozen=True, eq=False)
+class ScenarioIncome:
+    """One scenario's next 12 months: accrual income and the horizon total return."""
+
+    scenario: str
+    income: float
+    horizon: HorizonReturn
+    calls: tuple[ExpectedCall, ...]
+
+
+@dataclass(frozen=True, eq=False)
+class CashPlan:
+    """The plan: its projection under ``scenario`` and the income-at-risk table (base first)."""
+
+    book_name: str
+    as_of: dt.date
+    scenario: str
+    options: PlanOptions
+    reinvestment: Reinvestment
+    holdings: Holdings                    # the non-fund holdings, aligned with the projection
+    projection: Projection
+    calls: tuple[ExpectedCall, ...]
+    income_at_risk: tuple[ScenarioIncome, ...]
+    notes: tuple[str, ...]
+
+    @property
+    def periods(self) -> Periods:
+        return self.projection.periods
+
+    @property
+    def first_shortfall(self) -> int | None:
+        return self.projection.first_shortfall
+
+    @property
+    def base(self) -> ScenarioIncome:
+        return self.income_at_risk[0]
+
+
+def scenario_choices(book: Book) -> dict[str, Scenario]:
+    """Every scenario ``--scenario`` can name: the base case, the parallel set, the standard
+    non-parallel set and the book's own scenarios (``scenarios.csv``), by name."""
+    choices = {BASE: parallel(book.curve, 0.0)}
+    for s in (*parallel_set(book.curve, DEFAULT_PARALLEL_BP), *standard_non_parallel(book.curve), *book.scenarios):
+        if s.parallel_bp != 0.0:
+            choices.setdefault(s.name, s)
+    return choices
+
+
+def resolve_scenario(book: Book, name: str | None = None, bp: float | None = None) -> Scenario:
+    """The scenario named ``name`` (case-insensitive) or the parallel move ``bp``; the base case if
+    neither. Raises ``InputError`` for an unknown name, both given, or a move beyond +/-1000 bp."""
+    problems = Problems()
+    choices = scenario_choices(book)
+    if name is not None and bp is not None:
+        problems.add("--scenario", 0, 0, "give --scenario or --bp, not both")
+    elif bp is not None:
+        if np.isfinite(bp) and abs(bp) <= MAX_SHIFT_BP:
+            return choices[BASE] if bp == 0 else parallel(book.curve, bp)
+        problems.add("--bp", 0, 0, f"{bp:g} bp is beyond +/-{MAX_SHIFT_BP:g} bp")
+    elif name is not None:
+        found = {key.casefold(): s for key, s in choices.items()}.get(name.strip().casefold())
+        if found is not None:
+            return found
+        close = difflib.get_close_matches(name, list(choices), n=1, cutoff=0.5)
+        hint = f"; did you mean {close[0]!r}?" if close else ""
+        problems.add("--scenario", 0, 0, f"unknown scenario {name!r}{hint} Known: {', '.join(choices)}")
+    problems.raise_if_any()
+    return choices[BASE]
+
+
+def _option_problems(options: PlanOptions) -> Problems:
+    problems = Problems()
+    if not 1 <= options.months <= MAX_MONTHS:
+        problems.add("--months", 0, 0, f"the horizon must be 1 to {MAX_MONTHS} months, not {options.months}")
+    if options.period not in STEPS:
+        problems.add("--period", 0, 0, f"{options.period!r} is not a period; use one of {', '.join(STEPS)}")
+    if options.rates not in RULES:
+        problems.add("--rates", 0, 0, f"{options.rates!r} is not a rates rule; use one of {', '.join(RULES)}")
+    return problems
+
+
+class _Planner:
+    """The book-level pieces every scenario's projection shares; ``run`` does one scenario."""
+
+    def __init__(self, book: Book, valuation: Valuation, options: PlanOptions, reinvestment: Reinvestment):
+        self.book, self.valuation, self.options, self.reinvestment = book, valuation, options, reinvestment
+        full = book.holdings
+        self.as_of = np.datetime64(valuation.as_of, "D")
+        self.rows = np.flatnonzero(full.kind != "fund")
+        self.h = full.take(self.rows)
+        self.cf = cf_rows(valuation.pricer.cash_flows, self.rows)
+        self.spread = valuation.pricer.spread[self.rows]
+        fund = full.kind == "fund"
+        self.opening_cash = float(full.face[fund].sum())
+        self.base_short = float(RatePath(valuation.curve).short_rate(np.array([self.as_of]))[0])
+        table = book.spreads.get("fund", {}).get("default", 0.0) / 1e4
+        self.fund_yield = (float((full.quote[fund] * full.face[fund]).sum() / full.face[fund].sum())
+                           if fund.any() else self.base_short + table)
+        missing = np.isnan(self.h.book_price) | np.isnat(self.h.purchase_date) | (self.h.purchase_date > self.as_of)
+        self.missing = missing
+        self.purchase_price = np.where(missing, valuation.clean[self.rows], self.h.book_price)
+        self.purchase_date = np.where(missing, self.as_of, self.h.purchase_date)
+        self.calls = CallSchedule.of(self.h, str(book.files["holdings"]))
+        self._amortizations: dict[bytes, Amortization] = {}
+        self._cash: dict[tuple, HoldingCash] = {}
+        dates = to_days(book.cash_needs.date)
+        self.past_needs = int((dates < self.as_of).sum())
+        keep = dates >= self.as_of
+        self.need_dates = np.maximum(dates[keep], self.as_of + 1)
+        self.need_amounts = book.cash_needs.amount[keep]
+
+    @cached_property
+    def callable_inputs(self):
+        """For the callable rows (positions into ``h``): flows, calls with their redemption, OAS."""
+        terms = self.valuation.pricer.calls
+        where = np.flatnonzero(self.h.callable)
+        if terms is None or not len(where):
+            return where, None
+        cf = cf_rows(self.cf, where)
+        return where, (cf.dates, np.where(cf.mask, cf.amount, 0.0), cf.mask, terms.dates,
+                       terms.prices + terms.accrued, terms.mask, self.spread[where])
+
+    def path(self, scenario: Scenario) -> RatePath:
+        curve = self.valuation.curve
+        moved = curve if not np.any(scenario.shift_bp_by_tenor) else curve.shifted(scenario.shift_bp_by_tenor)
+        return RatePath(moved, self.options.rates)
+
+    def redeemed_on(self, path: RatePath) -> np.ndarray:
+        where, inputs = self.callable_inputs
+        out = np.full(len(self.h), NAT)
+        if inputs is not None:
+            out[where] = expected_calls(path, *inputs)[0]
+        return out
+
+    def amortization(self, redeemed: np.ndarray) -> Amortization:
+        key = redeemed.tobytes()
+        if key not in self._amortizations:
+            self._amortizations[key] = amortize(self.h, purchase_price=self.purchase_price,
+                                                purchase_date=self.purchase_date, calls=self.calls,
+                                                redeemed_on=redeemed, source=str(self.book.files["holdings"]))
+        return self._amortizations[key]
+
+    def holding_cash(self, periods: Periods, redeemed: np.ndarray) -> HoldingCash:
+        key = (redeemed.tobytes(), periods.boundaries.tobytes())
+        if key not in self._cash:
+            self._cash[key] = holding_cash(self.h, self.cf, periods, self.amortization(redeemed))
+        return self._cash[key]
+
+    def sale_clean(self, scenario: Scenario, path: RatePath) -> np.ndarray:
+        """Valuation prices under the scenario: today's clean prices on the moved curve."""
+        if not np.any(scenario.shift_bp_by_tenor):
+            return self.valuation.clean[self.rows]
+        return self.valuation.pricer.dirty(path.curve)[self.rows] - self.cf.accrued
+
+    def run(self, scenario: Scenario, months: int) -> tuple[Projection, RatePath, np.ndarray]:
+        periods = make_periods(self.as_of, months, self.options.period)
+        path = self.path(scenario)
+        redeemed = self.redeemed_on(path)
+        cash = self.holding_cash(periods, redeemed)
+        r = self.reinvestment
+        purchases = None if r.rule == "fund" else path.purchase_terms(periods.end, r.months, r.spread_bp / 1e4)
+        shift = path.short_rate(periods.boundaries[:-1]) - self.base_short
+        setup = PlanSetup(periods, self.h, cash, self.sale_clean(scenario, path), self.opening_cash,
+                          periods.total(self.need_dates, self.need_amounts),
+                          np.maximum(self.fund_yield + shift, 0.0), purchases, r.buffer)
+        return project(setup), path, redeemed
+
+    def income(self, scenario: Scenario) -> ScenarioIncome:
+        projection, path, redeemed = self.run(scenario, INCOME_MONTHS)
+        end = horizon_end(self.as_of, INCOME_MONTHS)
+        cash = self.holding_cash(projection.periods, redeemed)
+        params = self.valuation.pricer.params
+        held = holdings_value(self.h, projection.face_left, cash.end_date, self.spread, path, end, params,
+                              str(self.book.files["holdings"]))
+        bought = 0.0
+        if projection.purchases is not None:
+            bought = float((projection.purchases.value(path, end) * projection.reinvested / 100.0).sum())
+        start_value = float(self.valuation.market_value[self.rows].sum()) + self.opening_cash
+        end_value = held + bought + float(projection.closing_cash[-1])
+        horizon = modified_dietz(start_value, end_value, self.as_of, end, self.need_dates, -self.need_amounts,
+                                 float(projection.income.sum()))
+        return ScenarioIncome(scenario.name if scenario.parallel_bp != 0 else BASE, float(projection.income.sum()),
+                              horizon, self.expected(redeemed, end))
+
+    def expected(self, redeemed: np.ndarray, until: np.datetime64) -> tuple[ExpectedCall, ...]:
+        rows = np.flatnonzero(~np.isnat(redeemed) & (redeemed <= until))
+        a = self.amortization(redeemed)
+        return tuple(ExpectedCall(str(self.h.id[i]), redeemed[i].astype(dt.date), float(a.redemption[i]))
+                     for i in rows[np.argsort(redeemed[rows], kind="stable")])
+
+
+def income_scenarios(book: Book, chosen: Scenario) -> tuple[Scenario, ...]:
+    """The base case, then the shock set, then ``chosen`` if it is none of them."""
+    choices = list(scenario_choices(book).values())
+    names = {s.name for s in choices}
+    if chosen.name not in names and chosen.parallel_bp != 0:
+        choices.append(chosen)
+    return tuple(choices)
+
+
+def plan_book(book: Book, at: dt.date | None = None, *, scenario: str | None = None, bp: float | None = None,
+              options: PlanOptions = PlanOptions(), with_income: bool = True,
+              progress: Callable[[int, int], None] | None = None) -> CashPlan:
+    """The cash plan of ``book`` at ``at`` (default: the valuation date); see the module docstring.
+
+    ``with_income=False`` leaves out the income-at-risk table (the projection alone); ``progress``
+    is called with (scenarios done, scenarios in all) as the table is built. Raises ``InputError``
+    with every problem in the options, the scenario or the reinvestment.
+    """
+    problems = _option_problems(options)
+    chosen = reinvestment = None
+    try:
+        chosen = resolve_scenario(book, scenario, bp)
+    except InputError as error:                     # every problem is gathered before refusing
+        problems.extend(error)
+    try:
+        reinvestment = resolve_reinvestment(book, at or book.valuation_date, options.rule, options.tenor,
+                                            options.sector, options.buffer)
+    except InputError as error:
+        problems.extend(error)
+    problems.raise_if_any()
+    valuation = value_book(book, at)
+    reinvestment = with_spread(reinvestment, book, valuation.spread)
+    planner = _Planner(book, valuation, options, reinvestment)
+    projection, _, redeemed = planner.run(chosen, options.months)
+    scenarios = income_scenarios(book, chosen) if with_income else ()
+    income = []
+    for done, s in enumerate(scenarios, start=1):
+        income.append(planner.income(s))
+        if progress is not None:
+            progress(done, len(scenarios))
+    notes = []
+    if reinvestment.note:
+        notes.append(reinvestment.note)
+    if planner.missing.any():
+        notes.append(f"{int(planner.missing.sum())} holding(s) have no book price or purchase date "
+                     f"({', '.join(planner.h.id[planner.missing][:5])}{' ...' if planner.missing.sum() > 5 else ''}): "
+                     "their income is amortized from the plan date at today's price")
+    if planner.past_needs:
+        notes.append(f"{planner.past_needs} cash need(s) dated before {valuation.as_of} are past and left out")
+    last_need = planner.need_dates.max() if len(planner.need_dates) else None
+    if last_need is None or last_need < projection.periods.boundaries[-1] - 31:
+        notes.append("the cash-needs forecast ends before the horizon; later months show no needs")
+    end = projection.periods.boundaries[-1]
+    return CashPlan(book.name, valuation.as_of, chosen.name if chosen.parallel_bp != 0 else BASE, options,
+                    reinvestment, planner.h, projection, planner.expected(redeemed, end), tuple(income), tuple(notes))
+
+
+# ---- records for json and csv --------------------------------------------------------------------
+
+def _money(value) -> float | None:
+    return clean_number(value, 2)
+
+
+def period_records(plan: CashPlan) -> list[dict]:
+    """One record a period: dates, every cash column (currency units), the reinvestment yield in
+    percent, the period's accrual income, and whether cash fell below the buffer (``tight``)."""
+    pr = plan.projection
+    buffer = plan.reinvestment.buffer
+    records = []
+    for p in range(len(pr.periods)):
+        records.append({
+            "start": str(pr.periods.start[p]), "end": str(pr.periods.end[p]),
+            "opening_cash": _money(pr.opening_cash[p]), "coupons": _money(pr.coupons[p]),
+            "principal": _money(pr.principal[p]), "needs": _money(pr.needs[p]),
+            "reinvested": _money(pr.reinvested[p]), "closing_cash": _money(pr.closing_cash[p]),
+            "shortfall": _money(pr.shortfall[p]), "fund_income": _money(pr.fund_income[p]),
+            "called": _money(pr.called[p]), "sales": _money(pr.sales[p]), "unfunded": _money(pr.unfunded[p]),
+            "cash_before_sales": _money(pr.available[p]), "income": _money(pr.income[p]),
+            "reinvest_yield_pct": clean_number(100 * pr.reinvest_yield[p], 6),
+            "tight": bool(pr.available[p] < buffer),
+        })
+    return records
+
+
+def sale_records(plan: CashPlan, period: int | None = None) -> list[dict]:
+    """The sales (of one period, or all), in selling order; money in currency units, prices per 100."""
+    h, pr = plan.holdings, plan.projection
+    return [{"period_end": str(pr.periods.end[s.period]), "id": h.id[s.row], "maturity_date": str(h.maturity[s.row]),
+             "face": _money(s.face), "clean_price": clean_number(s.clean_price, 6),
+             "accrued": clean_number(s.accrued, 6), "proceeds": _money(s.proceeds),
+             "realized_gain": _money(s.realized_gain)}
+            for s in pr.sale_list if period is None or s.period == period]
+
+
+def income_records(plan: CashPlan) -> list[dict]:
+    """The income-at-risk table: one record a scenario, base first."""
+    base = plan.base.income if plan.income_at_risk else float("nan")
+    return [{"scenario": r.scenario, "income_12m": _money(r.income), "income_change": _money(r.income - base),
+             "price_change_12m": _money(r.horizon.price_change), "total_return_12m": _money(r.horizon.gain),
+             "total_return_12m_pct": clean_number(r.horizon.return_pct, 6),
+             "calls": [c.id for c in r.calls]} for r in plan.income_at_risk]
+
+
+def plan_document(plan: CashPlan) -> dict:
+    """The ``ladder plan --format json`` document."""
+    pr = plan.projection
+    first = plan.first_shortfall
+    tight = pr.tightest
+    r = plan.reinvestment
+    return {
+        "as_of": str(plan.as_of), "scenario": plan.scenario,
+        "periods": period_records(plan),
+        "income_12m": {x.scenario: _money(x.income) for x in plan.income_at_risk},
+        "total_return_12m_pct": {x.scenario: clean_number(x.horizon.return_pct, 6) for x in plan.income_at_risk},
+        "first_shortfall": None if first is None else {
+            "start": str(pr.periods.start[first]), "end": str(pr.periods.end[first]),
+            "amount": _money(pr.shortfall[first]), "unfunded": _money(pr.unfunded[first])},
+        "sales_needed": sale_records(plan, first) if first is not None else [],
+        "all_sales": sale_records(plan),
+        "tightest": {"start": str(pr.periods.start[tight]), "end": str(pr.periods.end[tight]),
+                     "net_flow": _money(pr.net_flow[tight]), "cash_before_sales": _money(pr.available[tight])},
+        "reinvestment": {"rule": r.rule, "tenor": r.tenor, "sector": r.sector, "spread_bp": clean_number(r.spread_bp, 4),
+                         "min_cash_buffer": _money(r.buffer), "rates": plan.options.rates,
+                         "period": plan.options.period},
+        "expected_calls": [{"id": c.id, "date": str(c.date), "call_price": clean_number(c.price, 6)} for c in plan.calls],
+        "income_at_risk": income_records(plan),
+        "notes": list(plan.notes),
+    }

@@ -1,0 +1,126 @@
+"""``ladder plan``: the cash plan: cash by period, reinvestment, the first shortfall and the sales that
+would cover it, and the next 12 months' income and total return under every rate scenario."""
+
+from __future__ import annotations
+
+import argparse
+
+from ladder.analysis.plan import (
+    PLAN_MONTHS, PlanOptions, income_records, period_records, plan_book, plan_document, sale_records,
+)
+from ladder.book.book_file import REINVEST_RULES, load_book
+from ladder.commands.common import add_book
+from ladder.commands.output import console, fmt, print_caution, write_csv, write_json
+from ladder.plan.periods import STEPS
+from ladder.plan.rates import RULES
+
+HELP = "project cash by period: maturities, calls, needs, reinvestment, shortfalls and 12-month income at risk"
+
+
+def _bp(text: str) -> float:
+    try:
+        return float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"{text!r} is not a number of basis points") from None
+
+
+def add_parser(subparsers) -> None:
+    parser = subparsers.add_parser("plan", help=HELP, description=HELP)
+    add_book(parser)
+    parser.add_argument("--months", type=int, default=PLAN_MONTHS, metavar="N",
+                        help=f"horizon in months (default {PLAN_MONTHS})")
+    parser.add_argument("--period", choices=STEPS, default="month", help="period length (default: month)")
+    scenario = parser.add_mutually_exclusive_group()
+    scenario.add_argument("--scenario", metavar="NAME",
+                          help="a scenario by name: base, '+100 bp', a standard or a scenarios.csv name")
+    scenario.add_argument("--bp", type=_bp, metavar="X", help="a parallel move of every par yield, basis points")
+    parser.add_argument("--reinvest", choices=REINVEST_RULES, help="reinvestment rule (default: book.toml)")
+    parser.add_argument("--tenor", metavar="TENOR", help="tenor bought by the target_tenor rule, e.g. 6M or 2Y")
+    parser.add_argument("--sector", metavar="SECTOR", help="sector bought when reinvesting (default: treasury)")
+    parser.add_argument("--buffer", type=float, metavar="AMOUNT", help="minimum cash kept before reinvesting")
+    parser.add_argument("--rates", choices=RULES, default="stay",
+                        help="the curve after today: stays as it is (default) or follows today's forwards")
+    parser.set_defaults(run=run)
+
+
+def run(args) -> int:
+    book = load_book(args.book)
+    options = PlanOptions(months=args.months, period=args.period, rule=args.reinvest, tenor=args.tenor,
+                          sector=args.sector, buffer=args.buffer, rates=args.rates)
+    plan = _with_progress(lambda progress: plan_book(book, args.at, scenario=args.scenario, bp=args.bp,
+                                                      options=options, progress=progress))
+    if args.format == "json":
+        write_json(plan_document(plan))
+    elif args.format == "csv":
+        write_csv(period_records(plan))
+    else:
+        _table(plan)
+    return 0
+
+
+def _with_progress(work):
+    """Run ``work(progress)`` with a transient progress bar on stderr (the income-at-risk scenarios)."""
+    from rich.console import Console
+    from rich.progress import Progress
+
+    with Progress(console=Console(stderr=True), transient=True) as bar:
+        task = bar.add_task("income at risk: scenarios", total=None)
+        return work(lambda done, total: bar.update(task, completed=done, total=total))
+
+
+def _table(plan) -> None:
+    from rich.table import Table
+
+    con = console()
+    r = plan.reinvestment
+    buy = "stays in the fund" if r.rule == "fund" else f"{r.tenor} {r.sector} at {r.spread_bp:+.1f} bp ({r.rule})"
+    con.print(f"[bold]{plan.book_name}[/bold]: cash plan from {plan.as_of}, scenario {plan.scenario}, "
+              f"{len(plan.periods)} {plan.options.period}s; maturing money {buy}; cash buffer {fmt(r.buffer, 0)}; "
+              f"rates {'stay as they are' if plan.options.rates == 'stay' else 'follow today' + chr(39) + 's forwards'}")
+    table = Table(header_style="bold", show_lines=False)
+    columns = [("start", "From", None), ("end", "To", None), ("opening_cash", "Opening", 0),
+               ("fund_income", "Fund inc", 0), ("coupons", "Coupons", 0), ("principal", "Principal", 0),
+               ("needs", "Needs", 0), ("sales", "Sales", 0), ("reinvested", "Reinvested", 0),
+               ("closing_cash", "Closing", 0), ("shortfall", "Shortfall", 0), ("reinvest_yield_pct", "Buy yld %", 3),
+               ("income", "Income", 0)]
+    for _, title, digits in columns:
+        table.add_column(title, justify="left" if digits is None else "right")
+    for record in period_records(plan):
+        style = "bold red" if record["shortfall"] else ("yellow" if record["tight"] else None)
+        table.add_row(*[str(record[k]) if d is None else fmt(record[k], d, "") for k, _, d in columns], style=style)
+    con.print(table)
+    first = plan.first_shortfall
+    pr = plan.projection
+    t = pr.tightest
+    if pr.net_flow[t] < 0:
+        con.print(f"[bold]Tight period: {pr.periods.start[t]} to {pr.periods.end[t]}[/bold]: needs exceed what comes "
+                  f"in by {fmt(-pr.net_flow[t], 0)}; cash before any sale {fmt(pr.available[t], 0)}.")
+    if first is None:
+        con.print("No shortfall: cash and maturities meet every need without a sale.")
+    else:
+        con.print(f"[bold red]First shortfall: {pr.periods.start[first]} to {pr.periods.end[first]}: "
+                  f"{fmt(pr.shortfall[first], 0)} short without a sale.[/bold red] Sell (shortest, least loss first):")
+        sales = Table(header_style="bold")
+        for title in ("Id", "Maturity", "Face", "Clean", "Proceeds", "Realized gain"):
+            sales.add_column(title, justify="left" if title in ("Id", "Maturity") else "right")
+        for s in sale_records(plan, first):
+            sales.add_row(s["id"], s["maturity_date"], fmt(s["face"], 0), fmt(s["clean_price"], 4),
+                          fmt(s["proceeds"], 0), fmt(s["realized_gain"], 0))
+        con.print(sales)
+        if pr.unfunded[first] > 0:
+            con.print(f"[bold red]{fmt(pr.unfunded[first], 0)} cannot be covered even by selling everything.[/bold red]")
+        later = int((pr.shortfall > 0).sum()) - 1
+        if later:
+            con.print(f"{later} later period(s) also need sales (shortfall column).")
+    if plan.calls:
+        con.print("Expected calls: " + "; ".join(f"{c.id} on {c.date} at {c.price:g}" for c in plan.calls))
+    income = Table(title="Next 12 months: interest income (accrual) and total return", header_style="bold")
+    for title in ("Scenario", "Income", "vs base", "Price change", "Total return", "Return %"):
+        income.add_column(title, justify="left" if title == "Scenario" else "right")
+    for x in income_records(plan):
+        income.add_row(x["scenario"], fmt(x["income_12m"], 0), fmt(x["income_change"], 0),
+                       fmt(x["price_change_12m"], 0), fmt(x["total_return_12m"], 0), fmt(x["total_return_12m_pct"], 3))
+    con.print(income)
+    for note in plan.notes:
+        con.print(f"[dim]Note: {note}[/dim]")
+    print_caution(con)
