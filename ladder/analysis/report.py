@@ -86,6 +86,14 @@ def _holding_figures(v: Valuation, a: Accounting) -> dict[str, dict]:
     return {hid: {k: _number(x[i]) for k, x in fields.items()} for i, hid in enumerate(v.holdings.id)}
 
 
+def _missing_cost_note(v: Valuation, a: Accounting) -> tuple[str, ...]:
+    missing = [str(i) for i, c in zip(v.holdings.id, a.amortized_cost) if not math.isfinite(c)]
+    if not missing:
+        return ()
+    return (f"{len(missing)} holding(s) have no book price or purchase date, so no amortized cost, unrealized gain "
+            f"or income in this report: {', '.join(missing)}. Add them to the holdings file.",)
+
+
 def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
     """The month-end report of ``book`` at ``at`` (default: its valuation date)."""
     checked = check_book(book, at)
@@ -121,7 +129,8 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
         Section("holdings", "Holdings detail", (holdings_table(v, a, str(book.files["holdings"])),),
                 ("Amortized cost by the effective-interest method; a premium on a callable is amortized to its "
                  "earliest call at the call price and reset if the bond is not called. Book yield: the effective "
-                 "yield at purchase. Market yield: bond-equivalent yield at today's price. Share: of market value.",)),
+                 "yield at purchase. Market yield: bond-equivalent yield at today's price. Share: of market value.",
+                 *_missing_cost_note(v, a))),
         Section("activity", "Activity", (activity_table(activity), departed_table(departed)),
                 (f"Every entry of {journal_path(book).name} dated in the period {period}, as recorded.",
                  "Holdings in last month's snapshot that are no longer held earned interest until they left; "

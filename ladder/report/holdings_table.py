@@ -62,7 +62,7 @@ def holdings_table(v: Valuation, a: Accounting, source: str) -> Table:
     market_yield = v.measures.bey
     rows = []
     for i in range(len(h)):
-        coupon = h.coupon[i] if h.kind[i] in ("fixed", "at_maturity") else None
+        coupon = float(h.coupon[i]) if h.kind[i] in ("fixed", "at_maturity") else None
         rows.append((h.id[i], h.issuer[i], h.sector[i], coupon, _date(h.maturity[i]), _date(calls[i]),
                      float(h.face[i]), _number(a.amortized_cost[i]), float(v.market_value[i]),
                      _number(a.unrealized_gain[i]), _number(a.book_yield[i]), _number(market_yield[i]),
