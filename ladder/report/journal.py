@@ -18,7 +18,7 @@ from ladder.book.save import write_atomic
 from ladder.errors import Problems
 
 JOURNAL_FILE = "journal.jsonl"
-ACTIONS = ("buy", "sell", "mature", "call", "add", "remove", "change", "import", "note")
+ACTIONS = ("buy", "sell", "mature", "call", "add", "remove", "change", "note")
 
 
 @dataclass(frozen=True)

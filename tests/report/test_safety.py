@@ -96,3 +96,37 @@ def test_journal_is_append_only(demo_copy):
     with pytest.raises(InputError, match="not one of"):
         append_journal(demo_copy, [JournalEntry(dt.date(2026, 11, 21), "edit", "X1")])
     assert journal_path(demo_copy).read_text(encoding="utf-8") == after
+
+
+KILLED_WRITER = """
+import datetime as dt, os, sys
+sys.path.insert(0, {tests!r})
+from ladder.report import history
+from test_safety import _snapshot
+
+def dies_midway(conn, snapshot, files):
+    key = snapshot.as_of.isoformat()
+    conn.execute("DELETE FROM figures WHERE as_of = '2026-10-31'")
+    conn.execute("INSERT INTO snapshots VALUES (?,?,?,?,?,?,?,?,?,?)",
+                 (key, key, "x", "b", "p", "1", key, "pass", "0", "{{}}"))
+    os._exit(9)                                   # the process is killed: no rollback, no commit
+
+history._write = dies_midway
+history.record_snapshot({folder!r}, _snapshot(dt.date(2026, 11, 30), 2.0), ())
+"""
+
+
+def test_history_survives_a_process_killed_inside_the_transaction(demo_copy):
+    """SQLite's rollback journal (https://www.sqlite.org/atomiccommit.html): a hot journal left by a
+    killed writer is rolled back by the next connection."""
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    record_snapshot(demo_copy, _snapshot(dt.date(2026, 10, 31), 1.0), ())
+    before = _dump(history.history_path(demo_copy))
+    script = KILLED_WRITER.format(tests=str(Path(__file__).parent), folder=str(demo_copy))
+    run = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=120)
+    assert run.returncode == 9, run.stderr
+    assert _dump(history.history_path(demo_copy)) == before
+    assert snapshot_dates(demo_copy) == [dt.date(2026, 10, 31)]
