@@ -67,8 +67,10 @@ def previous_month_end(day: dt.date) -> dt.date:
 
 def input_files(book: Book) -> tuple[InputFile, ...]:
     """Every input the report reads, with its checksum and bytes."""
-    paths = [("book", book.folder / BOOK_FILE)] + [(role, path) for role, path in book.files.items()
-                                                   if path.exists()]
+    files = dict(book.files)
+    if not files["holdings"].exists():                      # a book kept as holdings.xlsx
+        files["holdings"] = files["holdings"].with_suffix(".xlsx")
+    paths = [("book", book.folder / BOOK_FILE)] + [(role, path) for role, path in files.items() if path.exists()]
     if journal_path(book).exists():
         paths.append(("journal", journal_path(book)))
     return tuple(input_file(role, path) for role, path in paths)
