@@ -44,7 +44,6 @@ REPORT_CAUTIONS = (
     "Rate scenarios are hypothetical moves, not forecasts.",
     "The board-approved investment policy governs; where this report and the policy differ, the policy prevails.",
 )
-SECTION_KEYS = ("summary", "holdings", "activity", "allocation", "maturities", "shock", "income", "certificate")
 PLAN_INCOME = ("Next-12-month income: the cash plan's accrual income over the next 12 months under each move "
                "(ladder plan's income at risk): the holdings' interest earned, the calls each move makes likely, "
                "maturities reinvested by the book's reinvestment rule at the moved rates, which stay moved, and "
