@@ -40,7 +40,8 @@ def rule_table(check: CheckResult) -> Table:
     timing = TESTING_WORDS.get(check.testing, check.testing)
     rows = tuple((r.rule, r.text, _text(r.limit, r.unit), _text(r.actual, r.unit), r.status,
                   f"{r.basis} value" if r.basis else "not a percentage",
-                  timing + (f"; cure by {r.cure_by.isoformat()}" if r.cure_by else "")) for r in check.rules)
+                  (timing if r.unit == "pct" else f"tested on {check.as_of.isoformat()}")
+                  + (f"; cure by {r.cure_by.isoformat()}" if r.cure_by else "")) for r in check.rules)
     return Table("Rule by rule", RULE_COLUMNS, rows)
 
 
