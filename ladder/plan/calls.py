@@ -30,27 +30,40 @@ def expected_calls(path: RatePath, flow_dates, flow_amounts, flow_mask, call_dat
     n, m = call_mask.shape
     flow_dates = np.where(flow_mask, flow_dates, NAT)
     oas = np.asarray(oas, dtype=np.float64)[:, None]
+    calls = np.where(call_mask, call_dates, NAT)
+    # every discount factor the recursion needs, in two curve evaluations: flows seen from each call
+    # date (n, m, k), and each call date seen from the call before it (n, m)
+    tau = np.nan_to_num(days_between(calls[:, :, None], flow_dates[:, None, :]) / 365.0)
+    seen = flow_mask[:, None, :] & call_mask[:, :, None] & (tau > 0)
+    df = path.discount(calls[:, :, None], np.where(seen, tau, 0.0)) * np.exp(-oas[:, :, None] * tau)
+    nxt = _next_call(calls)
+    step = np.nan_to_num(days_between(calls, nxt) / 365.0)
+    df_next = path.discount(calls, np.where(np.isnat(nxt), 0.0, step)) * np.exp(-oas * step)
     ahead = np.zeros(n)                      # X_{j+1}: value at the next call date with the call option
     called = np.zeros((n, m), bool)
-    next_date = np.full(n, NAT)
     for j in range(m - 1, -1, -1):
-        c = np.where(call_mask[:, j], call_dates[:, j], NAT)
-        live = call_mask[:, j]
-        tau = np.where(flow_mask, days_between(c[:, None], flow_dates) / 365.0, 0.0)
-        upto = np.where(np.isnat(next_date)[:, None], True, flow_dates <= next_date[:, None])
-        window = flow_mask & (flow_dates > c[:, None]) & upto
-        g = path.discount(np.where(live, c, call_dates[:, 0])[:, None], np.where(window, tau, 0.0))
-        hold = np.where(window, flow_amounts * g * np.exp(-oas * tau), 0.0).sum(axis=1)
-        step = np.where(np.isnat(next_date), 0.0, days_between(c, next_date) / 365.0)
-        g_next = path.discount(np.where(live, c, call_dates[:, 0]), np.where(live, step, 0.0))
-        hold = hold + np.where(np.isnat(next_date), 0.0, g_next * np.exp(-oas[:, 0] * step) * ahead)
+        live, last = call_mask[:, j], np.isnat(nxt[:, j])
+        window = seen[:, j] & (last[:, None] | (flow_dates <= nxt[:, j, None]))
+        hold = np.where(window, flow_amounts * df[:, j], 0.0).sum(axis=1)
+        hold = hold + np.where(last, 0.0, df_next[:, j] * ahead)
         redemption = call_redemption[:, j]
         called[:, j] = live & (redemption < hold)
         ahead = np.where(live, np.minimum(hold, redemption), ahead)
-        next_date = np.where(live, c, next_date)
-    today = _value_today(path, flow_dates, flow_amounts, flow_mask, next_date, ahead, oas[:, 0])
+    first_call = np.where(call_mask.any(axis=1), calls[np.arange(n), np.argmax(call_mask, axis=1)], NAT)
+    today = _value_today(path, flow_dates, flow_amounts, flow_mask, first_call, ahead, oas[:, 0])
     first = np.argmax(called, axis=1)
     return np.where(called.any(axis=1), call_dates[np.arange(n), first], NAT), today
+
+
+def _next_call(calls: np.ndarray) -> np.ndarray:
+    """The next live call date after each call slot (n, m), NaT for the last; slots are in date order."""
+    n, m = calls.shape
+    out = np.full((n, m), NAT)
+    following = np.full(n, NAT)
+    for j in range(m - 1, -1, -1):
+        out[:, j] = following
+        following = np.where(np.isnat(calls[:, j]), following, calls[:, j])
+    return out
 
 
 def _value_today(path, flow_dates, flow_amounts, flow_mask, first_call, at_first, oas) -> np.ndarray:

@@ -4,7 +4,8 @@ Rules (``book.toml`` ``[reinvest].rule``, overridden by ``--reinvest``):
 - ``longest_rung``: buy at the far end of the ladder's longest occupied rung (``ladder.risk.rungs``:
   a book whose longest holding is in the 3-5Y rung buys 5Y notes), so the ladder keeps its shape as
   the short rungs run off; in the open 5Y+ rung, the whole years that reach the longest maturity.
-  The tenor is cut back to the policy's maximum maturity (whole half-years) when it is longer;
+  The tenor is cut back to the longest within the policy's maximum maturity when it is longer (whole
+  months up to a year, whole half-years beyond); a book of funds alone buys 3M;
 - ``target_tenor``: buy at ``target_tenor``; a tenor beyond the policy's maximum maturity is refused;
 - ``fund``: hold it in the fund sector (the cash stays in the fund and earns its yield).
 The bought security is a par security of ``sector`` (default: treasury) bought at 100, priced on the
@@ -104,13 +105,16 @@ def sector_spread_bp(book: Book, sector: str, spreads: np.ndarray) -> float | No
 
 def resolve_reinvestment(book: Book, as_of: dt.date, rule: str | None = None, tenor: str | None = None,
                          sector: str | None = None, buffer: float | None = None) -> Reinvestment:
-    """The reinvestment for ``book`` on ``as_of``: book.toml's settings, each overridable; raises
-    ``InputError`` with every problem (unknown rule or sector, a bad tenor, one beyond the policy)."""
+    """The reinvestment for ``book`` on ``as_of``: book.toml's settings, each overridable (a ``tenor``
+    alone means the target_tenor rule); raises ``InputError`` with every problem (unknown rule or
+    sector, a bad tenor, one beyond the policy, a tenor with another rule)."""
     settings = book.reinvest
-    rule = settings.rule if rule is None else rule
+    problems = Problems()
+    if tenor is not None and rule not in (None, "target_tenor"):
+        problems.add("--tenor", 0, 0, f"--tenor is the tenor of the target_tenor rule, not of {rule!r}")
+    rule = ("target_tenor" if tenor is not None else settings.rule) if rule is None else rule
     sector = DEFAULT_SECTOR if sector is None else sector
     buffer = settings.min_cash_buffer if buffer is None else float(buffer)
-    problems = Problems()
     if rule not in REINVEST_RULES:
         problems.add("--reinvest", 0, 0, f"{rule!r} is not a reinvestment rule; use one of {', '.join(REINVEST_RULES)}")
     if sector not in SECTORS or sector == "fund":

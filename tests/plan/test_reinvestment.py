@@ -107,7 +107,9 @@ def test_tenor_beyond_the_policy_is_refused(tmp_path):
     (problem,) = error.value.problems
     assert problem.file == "--tenor" and "beyond the policy's maximum maturity of 5 years" in problem.message
     with pytest.raises(InputError, match="whole half-years"):
-        plan_book(book, options=PlanOptions(rule="target_tenor", tenor="15M"))
+        plan_book(book, options=PlanOptions(tenor="15M"))              # a tenor alone: the target_tenor rule
+    with pytest.raises(InputError, match="--tenor is the tenor of the target_tenor rule"):
+        plan_book(book, options=PlanOptions(rule="longest_rung", tenor="2Y"))
 
 
 def test_sector_refusals(tmp_path):
