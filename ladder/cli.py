@@ -13,7 +13,7 @@ import sys
 from ladder import CAUTION, __version__
 from ladder.errors import InputError
 
-COMMANDS = ("value", "shock", "check", "plan", "build", "report", "open")
+COMMANDS = ("value", "shock", "check", "plan", "build", "report", "custodian", "open")
 EXIT_OK, EXIT_BREACH, EXIT_INPUT = 0, 1, 2
 
 
