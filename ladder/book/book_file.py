@@ -35,6 +35,20 @@ SPREAD_BUCKETS = ("AAA", "AA", "A", "BBB", "A-1+", "A-1", "A-2", "A-3", "default
 DEFAULT_MEAN_REVERSION = 0.03
 DEFAULT_VOLATILITY = 0.01
 MAX_SPREAD_BP = 2000.0
+# Spreads over the government curve (bp) for holdings without a quote, by sector and rating bucket;
+# invented defaults of a realistic size for high-grade US paper (docs/formats.md). A [spreads]
+# table in book.toml replaces them sector by sector.
+DEFAULT_SPREADS_BP: dict[str, dict[str, float]] = {
+    "treasury": {"default": 0.0},
+    "agency": {"AAA": 10.0, "AA": 14.0, "A": 30.0},
+    "supranational": {"AAA": 12.0, "AA": 20.0, "A": 35.0},
+    "municipal": {"AAA": 22.0, "AA": 32.0, "A": 55.0, "BBB": 95.0},
+    "corporate": {"AAA": 35.0, "AA": 48.0, "A": 72.0, "BBB": 115.0},
+    "commercial_paper": {"A-1+": 12.0, "A-1": 20.0, "A-2": 40.0, "A-3": 70.0},
+    "cd": {"A-1+": 15.0, "A-1": 22.0, "A-2": 45.0, "default": 30.0},
+    "deposit": {"A-1+": 10.0, "A-1": 15.0, "A-2": 35.0, "default": 20.0},
+    "fund": {"default": 0.0},
+}
 
 
 @dataclass(frozen=True)
@@ -148,7 +162,7 @@ def _read_settings(path: Path, problems: Problems):
             files[key] = path.parent / value
         else:
             s.error(("files", key), "must be a file name in quotes")
-    spreads = {}
+    spreads = dict(DEFAULT_SPREADS_BP)
     for sector, buckets in s.table(data, "spreads", SECTORS).items():
         if not isinstance(buckets, dict):
             s.error(("spreads", sector), "must be a table of rating bucket = basis points")
