@@ -286,13 +286,14 @@ class _Lattice:
         order = np.argsort(step, kind="stable")
         step, bond, years, amount, after = step[order], bond[order], years[order], amount[order], after[order]
         bounds = np.searchsorted(step, np.arange(self.tree.n_steps + 1))
+        curve = np.asarray(self.tree.discount(years), dtype=float) if len(years) else years
         groups: list[_Events | None] = []
         for i in range(self.tree.n_steps):
             s = slice(bounds[i], bounds[i + 1])
             if s.start == s.stop:
                 groups.append(None)
                 continue
-            groups.append(_Events(bond[s], years[s], amount[s], self.tree.stub_discount(i, years[s]),
+            groups.append(_Events(bond[s], years[s], amount[s], self.tree.stub_discount(i, years[s], curve[s]),
                                   after[s], len(np.unique(bond[s])) < s.stop - s.start))
         return groups
 

@@ -105,20 +105,22 @@ class HullWhiteTree:
         w = self.width(i)
         return self.dx * np.arange(-w, w + 1)
 
-    def stub_discount(self, i: int, times: np.ndarray) -> np.ndarray:
+    def stub_discount(self, i: int, times: np.ndarray, curve_discount: np.ndarray | None = None) -> np.ndarray:
         """Node discount factors from t_i to each of ``times`` (in [t_i, t_{i+1}]), shape (len(times), nodes_i).
 
         Row k is exp(-(alpha_k + x_j) h_k) with h_k = times[k] - t_i and alpha_k fitted like alpha in the
         forward induction, so that sum_j Q_ij * row_kj equals DF(times[k]): a cash flow between grid
         times is discounted over its stub with the node's own rate and the curve is still matched
-        exactly. At h = dt the row is the node's one-step discount factor.
+        exactly. At h = dt the row is the node's one-step discount factor. ``curve_discount`` is
+        DF(times) when the caller has it already (one curve evaluation for many steps).
         """
         times = np.asarray(times, dtype=float)
         h = times - i * self.dt
         e = np.exp(-np.outer(h, self.nodes(i)))
         w = self.width(i)
         fitted = e @ self.state_prices[i, : 2 * w + 1]
-        return e * (np.asarray(self.discount(times), dtype=float) / fitted)[:, None]
+        df = self.discount(times) if curve_discount is None else curve_discount
+        return e * (np.asarray(df, dtype=float) / fitted)[:, None]
 
     def roll_back(self, i: int, values: np.ndarray, out: np.ndarray) -> None:
         """Discounted expectation at step ``i`` of ``values`` (rows, nodes_{i+1}) into ``out[:rows]``."""
