@@ -7,6 +7,7 @@ the latest ``Results``; views get ``results`` set on them and post messages for 
 
 from __future__ import annotations
 
+import asyncio
 import dataclasses
 from pathlib import Path
 
@@ -20,6 +21,7 @@ from textual.worker import get_current_worker
 from ladder import CAUTION
 from ladder.book.book_file import Book
 from ladder.tui import tasks
+from ladder.tui.executor import DaemonExecutor
 from ladder.tui.results import TASKS, Results
 from ladder.tui.screens import DetailScreen, QuitScreen
 from ladder.tui.theme import THEMES
@@ -89,6 +91,7 @@ class LadderApp(App[None]):
         yield KeyFooter()
 
     def on_mount(self) -> None:
+        asyncio.get_running_loop().set_default_executor(DaemonExecutor())
         for theme in THEMES:
             self.register_theme(theme)
         self.theme = THEMES[0].name
