@@ -9,6 +9,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+SORT_MARK = 2   # room beside a column label for the sort arrow
+
 
 @dataclass(frozen=True)
 class Column:
@@ -38,7 +40,7 @@ class Frame:
         for c in self.columns:
             cells = self.text[c.key]
             longest = max((len(s) for s in cells.tolist()), default=0)
-            widths.append(min(max(longest, len(c.label)), c.max_width))
+            widths.append(min(max(longest, len(c.label) + SORT_MARK), c.max_width))
         object.__setattr__(self, "widths", tuple(widths))
 
     def __len__(self) -> int:

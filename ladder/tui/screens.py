@@ -43,7 +43,9 @@ class DetailScreen(ModalScreen[None]):
             with Horizontal(id="detail-bottom"):
                 yield DataTable(id="detail-flows", cursor_type="row", zebra_stripes=True)
                 if d.price_yield is not None:
-                    yield Chart(id="detail-chart")
+                    with Vertical(id="detail-charts"):
+                        yield Chart(id="detail-chart")
+                        yield Chart(id="detail-error-chart")
                 else:
                     yield Static("No price/yield chart: a fund's price does not move with rates.", id="detail-chart")
             yield Static(CAUTION, classes="caution")
@@ -66,9 +68,15 @@ class DetailScreen(ModalScreen[None]):
                 plt.plot(x, py.duration.tolist(), label="duration", marker="braille")
                 plt.plot(x, py.convexity.tolist(), label="duration + convexity", marker="braille")
                 plt.title("Dirty price per 100 against yield (%)")
-                plt.xlabel("yield %")
+
+            def errors(plt) -> None:
+                plt.plot(x, (py.duration - py.exact).tolist(), label="duration - exact", marker="braille")
+                plt.plot(x, (py.convexity - py.exact).tolist(), label="duration + convexity - exact",
+                         marker="braille")
+                plt.title("Estimation error per 100 against yield (%)")
 
             self.query_one("#detail-chart", Chart).draw(paint)
+            self.query_one("#detail-error-chart", Chart).draw(errors)
 
 
 class QuitScreen(ModalScreen[str]):
