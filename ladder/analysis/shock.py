@@ -182,17 +182,20 @@ def shock_book(book: Book, at: dt.date | None = None, scenarios: Sequence[Scenar
 def _numbers(values, digits: int) -> list:
     """A float array as a JSON-ready list: rounded, None for NaN/inf."""
     values = np.asarray(values, dtype=np.float64)
-    return np.where(np.isfinite(values), np.round(values, digits), None).tolist()
+    return np.where(np.isfinite(values), np.round(values, digits) + 0.0, None).tolist()   # no -0.0
 
 
-def _group_table(t: ScenarioTotals) -> dict[str, list]:
-    """Each output field of ``t`` as nested lists [group][scenario], rounded for output."""
-    return {"base_value": _numbers(np.broadcast_to(t.base[:, None], t.value.shape), 2),
-            "value": _numbers(t.value, 2), "change": _numbers(t.change, 2),
-            "change_pct": _numbers(100 * t.relative_change, 8), "est_duration": _numbers(t.est_duration, 2),
-            "est_duration_convexity": _numbers(t.est_duration_convexity, 2),
-            "error_duration": _numbers(t.error_duration, 2),
-            "error_duration_convexity": _numbers(t.error_duration_convexity, 2)}
+def _group_table(t: ScenarioTotals) -> dict[str, np.ndarray]:
+    """Each output field of ``t``, (groups, scenarios) float arrays rounded for output."""
+    return {"base_value": (np.broadcast_to(t.base[:, None], t.value.shape), 2), "value": (t.value, 2),
+            "change": (t.change, 2), "change_pct": (100 * t.relative_change, 8), "est_duration": (t.est_duration, 2),
+            "est_duration_convexity": (t.est_duration_convexity, 2), "error_duration": (t.error_duration, 2),
+            "error_duration_convexity": (t.error_duration_convexity, 2)}
+
+
+def _nested(t: ScenarioTotals) -> dict[str, list]:
+    """``_group_table`` as nested lists [group][scenario] of JSON-ready numbers."""
+    return {key: _numbers(values, digits) for key, (values, digits) in _group_table(t).items()}
 
 
 def _record(table: dict[str, list], g: int, s: int) -> dict:
@@ -201,7 +204,7 @@ def _record(table: dict[str, list], g: int, s: int) -> dict:
 
 def scenario_records(r: ShockResult) -> list[dict]:
     """One record a scenario: the portfolio's exact value and estimates, and the breakdowns."""
-    portfolio, rungs, sectors = (_group_table(t) for t in (r.portfolio, r.by_rung, r.by_sector))
+    portfolio, rungs, sectors = (_nested(t) for t in (r.portfolio, r.by_rung, r.by_sector))
     records = []
     for s, (scenario, bp) in enumerate(zip(r.scenarios, r.parallel_bp)):
         record = {"name": scenario.name, "kind": scenario.kind, "shift_bp": bp,
@@ -249,12 +252,11 @@ def shock_rows(r: ShockResult) -> list[dict]:
     rows = []
     for level, totals in (("portfolio", r.portfolio), ("rung", r.by_rung), ("sector", r.by_sector),
                           ("holding", holdings)):
-        table = _group_table(totals)
         g, s = np.meshgrid(np.arange(len(totals.groups)), np.arange(len(r.scenarios)), indexing="ij")
         g, s = g.ravel().tolist(), s.ravel().tolist()
         columns = {"scenario": [names[j] for j in s], "shift_bp": [parallel[j] for j in s],
                    "equivalent_shift_bp": [equivalent[j] for j in s], "level": [level] * len(g),
                    "group": [totals.groups[i] for i in g],
-                   **{key: [v for per_group in values for v in per_group] for key, values in table.items()}}
+                   **{key: _numbers(np.ravel(values), digits) for key, (values, digits) in _group_table(totals).items()}}
         rows.extend(dict(zip(columns, values)) for values in zip(*columns.values()))
     return rows

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import re
 from pathlib import Path
 
 from ladder.analysis.shock import shock_book, shock_document, shock_rows, shock_scenarios
@@ -23,9 +24,12 @@ def add_parser(subparsers) -> None:
     parser = subparsers.add_parser("shock", help=HELP, description=DESCRIPTION)
     add_book(parser)
     parser.add_argument("--bp", metavar="LIST",
-                        help="parallel shifts in basis points, comma-separated; write --bp=-300,-100,0,100,300")
+                        help="parallel shifts in basis points, comma-separated: --bp=-300,-100,0,100,300")
     parser.add_argument("--scenarios", metavar="FILE", type=Path,
                         help="a scenario file (scenario,tenor,shift_bp) to run")
+    # argparse takes "-300,-100" for an option unless it looks like a negative number: let a list
+    # starting with a negative shift follow --bp after a space too.
+    parser._negative_number_matcher = re.compile(r"^-\d[\d.,\s+-]*$")
     parser.set_defaults(run=run)
 
 

@@ -3,13 +3,16 @@
 Units: money in currency units; shifts are decimals inside (1 bp = 0.0001), one per curve tenor;
 durations in years, convexities in years^2. Arrays: n holdings, S scenarios, K curve tenors.
 
-Estimates of a holding's change in value V under a scenario (see docs/methods.md, "Rate shocks"):
-- parallel move of every par yield by dy: the second-order Taylor expansion with the effective
-  duration D and effective convexity C (REFERENCES §3: dP/P ~ -D dy + C dy^2 / 2):
+Estimates of a holding's change in value V under a scenario (docs/methods.md, "Rate scenarios"):
+- parallel move of every par yield by dy: the second-order Taylor expansion of price in the rate,
+  dP/P ~ -D dy + C dy^2 / 2, with the effective duration D and effective convexity C (the
+  textbook estimate, e.g. F. J. Fabozzi, Bond Markets, Analysis, and Strategies, chapter on
+  duration and convexity; cited from memory):
   duration only ``-V D dy``; duration plus convexity ``-V D dy + V C dy^2 / 2``;
 - any other move, dy_k at tenor k: the first-order term is the key-rate expansion
   ``-V sum_k KRD_k dy_k`` (every scenario is a combination of the key-rate bumps on the curve's own
-  tenor grid, so this is the exact first-order term); the convexity term is ``V C e^2 / 2`` on the
+  tenor grid, so where the price is smooth in the par yields this is its first-order term); the
+  convexity term is ``V C e^2 / 2`` on the
   holding's exposure-weighted shift ``e = sum_k |KRD_k| dy_k / sum_k |KRD_k|``, which is dy for a
   parallel move. That takes the holding's convexity across tenors as C w w' with w its duration
   weights: exact for a parallel move and for a holding whose rate risk sits at one tenor.

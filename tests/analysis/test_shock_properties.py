@@ -1,7 +1,8 @@
 """Laws of rate shocks on option-free holdings (common practice), checked on exact revaluations.
 
-- Option-free holdings have positive convexity (REFERENCES §6: "always positive for option-free
-  bonds"), so the duration-plus-convexity estimate lies above the duration-only one.
+- Option-free holdings have positive convexity (K. Bigel, Fixed Income Mathematics, §9.34
+  "Properties of Convexity", Touro University Pressbooks), so the duration-plus-convexity estimate
+  lies above the duration-only one.
 - The duration-plus-convexity error is third order: it grows roughly with the cube of the shift.
 - For shifts of 100 bp or more the duration-plus-convexity estimate beats duration alone.
 

@@ -42,6 +42,12 @@ def test_bp_list_chooses_the_parallel_moves(capsys):
     assert [s["shift_bp"] for s in json.loads(out)["scenarios"]] == [-300.0, -100.0, 0.0, 100.0, 300.0]
 
 
+def test_bp_list_after_a_space_may_start_with_a_negative_shift(capsys):
+    code, out, _ = run(capsys, "--bp", "-50,25", "--format", "json")
+    assert code == 0
+    assert [s["shift_bp"] for s in json.loads(out)["scenarios"]] == [-50.0, 25.0]
+
+
 def test_scenarios_file_with_bp_list(capsys, tmp_path):
     path = tmp_path / "moves.csv"
     path.write_text("scenario,tenor,shift_bp\nbull steepener,3M,-80\nbull steepener,10Y,-20\n")
