@@ -59,7 +59,8 @@ class LadderSummary:
 
 @dataclass(frozen=True, eq=False)
 class BuildResult:
-    """The outcome of a build. ``status``: "built" or "infeasible" (then ``conflicts`` says why)."""
+    """The outcome of a build. ``status``: "built"; "infeasible" (then ``conflicts`` says why); or
+    "time_limit" (the solver found no ladder in its time limit, nor proved there is none)."""
 
     status: str
     as_of: dt.date
@@ -247,13 +248,19 @@ def build_ladder(book: Book, cash, rungs: str | None = None, offerings=None, all
     program = build_program(book.policy, book.cash_needs, settle, spec, existing, cands, cand_pos, cash,
                             allow_sales=allow_sales, fresh=fresh, rung_band=rung_band)
     report(0.45, "solving")
-    solution = solve(program)
     relaxed = relaxation(program)
+    solution = solve(program) if relaxed.status == "optimal" else Solution(
+        "infeasible", None, float("nan"), "the linear relaxation has no solution", 0.0)
     common = dict(as_of=settle, cash=cash, fresh=fresh, allow_sales=allow_sales and not fresh, rungs=spec,
                   candidates=cands, program=program, solution=solution, relaxation=relaxed)
+    if solution.x is None and solution.status == "time_limit":
+        report(1.0, "done")
+        return BuildResult("time_limit", trades=None, invested=0.0, before=None, after=None, compliance=None,
+                           binding=(), conflicts=(), naive_yield=None, naive_feasible=None,
+                           seconds=time.perf_counter() - started, **common)
     if solution.x is None:
         report(0.7, "no ladder fits: finding the smallest relaxation")
-        conflicts = diagnose(program)
+        conflicts = diagnose(program, integer=relaxed.status == "optimal")
         report(1.0, "done")
         return BuildResult("infeasible", trades=None, invested=0.0, before=None, after=None, compliance=None,
                            binding=(), conflicts=conflicts, naive_yield=None, naive_feasible=None,

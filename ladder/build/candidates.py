@@ -9,6 +9,9 @@ needs a quote (price, yield or discount rate): an offering is bought at its quot
 Generic candidates (no offerings file) stand for "a security of this sector and rating maturing at
 this rung's end": one per rung, authorized sector and rating bucket of the book's spread table,
 priced from the curve plus that spread, with a coupon that puts it at par on the settlement date.
+Each sector and bucket is also offered maturing at the horizon of each liquidity floor of the policy
+of 28 days or more (a four-week bill is the shortest common Treasury bill), so the floors can be met
+with securities as well as funds.
 Their ids start ``GENERIC-`` and their issuer names with ``generic``; each is its own issuer, so a
 per-issuer cap applies to each generic line (the treasurer then sources a real issuer per line).
 
@@ -41,6 +44,7 @@ GENERIC_LOT = 100_000.0        # face, the step of a generic purchase (common pr
 GENERIC_PREFIX = "GENERIC-"
 LONG_BUCKETS = ("AAA", "AA", "A", "BBB")
 BILL_MONTHS = 12               # a generic Treasury maturing within a year is a bill (discount)
+SHORTEST_DAYS = 28             # the shortest generic maturity (a four-week bill)
 
 
 @dataclass(frozen=True, eq=False)
@@ -153,21 +157,26 @@ def generic_candidates(book: Book, rungs: Rungs, settle: dt.date) -> Candidates:
     rows: dict[str, list] = {k: [] for k in ("id", "sector", "issuer", "kind", "maturity", "rating", "short_rating",
                                              "issue_date", "frequency")}
     starts = np.concatenate([[settle64], rungs.ends[:-1]])
+    floors = sorted({f.within_days for f in policy.portfolio.liquidity if f.within_days >= SHORTEST_DAYS})
+    floor_terms = [(settle64 + d, f"{d}D") for d in floors if settle64 + d <= rungs.ends[0]]
     for sector in _authorized(policy):
         rule = policy.sector(sector)
         limit = rule.max_maturity if rule is not None else None
         latest = settle64 + limit.days(settle64) if limit is not None else None
         for bucket in book.spreads.get(sector, {}):
             long_, short = (bucket, "") if bucket in LONG_BUCKETS else ("", "" if bucket == "default" else bucket)
-            for k, (start, end, label) in enumerate(zip(starts, rungs.ends, rungs.labels)):
+            terms = [(end, label, months, start) for start, end, label, months in
+                     zip(starts, rungs.ends, rungs.labels, rungs.months)]
+            terms += [(end, label, 0, settle64) for end, label in floor_terms]
+            for end, label, months, start in terms:
                 maturity = end if latest is None else min(end, latest)
                 if maturity <= start:
                     continue
-                bill = sector == "treasury" and rungs.months[k] <= BILL_MONTHS
+                bill = sector == "treasury" and months <= BILL_MONTHS
                 kind = "discount" if bill else ""
                 rows["id"].append(f"{GENERIC_PREFIX}{sector}-{bucket}-{label}")
                 rows["sector"].append(sector)
-                rows["issuer"].append(f"generic {sector} {bucket} issuer, rung {label}")
+                rows["issuer"].append(f"generic {sector} {bucket} issuer, {'rung ' if months else ''}{label}")
                 rows["kind"].append(kind)
                 rows["maturity"].append(maturity)
                 rows["rating"].append(long_)

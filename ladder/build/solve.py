@@ -21,9 +21,12 @@ from scipy import sparse
 from scipy.optimize import Bounds, LinearConstraint, linprog, milp
 
 from ladder.build.program import BUDGET, SENS_BUYS, SENS_ONE, Program
+from ladder.build.quiet import solver_output_filtered
 
-MIP_GAP = 1e-7
+MIP_GAP = 1e-6             # relative optimality gap of the integer program
 TIME_LIMIT_S = 120.0
+DIAGNOSE_GAP = 1e-4
+DIAGNOSE_TIME_LIMIT_S = 30.0
 _BINDING_DUAL = 1e-9
 
 
@@ -49,15 +52,18 @@ def _constraints(p: Program, A: np.ndarray, b: np.ndarray):
 
 
 def solve(p: Program, time_limit: float = TIME_LIMIT_S) -> Solution:
-    """The mixed-integer optimum of ``p``."""
+    """The mixed-integer optimum of ``p``.
+
+    Rows are scaled to unit size; the objective is kept in currency a year (an objective scaled to
+    tiny numbers falls under the solver's optimality tolerances and its search stalls)."""
     import time
 
     scale = _row_scale(p)
-    objective_scale = max(p.cash, 1.0)
     start = time.perf_counter()
-    res = milp(-p.c / objective_scale, integrality=p.integrality, bounds=Bounds(p.lb, p.ub),
-               constraints=_constraints(p, p.A / scale[:, None], p.b / scale),
-               options={"mip_rel_gap": MIP_GAP, "time_limit": time_limit, "presolve": True})
+    with solver_output_filtered():
+        res = milp(-p.c, integrality=p.integrality, bounds=Bounds(p.lb, p.ub),
+                   constraints=_constraints(p, p.A / scale[:, None], p.b / scale),
+                   options={"mip_rel_gap": MIP_GAP, "time_limit": time_limit, "presolve": True})
     seconds = time.perf_counter() - start
     status = {0: "optimal", 1: "time_limit", 2: "infeasible"}.get(res.status, "error")
     if res.x is None:
@@ -85,9 +91,10 @@ def relaxation(p: Program) -> Relaxation:
     A, b = p.A / scale[:, None], p.b / scale
     ineq = ~p.eq
     start = time.perf_counter()
-    res = linprog(-p.c, A_ub=A[ineq] if ineq.any() else None, b_ub=b[ineq] if ineq.any() else None,
-                  A_eq=A[p.eq] if p.eq.any() else None, b_eq=b[p.eq] if p.eq.any() else None,
-                  bounds=np.column_stack([np.zeros(len(p.c)), p.ub]), method="highs")
+    with solver_output_filtered():
+        res = linprog(-p.c, A_ub=A[ineq] if ineq.any() else None, b_ub=b[ineq] if ineq.any() else None,
+                      A_eq=A[p.eq] if p.eq.any() else None, b_eq=b[p.eq] if p.eq.any() else None,
+                      bounds=np.column_stack([np.zeros(len(p.c)), p.ub]), method="highs")
     seconds = time.perf_counter() - start
     m = len(p.b)
     if res.status != 0:
@@ -159,8 +166,11 @@ class Conflict:
         return max(m[2] for m in self.members)
 
 
-def diagnose(p: Program, time_limit: float = TIME_LIMIT_S) -> tuple[Conflict, ...]:
-    """The smallest relaxation (sum of relaxations relative to each limit) that admits a ladder."""
+def diagnose(p: Program, integer: bool = True, time_limit: float = DIAGNOSE_TIME_LIMIT_S) -> tuple[Conflict, ...]:
+    """The smallest relaxation (sum of relaxations relative to each limit) that admits a ladder.
+
+    With ``integer`` False (when even the linear relaxation has no solution) lots may be fractional:
+    a linear program, solved exactly and fast; else the integer program to ``DIAGNOSE_GAP``."""
     soft = np.flatnonzero(p.group != BUDGET)
     sens = np.select([p.sens == SENS_ONE, p.sens == SENS_BUYS], [1.0, max(p.cash, 1.0) / 100.0],
                      default=max(p.positions.mv @ p.face0 + p.cash, 1.0))
@@ -172,11 +182,12 @@ def diagnose(p: Program, time_limit: float = TIME_LIMIT_S) -> tuple[Conflict, ..
     k = len(p.c)
     c = np.concatenate([-1e-9 * p.c / max(p.cash, 1.0), weight])
     scale = np.where(np.abs(A).max(axis=1) > 0, np.abs(A).max(axis=1), 1.0)
-    res = milp(c, integrality=np.concatenate([p.integrality, np.zeros(len(soft), np.int64)]),
-               bounds=Bounds(np.concatenate([p.lb, np.zeros(len(soft))]), np.concatenate([p.ub, np.full(len(soft),
-                                                                                                np.inf)])),
-               constraints=_constraints(p, A / scale[:, None], p.b / scale),
-               options={"mip_rel_gap": 1e-6, "time_limit": time_limit})
+    integrality = np.concatenate([p.integrality if integer else np.zeros(k, np.int64), np.zeros(len(soft), np.int64)])
+    lower = np.concatenate([p.lb if integer else np.zeros(k), np.zeros(len(soft))])
+    with solver_output_filtered():
+        res = milp(c, integrality=integrality, bounds=Bounds(lower, np.concatenate([p.ub, np.full(len(soft), np.inf)])),
+                   constraints=_constraints(p, A / scale[:, None], p.b / scale),
+                   options={"mip_rel_gap": DIAGNOSE_GAP, "time_limit": time_limit})
     if res.x is None:
         return (Conflict(BUDGET, "no purchase fits the cash to invest", "currency", (("", p.cash, np.nan),)),)
     slack = res.x[k:]
