@@ -35,6 +35,8 @@ def test_generic_candidates_are_labelled_and_priced_near_par(demo, generic):
     # the coupon is rounded to 0.001%: at most 0.0005% a year off par, times the duration (< 5 years)
     assert np.all(np.abs(v.clean[coupon_bearing] - 100.0) < 0.0005 * 5.0 + 1e-9)
     assert set(rungs.index(h.maturity)) == set(range(len(rungs)))
+    floor = (h.maturity - np.datetime64(demo.valuation_date)).astype(int) == 90   # portfolio.liquidity[1]
+    assert floor.any() and all(i.endswith("-90D") for i in h.id[floor])
 
 
 def test_generic_candidates_obey_the_policy_filters(demo, generic):
@@ -46,7 +48,8 @@ def test_generic_candidates_obey_the_policy_filters(demo, generic):
     corp = h.sector == "corporate"
     assert np.all(ratings.long_notches(h.rating[corp]) <= ratings.LONG_NOTCH["A-"])   # no BBB corporate
     assert not np.isin(h.rating[corp], ["BBB"]).any()
-    assert dict(c.left_out)["sectors.corporate.min_long_rating"] == 5  # one BBB candidate a rung
+    # one BBB candidate a rung, and one at the 90-day liquidity floor's horizon
+    assert dict(c.left_out)["sectors.corporate.min_long_rating"] == 6
     assert p.portfolio.max_maturity.days(demo.valuation_date) >= days.max()
 
 
