@@ -1,7 +1,8 @@
 """Books for the shock tests: the demo book, or its settings with other holdings, curve or date.
 
 ``book_with`` keeps the demo's spreads and model and replaces what a test needs; ``notes`` makes
-option-free holdings priced from the curve (no quotes), so a test controls every price.
+option-free holdings priced from the curve (no quotes), so a test controls every price;
+``option_free`` draws a small mixed set of them (hypothesis).
 """
 
 from __future__ import annotations
@@ -12,6 +13,7 @@ from functools import lru_cache
 from pathlib import Path
 
 import numpy as np
+from hypothesis import strategies as st
 
 from ladder.book.book_file import Book, load_book
 from ladder.book.holdings import Holdings, make_holdings
@@ -20,6 +22,7 @@ from ladder.pricing.curve import ParCurve
 DEMO = Path(__file__).resolve().parents[2] / "demo_portfolios" / "tessaline"
 TENORS = ("1M", "3M", "6M", "1Y", "2Y", "3Y", "5Y", "7Y", "10Y", "20Y", "30Y")
 UPWARD_PCT = (3.60, 3.70, 3.80, 3.90, 4.00, 4.10, 4.25, 4.40, 4.55, 4.80, 4.90)   # smooth, rising
+START = dt.date(2026, 12, 15)                   # first maturity month of generated holdings
 
 
 @lru_cache(maxsize=1)
@@ -54,3 +57,18 @@ def months_after(date: dt.date, months) -> list[str]:
         total = date.month - 1 + int(m)
         out.append(dt.date(date.year + total // 12, total % 12 + 1, date.day).isoformat())
     return out
+
+
+@st.composite
+def option_free(draw):
+    """2 to 6 notes (13 months to 10 years), two discount notes and two CDs, priced from the curve."""
+    count = draw(st.integers(2, 6))
+    months = draw(st.lists(st.integers(13, 120), min_size=count, max_size=count))
+    coupons = draw(st.lists(st.floats(0.0, 7.0), min_size=count, max_size=count))
+    bills = draw(st.lists(st.integers(0, 11), min_size=2, max_size=2))
+    cds = draw(st.lists(st.integers(0, 20), min_size=2, max_size=2))
+    return Holdings.concat([
+        notes(months_after(START, months), coupons, prefix="N"),
+        notes(months_after(START, bills), [0.0, 0.0], sector="commercial_paper", kind="discount", prefix="B"),
+        notes(months_after(START, cds), [3.8, 4.1], sector="cd", kind="at_maturity",
+              issue_dates=["2026-06-15"] * 2, prefix="C")])

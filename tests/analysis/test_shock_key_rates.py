@@ -9,8 +9,7 @@ from ladder.analysis.shock import KEY_RATE_SUM_TOLERANCE, shock_book
 from ladder.pricing.curve import par_instruments
 from ladder.risk.scenarios import parallel_set
 
-from shock_books import TENORS, UPWARD_PCT, book_with, demo_book, months_after, notes
-from test_shock_properties import START, option_free
+from shock_books import START, TENORS, UPWARD_PCT, book_with, demo_book, months_after, notes, option_free
 
 
 def test_key_rate_durations_add_up_on_the_demo_book_callables_included():

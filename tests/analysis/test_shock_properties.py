@@ -14,35 +14,17 @@ deposit's effective convexity is -0.03 (its yield convexity 0.02) and, for notes
 errors of a few currency units per million move erratically with the shift; they are left out.
 """
 
-import datetime as dt
-
 import numpy as np
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from ladder.analysis.shock import shock_book
-from ladder.book.holdings import Holdings
 from ladder.risk.scenarios import parallel_set
 
-from shock_books import UPWARD_PCT, book_with, demo_book, months_after, notes
+from shock_books import UPWARD_PCT, book_with, demo_book, option_free
 
-START = dt.date(2026, 12, 15)
 SHIFTS = (-300.0, -200.0, -100.0, 100.0, 200.0, 300.0)
 curves = st.one_of(st.just(UPWARD_PCT), st.floats(1.0, 7.0).map(lambda level: (round(level, 2),) * 11))
-
-
-@st.composite
-def option_free(draw):
-    count = draw(st.integers(2, 6))
-    months = draw(st.lists(st.integers(13, 120), min_size=count, max_size=count))
-    coupons = draw(st.lists(st.floats(0.0, 7.0), min_size=count, max_size=count))
-    bills = draw(st.lists(st.integers(0, 11), min_size=2, max_size=2))
-    cds = draw(st.lists(st.integers(0, 20), min_size=2, max_size=2))
-    return Holdings.concat([
-        notes(months_after(START, months), coupons, prefix="N"),
-        notes(months_after(START, bills), [0.0, 0.0], sector="commercial_paper", kind="discount", prefix="B"),
-        notes(months_after(START, cds), [3.8, 4.1], sector="cd", kind="at_maturity",
-              issue_dates=["2026-06-15"] * 2, prefix="C")])
 
 
 def shocked(holdings, curve_pct, shifts=SHIFTS):
