@@ -150,6 +150,21 @@ def _par_coupons(h: Holdings, curve, settle, spreads_bp: np.ndarray) -> np.ndarr
     return np.where(h.kind == "discount", 0.0, np.round(np.maximum(coupon, 0.0) * 1e5) / 1e5)
 
 
+def unique_ids(ids, taken) -> list[str]:
+    """``ids`` with ``-2``, ``-3``, ... appended where one is already ``taken`` (a book that holds an
+    earlier build's lots gets new ids for the next build's)."""
+    seen = set(taken)
+    out = []
+    for base in ids:
+        name, k = base, 1
+        while name in seen:
+            k += 1
+            name = f"{base}-{k}"
+        seen.add(name)
+        out.append(name)
+    return out
+
+
 def generic_candidates(book: Book, rungs: Rungs, settle: dt.date) -> Candidates:
     """One generic security per rung, authorized sector and spread-table bucket (see module docstring)."""
     policy = book.policy
@@ -184,6 +199,7 @@ def generic_candidates(book: Book, rungs: Rungs, settle: dt.date) -> Candidates:
                 rows["issue_date"].append(settle64)
                 rows["frequency"].append(-1)
     n = len(rows["id"])
+    rows["id"] = unique_ids(rows["id"], book.holdings.id)
     h = make_holdings(**rows, face=np.full(n, GENERIC_LOT))
     curve = bootstrap(book.curve, np.datetime64(book.valuation_date))
     spread_bp = table_spreads_bp(h, book.spreads)
@@ -193,21 +209,25 @@ def generic_candidates(book: Book, rungs: Rungs, settle: dt.date) -> Candidates:
 
 
 def fund_candidates(book: Book, settle: dt.date) -> Candidates:
-    """Where the residual goes: the book's funds offered again (new lots, same issuer and yield), else a
-    generic government fund at the curve's one-month continuously compounded zero rate."""
+    """Where the residual goes: the book's funds offered again (a new lot of each fund issuer, at the
+    yield of its first holding), else a generic government fund at the curve's one-month continuously
+    compounded zero rate."""
     h = book.holdings
-    funds = np.flatnonzero((h.kind == "fund") & (h.sector == "fund"))
+    is_fund = (h.kind == "fund") & (h.sector == "fund")
+    keys = issuer_keys(h)
+    funds = [i for i in np.flatnonzero(is_fund) if i == np.flatnonzero(is_fund & (keys == keys[i]))[0]]
     maturity = np.datetime64(settle, "D") + 1
     if len(funds):
-        src = h.take(funds)
-        offered = make_holdings(id=[f"BUILD-{i}" for i in src.id], sector=src.sector, issuer=src.issuer,
+        src = h.take(np.array(funds))
+        ids = unique_ids([i if i.startswith("BUILD-") else f"BUILD-{i}" for i in src.id], h.id)
+        offered = make_holdings(id=ids, sector=src.sector, issuer=src.issuer,
                                 kind=src.kind, face=np.ones(len(src)), maturity=[maturity] * len(src),
                                 day_count=src.day_count, quote_type=src.quote_type, quote=src.quote)
         generic = np.zeros(len(src), bool)
     else:
         curve = bootstrap(book.curve, np.datetime64(book.valuation_date))
         rate = float(curve.zero_rate(np.array([1.0 / 12.0]))[0])
-        offered = make_holdings(id=[f"{GENERIC_PREFIX}fund"], sector=["fund"], issuer=["generic government fund"],
+        offered = make_holdings(id=unique_ids([f"{GENERIC_PREFIX}fund"], h.id), sector=["fund"], issuer=["generic government fund"],
                                 kind=["fund"], face=[1.0], maturity=[maturity], quote_type=["yield"],
                                 quote=[round(rate, 6)])
         generic = np.ones(1, bool)
