@@ -89,14 +89,14 @@ class _Rows:
         self.rows: list[tuple] = []
         self.text: dict[str, str] = {}
 
-    def add(self, group, label, unit, limit, coeff, rhs=0.0, sens=SENS_TOTAL, buys_only=False, eq=False):
-        """A row ``sum coeff_p f_p <= rhs`` over the positions' faces after the trades."""
+    def add(self, group, label, unit, limit, coeff, rhs=0.0, sens=SENS_TOTAL, scope="after", eq=False):
+        """A row ``sum coeff_p f_p <= rhs`` (``==`` with ``eq``) over the faces ``f`` of ``scope``: "after",
+        the portfolio after the trades (holdings kept are a constant); "traded", what is bought less
+        what is sold; "bought", what is bought."""
         k = coeff[self.var_pos] * self.var_unit * self.var_sign
-        if buys_only:
+        if scope == "bought":
             k = np.where(self.var_sign > 0, k, 0.0)
-            const = 0.0
-        else:
-            const = float(coeff @ self.face0)
+        const = float(coeff @ self.face0) if scope == "after" else 0.0
         self.rows.append((k, rhs - const, eq, group, label, unit, limit, sens))
 
     def value(self, coeff) -> float:
@@ -147,18 +147,15 @@ def build_program(policy: Policy, cash_needs: CashNeeds | None, settle, rungs: R
     _policy_rows(r, policy, cash_needs, settle, allow_sales)
     _rung_rows(r, rungs, rung_band)
     has_fund = bool(np.any(pos.fund[var_pos] & (var_sign > 0) & (ub > 0)))
-    r.add(BUDGET, "", "currency", cash, pos.mv, cash, SENS_ONE, buys_only=False, eq=has_fund)
-    budget = r.rows[-1]
-    # The budget counts only what is traded: no constant from the holdings kept.
-    r.rows[-1] = (budget[0], cash) + budget[2:]
+    r.add(BUDGET, "", "currency", cash, pos.mv, cash, SENS_ONE, scope="traded", eq=has_fund)
     r.text[BUDGET] = (f"the buys cost the cash to invest ({cash:,.2f})" + (" plus the proceeds of sales"
                       if allow_sales else "") + ("; a fund takes the residual" if has_fund else ""))
-    A, b, eq, group, label, unit, limit, sens = (np.array(col) if i else np.vstack(col) if col else np.zeros((0, 0))
-                                                 for i, col in enumerate(zip(*r.rows)))
+    coeffs, b, eq, group, label, unit, limit, sens = zip(*r.rows)   # the budget row is always there
     c = pos.yld[var_pos] * pos.mv[var_pos] * var_unit * var_sign
-    return Program(A.astype(float), b.astype(float), eq.astype(bool), c, lb, ub, integ.astype(np.int64),
-                   var_pos, var_unit, var_sign, group.astype(object), label.astype(object), unit.astype(object),
-                   limit.astype(float), sens.astype(object), pos, face0, n_e, float(cash), r.text)
+    text = lambda values: np.array(values, dtype=object)  # noqa: E731
+    return Program(np.vstack(coeffs), np.array(b, float), np.array(eq, bool), c, lb, ub, integ.astype(np.int64),
+                   var_pos, var_unit, var_sign, text(group), text(label), text(unit), np.array(limit, float),
+                   text(sens), pos, face0, n_e, float(cash), r.text)
 
 
 def _touched(r: _Rows, mask: np.ndarray, allow_sales: bool) -> bool:
@@ -268,9 +265,9 @@ def _rung_rows(r: _Rows, rungs: Rungs, band: tuple[float, float]) -> None:
     for k, label in enumerate(rungs.labels):
         mine = (rung == k).astype(float)
         r.add(RUNG_GROUP, f"{label} at least", "buys_pct", 100 * low,
-              (low + MARGIN["buys_pct"] / 100 - mine) * in_ladder * pos.mv, 0.0, SENS_BUYS, buys_only=True)
+              (low + MARGIN["buys_pct"] / 100 - mine) * in_ladder * pos.mv, 0.0, SENS_BUYS, scope="bought")
         if high < 1.0:
             r.add(RUNG_GROUP, f"{label} at most", "buys_pct", 100 * high,
-                  (mine - (high - MARGIN["buys_pct"] / 100)) * in_ladder * pos.mv, 0.0, SENS_BUYS, buys_only=True)
+                  (mine - (high - MARGIN["buys_pct"] / 100)) * in_ladder * pos.mv, 0.0, SENS_BUYS, scope="bought")
     r.text[RUNG_GROUP] = (f"each of the {n} rungs holds {100 * low:.3g}% to {100 * high:.3g}% of what is bought "
                           "(market value; the fund aside)")

@@ -6,8 +6,8 @@ the policy, the cash needs and the rungs (the smallest relaxation is printed), 2
 
 from __future__ import annotations
 
-import io
 import csv
+import io
 import sys
 from pathlib import Path
 
