@@ -15,6 +15,7 @@ from ladder.analysis.build import BuildResult, apply_build, build_ladder, trade_
 from ladder.book.book_file import load_book
 from ladder.book.holdings_file import COLUMNS
 from ladder.book.save import save_holdings, write_atomic
+from ladder.build.program import RUNG_BAND
 from ladder.commands.common import add_book
 from ladder.commands.output import console, fmt, print_caution, write_json
 from ladder.errors import Problems
@@ -37,6 +38,9 @@ def add_parser(subparsers) -> None:
     parser.add_argument("--yes", action="store_true", help="with --apply: do not ask (for scripts)")
     parser.add_argument("--allow-sales", action="store_true", help="the build may sell holdings too")
     parser.add_argument("--fresh", action="store_true", help="a stand-alone ladder for new money; ignore the holdings")
+    parser.add_argument("--rung-band", metavar="LOW,HIGH", default=None,
+                        help="each rung's share of what is bought, as multiples of the even share "
+                             "(default 0.5,1.5; 0,99 leaves the shares free)")
     parser.set_defaults(run=run)
 
 
@@ -46,6 +50,21 @@ def trades_csv(result: BuildResult) -> str:
     writer.writeheader()
     writer.writerows(trade_records(result.trades))
     return buffer.getvalue()
+
+
+def parse_band(text: str | None) -> tuple[float, float]:
+    """``LOW,HIGH`` multiples of the even share; InputError unless 0 <= LOW <= 1 <= HIGH."""
+    if text is None:
+        return RUNG_BAND
+    problems = Problems()
+    try:
+        low, high = (float(x) for x in text.split(","))
+    except ValueError:
+        low = high = None
+    if low is None or not (0 <= low <= 1 <= high):
+        problems.add("--rung-band", 0, 0, f"{text!r}: write LOW,HIGH with 0 <= LOW <= 1 <= HIGH, e.g. 0.5,1.5")
+    problems.raise_if_any()
+    return low, high
 
 
 def _refuse_early(args) -> None:
@@ -67,12 +86,13 @@ def _confirm(result: BuildResult, target) -> bool:
 
 def run(args) -> int:
     _refuse_early(args)
+    band = parse_band(args.rung_band)
     book = load_book(args.book)
     progress = None
     if args.format == "table" and sys.stderr.isatty():
         progress = lambda fraction, text: print(f"\r{100 * fraction:3.0f}% {text:<50}", end="", file=sys.stderr)  # noqa: E731
     result = build_ladder(book, args.cash, rungs=args.rungs, offerings=args.offerings, allow_sales=args.allow_sales,
-                          fresh=args.fresh, at=args.at, progress=progress)
+                          fresh=args.fresh, at=args.at, progress=progress, rung_band=band)
     if progress:
         print("\r" + " " * 56 + "\r", end="", file=sys.stderr)
     if args.format == "json":

@@ -74,6 +74,7 @@ def test_apply_asks_for_confirmation(book):
     (("--cash", "lots"), "is not an amount"),
     (("--cash", "1000000", "--rungs", "6x1Y"), "past the policy's maximum maturity"),
     (("--cash", "1000000", "--rungs", "3 months"), "not a tenor"),
+    (("--cash", "1000000", "--rung-band", "2,1"), "0 <= LOW <= 1 <= HIGH"),
 ])
 def test_bad_input_is_refused_and_nothing_written(book, tmp_path, args, words):
     original = (book / "holdings.csv").read_text()
