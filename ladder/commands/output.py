@@ -20,21 +20,21 @@ def safe_cell(value):
 
 
 def write_json(document, out=None) -> None:
-    out = out or sys.stdout
-    json.dump(document, out, indent=2, allow_nan=False)
-    out.write("\n")
+    """The document as indented JSON, built whole and written once (NaN is refused)."""
+    (out or sys.stdout).write(json.dumps(document, indent=2, allow_nan=False) + "\n")
 
 
 def write_csv(records: list[dict], out=None) -> None:
-    out = out or sys.stdout
+    """Records as CSV with a header from the first record; formula-looking text cells neutralized."""
     if not records:
         return
+    fields = list(records[0])
     buffer = io.StringIO()
-    writer = csv.DictWriter(buffer, fieldnames=list(records[0]), lineterminator="\n")
-    writer.writeheader()
-    for record in records:
-        writer.writerow({k: safe_cell("" if v is None else v) for k, v in record.items()})
-    out.write(buffer.getvalue())
+    writer = csv.writer(buffer, lineterminator="\n")
+    writer.writerow(fields)
+    writer.writerows([["" if (v := r[f]) is None else safe_cell(v) if isinstance(v, str) else v for f in fields]
+                      for r in records])
+    (out or sys.stdout).write(buffer.getvalue())
 
 
 def console():

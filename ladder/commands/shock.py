@@ -2,9 +2,7 @@
 
 from __future__ import annotations
 
-import io
 import re
-import sys
 from pathlib import Path
 
 from ladder.analysis.shock import shock_book, shock_document, shock_rows, shock_scenarios
@@ -56,9 +54,7 @@ def run(args) -> int:
     book, shifts = _inputs(args)
     result = shock_book(book, args.at, shock_scenarios(book, shifts, args.scenarios))
     if args.format == "json":
-        text = io.StringIO()                 # one write: json.dump writes piece by piece, one system
-        write_json(shock_document(result), text)    # call each when output is unbuffered
-        sys.stdout.write(text.getvalue())
+        write_json(shock_document(result))
     elif args.format == "csv":
         write_csv(shock_rows(result))
     else:
