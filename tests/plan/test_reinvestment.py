@@ -118,8 +118,12 @@ def test_sector_refusals(tmp_path):
         plan_book(book, options=PlanOptions(sector="bonds"))
     with pytest.raises(InputError, match="does not allow the corporate sector"):
         plan_book(book, options=PlanOptions(sector="corporate"))
+    # A [spreads] entry replaces that sector's default spreads; an empty one leaves it none.
+    no_agency_spread = write_book(tmp_path / "c", "2026-12-31", [fund(1_000_000)],
+                                  reinvest='rule = "target_tenor"\ntarget_tenor = "2Y"\nmin_cash_buffer = 0',
+                                  spreads="treasury = { default = 0 }\nagency = {}", policy=POLICY)
     with pytest.raises(InputError, match="no spread for sector 'agency'"):
-        plan_book(book, options=PlanOptions(sector="agency"))
+        plan_book(no_agency_spread, options=PlanOptions(sector="agency"))
 
 
 def test_fund_rule_keeps_the_cash_in_the_fund(tmp_path):
