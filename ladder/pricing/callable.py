@@ -455,7 +455,8 @@ def workout_yields(dirty_prices, frequency, flow_periods, flow_amounts, flow_mas
     def excess(y, p):
         p = p.astype(int)
         v = 1.0 + y / f[bond[p]]
-        pv = (amounts[p] * v[:, None] ** -periods[bond[p]]).sum(axis=1, where=included[p])
+        with np.errstate(invalid="ignore", over="ignore"):   # slots past the workout (inf periods) are left out
+            pv = (amounts[p] * v[:, None] ** -periods[bond[p]]).sum(axis=1, where=included[p])
         return pv + redemption[bond[p], work[p]] * v ** -horizon[bond[p], work[p]] - price[bond[p]]
 
     idx = np.arange(len(bond))
