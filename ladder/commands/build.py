@@ -21,6 +21,8 @@ from ladder.commands.output import console, fmt, print_caution, write_json
 from ladder.errors import Problems
 
 HELP = "design a policy-compliant ladder for cash to invest, at the best yield the policy allows"
+STEP_WORDS = {"pct": "1 percentage point", "years": "0.1 years", "days": "30 days",
+              "currency": "1,000,000 less need", "buys_pct": "1 point of the buys"}
 UNIT_WORDS = {"pct": "percentage points", "years": "years", "days": "days", "currency": "", "buys_pct": "points of the buys"}
 
 
@@ -176,7 +178,7 @@ def _print(result: BuildResult) -> None:
         for title in ("Rule", "Member", "Limit", "Relaxed by", "Income a year", "Yield bp"):
             bind.add_column(title, justify="left" if title in ("Rule", "Member") else "right")
         for item in result.binding[:15]:
-            bind.add_row(item.group, item.label, fmt(item.limit, 4), f"{item.step:g} {UNIT_WORDS.get(item.unit, '')}",
+            bind.add_row(item.group, item.label, fmt(item.limit, 4), STEP_WORDS[item.unit],
                          fmt(item.income_per_step, 0), fmt(item.yield_bp_per_step, 3))
         con.print(bind)
     status = result.compliance_status
