@@ -230,6 +230,11 @@ class LadderApp(App[None]):
             return
         self.change_book(book, "holdings", self._holdings_change(f"builder: {len(message.result.trades)} trade(s)"))
 
+    def on_holdings_view_sell_wanted(self, message: HoldingsView.SellWanted) -> None:
+        h = self.book.holdings
+        self.action_show_view("trade")
+        self.query_one("#trade", TradeView).fill("sell", id=str(h.id[message.row]), face=f"{h.face[message.row]:.2f}")
+
     def on_holdings_view_detail_wanted(self, message: HoldingsView.DetailWanted) -> None:
         from ladder.tui.holding_detail import detail
 
@@ -312,7 +317,11 @@ class LadderApp(App[None]):
             yield SystemCommand("Save changes", "Write the edited holdings and curve to the book",
                                 self.action_save)
         yield SystemCommand("Recompute", "Value the book again and refresh every view", self.recompute)
-        yield from super().get_system_commands(screen)
+        for theme in THEMES:
+            yield SystemCommand(f"Theme: {theme.name}", "Use this colour theme",
+                                lambda name=theme.name: setattr(self, "theme", name))
+        # Textual's own theme chooser offers palettes that are not ours: left out.
+        yield from (c for c in super().get_system_commands(screen) if c.title != "Theme")
 
 
 def make_app(book) -> LadderApp:

@@ -35,8 +35,8 @@ class Ticket:
 
 
 def ticket_row(ticket: Ticket, holdings) -> dict[str, str]:
-    """The trades-file row: a sell takes sector, issuer and maturity from the holding it names
-    (InputError when the book holds no such id: there is nothing to complete the row from)."""
+    """The trades-file row: a sell is the holding's own row (``ladder.book.save.holdings_rows``)
+    with the face to sell (InputError when the book holds no such id: nothing to complete it from)."""
     row = {name: ticket.fields.get(name, "").strip() for name in COLUMNS}
     if ticket.action == "sell":
         hit = np.flatnonzero(holdings.id == row["id"])
@@ -45,9 +45,9 @@ def ticket_row(ticket: Ticket, holdings) -> dict[str, str]:
             problems.add(TICKET_FILE, 2, COLUMNS.index("id") + 1,
                          f"{row['id'] or 'an empty id'} is not in the book, so it cannot be sold")
             problems.raise_if_any()
-        i = int(hit[0])
-        row.update(sector=str(holdings.sector[i]), issuer=str(holdings.issuer[i]),
-                   maturity_date=str(holdings.maturity[i]))
+        from ladder.book.save import holdings_rows
+
+        row = dict(holdings_rows(holdings.take(hit[:1]))[0], face=row["face"])
     row["action"] = ticket.action
     return row
 

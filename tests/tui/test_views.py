@@ -290,3 +290,40 @@ def test_builder_accept_adds_the_proposed_holdings_and_save_writes_them(book_cop
     reread = load_book(book_copy.folder)
     assert list(reread.holdings.id) == seen["after"]
     assert (book_copy.folder / "holdings.csv.bak").exists()
+
+
+def test_selling_a_holding_from_the_holdings_view_checks_in_the_ticket(demo_book):
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("down", "down", "x")
+        await pilot.pause()
+        seen["view"] = app.query_one("#views").current
+        await pilot.press("ctrl+t")
+        await settle(app, pilot)
+        w = app.query_one("#trade").whatif
+        seen["trade"] = (w.trades.action[0], w.trades.holdings.id[0], float(w.trades.holdings.face[0]))
+        seen["after_count"] = w.after.totals.count
+
+    drive(demo_book, script)
+    h = demo_book.holdings
+    assert seen["view"] == "trade"
+    assert seen["trade"] == ("sell", h.id[2], float(h.face[2]))
+    assert seen["after_count"] == len(h) - 1     # a whole holding sold leaves the book
+
+
+def test_rates_income_column_is_the_cash_plans_income_at_risk(demo_book):
+    plan = plan_book(demo_book)
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("r")
+        await pilot.pause()
+        table = app.query_one("#rates-table")
+        seen["income"] = dict(zip(cells(table, "name"), cells(table, "income")))
+
+    drive(demo_book, script)
+    base = plan.base.income
+    for row in plan.income_at_risk[1:]:
+        assert seen["income"][row.scenario] == fmt.money(row.income - base, sign=True)
+    assert seen["income"]["0 bp"] == "+0"

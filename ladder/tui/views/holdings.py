@@ -71,8 +71,15 @@ class HoldingsView(View):
     BINDINGS = [
         Binding("slash", "filter", "Filter", id="holdings.filter", tooltip="Show only holdings matching words"),
         Binding("enter", "detail", "Detail", id="holdings.detail", tooltip="Terms, cash flows, price/yield chart"),
+        Binding("x", "sell", "Sell in ticket", id="holdings.sell",
+                tooltip="Open the trade ticket with a sale of this whole holding"),
         Binding("escape", "clear_filter", "Clear filter", id="holdings.clear_filter", show=False),
     ]
+
+    class SellWanted(Message):
+        def __init__(self, row: int) -> None:
+            super().__init__()
+            self.row = row
 
     class DetailWanted(Message):
         def __init__(self, row: int) -> None:
@@ -109,7 +116,7 @@ class HoldingsView(View):
         self.query_one("#holdings-totals", Static).update(totals_text(v))
 
     def check_action(self, action: str, parameters) -> bool | None:
-        if action == "detail":
+        if action in ("detail", "sell"):
             return self.table.current_row is not None
         if action == "clear_filter":
             return bool(self.table.filter_text) or self.query_one("#holdings-filter").display
@@ -136,6 +143,11 @@ class HoldingsView(View):
         if event.input.id == "holdings-filter":
             event.input.display = bool(event.value)
             self.table.focus()
+
+    def action_sell(self) -> None:
+        row = self.table.current_row
+        if row is not None:
+            self.post_message(self.SellWanted(row))
 
     def action_detail(self) -> None:
         row = self.table.current_row

@@ -56,10 +56,22 @@ def scenario_from_text(par_curve, text: str) -> sc.Scenario:
     raise ValueError(f"{text!r} is not a scenario; try: {SCENARIO_HELP}")
 
 
-def scenario_frame(r) -> Frame:
+def income_changes(r, plan) -> np.ndarray:
+    """The next 12 months' income change of each scenario (S,), currency: the shock's own when it has
+    one, else the cash plan's income-at-risk table matched by scenario name (NaN where absent)."""
+    if r.income_change is not None:
+        return r.income_change
+    if plan is None or not plan.income_at_risk:
+        return np.full(len(r.scenarios), np.nan)
+    base = plan.base.income
+    by_name = {x.scenario: x.income - base for x in plan.income_at_risk}
+    by_name.setdefault("0 bp", 0.0)
+    return np.array([by_name.get(x.name, np.nan) for x in r.scenarios], dtype=np.float64)
+
+
+def scenario_frame(r, plan=None) -> Frame:
     t = r.portfolio
-    s = len(r.scenarios)
-    income = r.income_change if r.income_change is not None else np.full(s, np.nan)
+    income = income_changes(r, plan)
     text = {
         "name": np.array([x.name for x in r.scenarios], dtype=object),
         "kind": np.array([x.kind.replace("_", " ") for x in r.scenarios], dtype=object),
@@ -113,7 +125,7 @@ class RatesView(View):
 
     def on_mount(self) -> None:
         self.query_one("#rates-input").display = False
-        self._result = None
+        self._result = self._plan = None
 
     @property
     def table(self) -> FrameTable:
@@ -126,10 +138,11 @@ class RatesView(View):
             notice.say(self.state_text(results, "shock"), "error" if "shock" in results.errors else "computing")
             return
         notice.say("Recomputing…" if "shock" in results.pending else None, "stale")
-        if r is self._result:
+        plan = results.get("plan")
+        if (r, plan) == (self._result, self._plan):
             return
-        self._result = r
-        self.table.show(scenario_frame(r))
+        self._result, self._plan = r, plan
+        self.table.show(scenario_frame(r, plan))
         krd = r.portfolio_key_rate_durations
         self.query_one("#rates-summary", Static).update(
             f"Base value {fmt.money(r.base_value)}   effective duration {fmt.number(r.effective_duration, 3)}   "

@@ -157,10 +157,14 @@ class TradeView(View):
     def on_select_changed(self, event: Select.Changed) -> None:
         if event.select.id == "ticket-action":
             self._show_fields(str(event.value))
-        self._clear("Changed: press ctrl+t to check.")
+        self._changed()
 
     def on_input_changed(self, event: Input.Changed) -> None:
-        if self.whatif is not None:
+        self._changed()
+
+    def _changed(self) -> None:
+        """A field changed: a shown what-if no longer describes the form (unless it is back as checked)."""
+        if self.whatif is not None and self.ticket() != self._ticket:
             self._clear("Changed: press ctrl+t to check.")
 
     def on_button_pressed(self, event: Button.Pressed) -> None:

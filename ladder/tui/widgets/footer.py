@@ -1,33 +1,60 @@
-"""The footer, rebuilt only when the keys it shows change, and once per burst of changes."""
+"""The footer: one line listing the keys that work now, drawn as text.
+
+Textual's Footer rebuilds a widget per key whenever the bindings change, which on every view switch
+costs more than drawing the rest of the screen; this one redraws a single line. Keys of one
+``Binding.Group`` are shown together (``hlprcbyt Views``); keys that ``check_action`` greys out
+are dimmed.
+"""
 
 from __future__ import annotations
 
-from textual.widgets import Footer
+from rich.text import Text
+from textual.binding import Binding
+from textual.widget import Widget
 
 
-class KeyFooter(Footer):
-    """Textual's Footer. A view switch changes bindings several times in one frame (display,
-    focus, check_action), and each change would rebuild every key; here a burst folds into one
-    rebuild, skipped when the keys, their descriptions and their enabled state are as shown."""
+class KeyFooter(Widget):
+    COMPONENT_CLASSES = {"key-footer--key", "key-footer--disabled"}
+    DEFAULT_CSS = """
+    KeyFooter { dock: bottom; height: 1; }
+    """
 
-    _pending = False
-    _shown: tuple | None = None
+    def on_mount(self) -> None:
+        self.screen.bindings_updated_signal.subscribe(self, lambda screen: self.refresh())
 
-    def bindings_changed(self, screen) -> None:
-        self._bindings_ready = True
-        if not screen.app.app_focus or self._pending:
-            return
-        if self.is_attached and screen is self.screen:
-            self._pending = True
-            self.call_after_refresh(self._rebuild)
+    def on_unmount(self) -> None:
+        self.screen.bindings_updated_signal.unsubscribe(self)
 
-    def _signature(self) -> tuple:
-        return tuple((b.key, b.description, enabled) for _, b, enabled, _ in self.screen.active_bindings.values()
-                     if b.show)
-
-    async def _rebuild(self) -> None:
-        self._pending = False
-        signature = self._signature()
-        if signature != self._shown:
-            self._shown = signature
-            await self.recompose()
+    def render(self) -> Text:
+        key_style = self.get_component_rich_style("key-footer--key")
+        off_style = self.get_component_rich_style("key-footer--disabled")
+        line = Text(no_wrap=True, overflow="ellipsis")
+        groups: dict[str, list] = {}
+        items: list = []
+        for _, binding, enabled, _ in self.screen.active_bindings.values():
+            if not binding.show:
+                continue
+            if binding.group is not None:
+                if binding.group.description not in groups:
+                    groups[binding.group.description] = []
+                    items.append(("group", binding.group.description))
+                groups[binding.group.description].append((binding, enabled))
+            else:
+                items.append(("key", (binding, enabled)))
+        for kind, item in items:
+            if kind == "group":
+                members = groups[item]
+                line.append(" ")
+                for binding, enabled in members:
+                    line.append(self.app.get_key_display(binding), key_style if enabled else off_style)
+                line.append(f" {item} ")
+            else:
+                binding, enabled = item
+                line.append(" ")
+                line.append(self.app.get_key_display(binding), key_style if enabled else off_style)
+                line.append(f" {binding.description} ", None if enabled else off_style)
+        line.append(" ")
+        line.append(self.app.get_key_display(Binding(self.app.COMMAND_PALETTE_BINDING, "command_palette")),
+                    key_style)
+        line.append(" Palette ")
+        return line
