@@ -62,6 +62,7 @@ class Program:
     var_pos: np.ndarray       # (k,) position of each variable
     var_unit: np.ndarray      # (k,) face per unit of the variable
     var_sign: np.ndarray      # (k,) +1 buy, -1 sale
+    var_offered: np.ndarray   # (k,) True where the upper bound is the face on offer (not the cash)
     group: np.ndarray         # (m,) rule id or build group of each row
     label: np.ndarray         # (m,) the row's group member (issuer, sector, month, rung) or ""
     unit: np.ndarray          # (m,) "pct", "years", "days", "currency", "share"
@@ -114,6 +115,7 @@ def _variables(pos: Positions, cands: Candidates, n_existing: int, cash: float, 
     unit = np.where(c_fund, 1.0, cands.lot)
     cap = np.minimum(cands.available, spend / np.maximum(mv[c_idx], 1e-9) + cands.lot)
     ub = np.floor(cap / unit + 1e-9)
+    offered = cands.available < spend / np.maximum(mv[c_idx], 1e-9) + cands.lot
     lb_lots = np.where(c_fund, 0.0, np.round(cands.min_lot / np.where(c_fund, 1.0, cands.lot)))
     buyable = ub >= np.maximum(lb_lots, 1)
     integ = np.where(c_fund, 0, np.where(lb_lots > 1, 3, 1))
@@ -121,14 +123,14 @@ def _variables(pos: Positions, cands: Candidates, n_existing: int, cash: float, 
     ub = np.where(buyable, ub, 0.0)
     integ = np.where(buyable, integ, 1)
     lb = np.where(buyable, lb, 0.0)
-    parts = [(c_idx, unit, np.ones(len(c_idx)), lb, ub, integ)]
+    parts = [(c_idx, unit, np.ones(len(c_idx)), lb, ub, integ, offered)]
     if allow_sales and n_existing:
         e_idx = np.arange(n_existing)
         e_fund = fund_pos[e_idx]
         e_unit = np.where(e_fund, 1.0, SELL_UNIT)
         parts.append((e_idx, e_unit, -np.ones(n_existing), np.zeros(n_existing),
-                      np.floor(face0[e_idx] / e_unit + 1e-9), np.where(e_fund, 0, 1)))
-    return [np.concatenate([p[i] for p in parts]) for i in range(6)]
+                      np.floor(face0[e_idx] / e_unit + 1e-9), np.where(e_fund, 0, 1), np.zeros(n_existing, bool)))
+    return [np.concatenate([p[i] for p in parts]) for i in range(7)]
 
 
 def build_program(policy: Policy, cash_needs: CashNeeds | None, settle, rungs: Rungs, existing: Positions,
@@ -142,7 +144,7 @@ def build_program(policy: Policy, cash_needs: CashNeeds | None, settle, rungs: R
     n_e = len(existing)
     pos = Positions.concat([existing, cand_pos])
     face0 = np.concatenate([existing.holdings.face, np.zeros(len(cand_pos))])
-    var_pos, var_unit, var_sign, lb, ub, integ = _variables(pos, candidates, n_e, cash, allow_sales, face0)
+    var_pos, var_unit, var_sign, lb, ub, integ, offered = _variables(pos, candidates, n_e, cash, allow_sales, face0)
     r = _Rows(pos, face0, var_pos, var_unit, var_sign)
     _policy_rows(r, policy, cash_needs, settle, allow_sales)
     _rung_rows(r, rungs, rung_band)
@@ -154,7 +156,7 @@ def build_program(policy: Policy, cash_needs: CashNeeds | None, settle, rungs: R
     c = pos.yld[var_pos] * pos.mv[var_pos] * var_unit * var_sign
     text = lambda values: np.array(values, dtype=object)  # noqa: E731
     return Program(np.vstack(coeffs), np.array(b, float), np.array(eq, bool), c, lb, ub, integ.astype(np.int64),
-                   var_pos, var_unit, var_sign, text(group), text(label), text(unit), np.array(limit, float),
+                   var_pos, var_unit, var_sign, offered, text(group), text(label), text(unit), np.array(limit, float),
                    text(sens), pos, face0, n_e, float(cash), r.text)
 
 

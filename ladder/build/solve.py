@@ -122,7 +122,8 @@ class Binding:
     yield_bp_per_step: float  # the same as basis points of the portfolio's yield
 
 
-STEP = {"pct": 1.0, "years": 0.1, "days": 30.0, "currency": 1_000_000.0, "buys_pct": 1.0}
+STEP = {"pct": 1.0, "years": 0.1, "days": 30.0, "currency": 1_000_000.0, "buys_pct": 1.0, "face": 1_000_000.0}
+OFFERED = "available face"
 
 
 def _sensitivity(p: Program, r: Relaxation) -> np.ndarray:
@@ -149,7 +150,16 @@ def binding(p: Program, r: Relaxation, basis_total: float) -> tuple[Binding, ...
         income = float(value[i] * step)
         out.append(Binding(str(p.group[i]), str(p.label[i]), p.text.get(p.group[i], ""), float(p.limit[i]),
                            str(p.unit[i]), step, income, 1e4 * income / basis_total if basis_total else 0.0))
-    return tuple(out)
+    # offerings bought up to the face on offer: what another 1,000,000 face of each would earn
+    per_face = np.where(p.var_offered, r.bound_duals, 0.0) / p.var_unit
+    for j in np.argsort(-per_face):
+        income = float(per_face[j] * STEP["face"])
+        if income <= _BINDING_DUAL * max(p.cash, 1.0):
+            break
+        out.append(Binding(OFFERED, str(p.positions.holdings.id[p.var_pos[j]]), "the face on offer",
+                           float(p.ub[j] * p.var_unit[j]), "face", STEP["face"], income,
+                           1e4 * income / basis_total if basis_total else 0.0))
+    return tuple(sorted(out, key=lambda b: -b.income_per_step))
 
 
 @dataclass(frozen=True)

@@ -22,7 +22,8 @@ from ladder.errors import Problems
 
 HELP = "design a policy-compliant ladder for cash to invest, at the best yield the policy allows"
 STEP_WORDS = {"pct": "1 percentage point", "years": "0.1 years", "days": "30 days",
-              "currency": "1,000,000 less need", "buys_pct": "1 point of the buys"}
+              "currency": "1,000,000 less need", "buys_pct": "1 point of the buys",
+              "face": "1,000,000 more face"}
 UNIT_WORDS = {"pct": "percentage points", "years": "years", "days": "days", "currency": "", "buys_pct": "points of the buys"}
 
 
