@@ -4,7 +4,7 @@
 solves the mixed-integer program (``ladder.build``), and explains the answer: the trades, the ladder
 before and after, the what-if policy check of the trades, the binding limits and what each costs in
 yield (from the linear relaxation's duals), the naive even ladder for comparison, or, when no ladder
-exists, the smallest relaxation that would admit one. ``apply_build`` gives the book after the trades.
+exists, the smallest relaxation that would admit one. ``apply_build`` gives the book after the trades and ``save_build`` writes it.
 """
 
 from __future__ import annotations
@@ -12,6 +12,7 @@ from __future__ import annotations
 import datetime as dt
 import time
 from dataclasses import dataclass, replace
+from pathlib import Path
 from typing import Callable
 
 import numpy as np
@@ -21,6 +22,7 @@ from ladder.analysis.records import clean_number
 from ladder.analysis.valuation import Valuation, settlement_date, value_book
 from ladder.book.book_file import Book
 from ladder.book.holdings import Holdings
+from ladder.book.save import holdings_rows, save_holdings
 from ladder.build.candidates import Candidates, eligible, fund_candidates, generic_candidates, read_offerings
 from ladder.build.naive import feasible, naive_ladder
 from ladder.build.positions import Positions
@@ -129,8 +131,7 @@ class BuildResult:
 
 
 def trade_records(trades: Trades | None) -> list[dict]:
-    from ladder.book.save import holdings_rows
-
+    """The trades as rows of the trades file: the holdings columns plus ``action``."""
     if trades is None:
         return []
     return [{**row, "action": a} for row, a in zip(holdings_rows(trades.holdings), trades.action)]
@@ -313,3 +314,9 @@ def apply_build(book: Book, result: BuildResult) -> Book:
                                    f"{book.valuation_date}; its purchases cannot be booked yet")
     problems.raise_if_any()
     return book.with_holdings(apply_trades(book.holdings, result.trades))
+
+
+def save_build(book: Book, result: BuildResult) -> Path:
+    """Apply the build and write the book's holdings file (atomic, the previous file kept as ``.bak``);
+    returns the file written."""
+    return save_holdings(book, apply_build(book, result).holdings)

@@ -11,10 +11,10 @@ import io
 import sys
 from pathlib import Path
 
-from ladder.analysis.build import BuildResult, apply_build, build_ladder, trade_records
+from ladder.analysis.build import BuildResult, apply_build, build_ladder, save_build, trade_records
 from ladder.book.book_file import load_book
 from ladder.book.holdings_file import COLUMNS
-from ladder.book.save import save_holdings, write_atomic
+from ladder.book.save import write_atomic
 from ladder.build.program import RUNG_BAND
 from ladder.commands.common import add_book
 from ladder.commands.output import console, fmt, print_caution, write_json
@@ -109,10 +109,10 @@ def run(args) -> int:
         if args.format == "table":
             console().print(f"Trades written to {args.out}.")
     if args.apply:
-        new_book = apply_build(book, result)
+        apply_build(book, result)   # refuses a build that cannot be applied before asking
         target = book.files["holdings"]
         if args.yes or _confirm(result, target):
-            path = save_holdings(book, new_book.holdings)
+            path = save_build(book, result)
             print(f"Applied {len(result.trades)} trade(s) to {path} (previous file kept as {path.name}.bak).",
                   file=sys.stderr if args.format == "json" else sys.stdout)
         else:

@@ -96,6 +96,13 @@ def test_apply_build_gives_a_book_that_checks(demo, builds):
     assert np.isin(builds["default"].trades.holdings.id, after.holdings.id).all()
 
 
+def test_progress_is_reported_in_order(demo):
+    seen = []
+    build_ladder(demo, 1_000_000, rungs="2x1Y", progress=lambda fraction, text: seen.append((fraction, text)))
+    fractions = [f for f, _ in seen]
+    assert fractions == sorted(fractions) and fractions[-1] == 1.0 and len(seen) >= 5
+
+
 def test_apply_refuses_a_fresh_or_failed_build(demo):
     with pytest.raises(InputError):
         apply_build(demo, build_ladder(demo, 25_000_000, fresh=True))
