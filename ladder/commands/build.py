@@ -104,14 +104,14 @@ def run(args) -> int:
         _print(result)
     if result.status != "built":
         return 1
+    if args.apply:
+        apply_build(book, result)   # refuses a build that cannot be applied before anything is written
     if args.out:
         write_atomic(Path(args.out), trades_csv(result))
         if args.format == "table":
             console().print(f"Trades written to {args.out}.")
     if args.apply:
-        apply_build(book, result)   # refuses a build that cannot be applied before asking
-        target = book.files["holdings"]
-        if args.yes or _confirm(result, target):
+        if args.yes or _confirm(result, book.files["holdings"]):
             path = save_build(book, result)
             print(f"Applied {len(result.trades)} trade(s) to {path} (previous file kept as {path.name}.bak).",
                   file=sys.stderr if args.format == "json" else sys.stdout)
