@@ -136,6 +136,11 @@ def _print(result: BuildResult) -> None:
               + ("; sales allowed" if result.allow_sales else ""))
     for reason, count in c.left_out:
         con.print(f"  left out {count}: {reason}")
+    if result.status == "time_limit":
+        con.print(f"[bold red]The solver found no ladder within its time limit[/] ({result.solution.seconds:.0f} s) "
+                  "and could not prove that none exists; try fewer offerings or wider rungs.")
+        print_caution(con)
+        return
     if result.status != "built":
         con.print("[bold red]No ladder satisfies every constraint.[/] The smallest relaxation that would admit one "
                   "(the budget and the candidates kept as given):")
