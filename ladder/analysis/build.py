@@ -17,12 +17,13 @@ from typing import Callable
 
 import numpy as np
 
+from ladder.analysis.booking import book_trades
 from ladder.analysis.check import BookCheck, TradeWhatIf, check_book, check_proposed, coverage_months
 from ladder.analysis.records import clean_number
 from ladder.analysis.valuation import Valuation, settlement_date, value_book
 from ladder.book.book_file import Book
 from ladder.book.holdings import Holdings
-from ladder.book.save import holdings_rows, save_holdings
+from ladder.book.save import holdings_rows
 from ladder.build.candidates import Candidates, eligible, fund_candidates, generic_candidates, read_offerings
 from ladder.build.naive import feasible, naive_ladder
 from ladder.build.positions import Positions
@@ -317,6 +318,7 @@ def apply_build(book: Book, result: BuildResult) -> Book:
 
 
 def save_build(book: Book, result: BuildResult) -> Path:
-    """Apply the build and write the book's holdings file (atomic, the previous file kept as ``.bak``);
-    returns the file written."""
-    return save_holdings(book, apply_build(book, result).holdings)
+    """Apply the build: write the book's holdings file (atomic, the previous file kept as ``.bak``) and
+    journal every trade; returns the file written."""
+    apply_build(book, result)            # refuses what cannot be booked
+    return book_trades(book, result.trades, f"ladder builder: {result.invested:,.2f} invested").path

@@ -11,7 +11,7 @@ from ladder.commands.output import console, print_caution
 from ladder.errors import InputError, Problem
 from ladder.report.files import FORMATS, write_report
 from ladder.report.history import history_path, load_snapshot
-from ladder.report.journal import journal_path
+from ladder.book.journal import journal_path
 
 HELP = ("the month-end report: holdings at amortized cost, summary against last month, activity, allocation "
         "against limits, ladder, rate shocks, income, compliance certificate")

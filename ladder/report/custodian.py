@@ -11,7 +11,6 @@ from __future__ import annotations
 
 import datetime as dt
 import math
-import os
 from dataclasses import dataclass, fields
 from pathlib import Path
 
@@ -20,9 +19,8 @@ import numpy as np
 from ladder.book.book_file import Book
 from ladder.book.holdings import Holdings
 from ladder.book.holdings_file import read_holdings
-from ladder.book.save import save_holdings
 from ladder.errors import Problems
-from ladder.report.journal import JournalEntry, append_journal
+from ladder.book.journal import JournalEntry, save_with_journal
 
 COMPARED = ("face", "quote_type", "quote", "book_price")
 IGNORED = ("row",)
@@ -128,12 +126,4 @@ def replace_holdings(book: Book, new: Holdings, changes: tuple[Change, ...], sou
     """Write ``new`` as the book's holdings and journal every change (dated ``date``, default the
     book's valuation date). If the journal cannot be written, the previous holdings are restored."""
     date = date or book.valuation_date
-    path = save_holdings(book, new)
-    backup = path.with_name(path.name + ".bak")
-    try:
-        append_journal(book, [_entry(c, date, reason, source) for c in changes])
-    except BaseException:
-        if backup.exists():
-            os.replace(backup, path)
-        raise
-    return path
+    return save_with_journal(book, new, [_entry(c, date, reason, source) for c in changes])

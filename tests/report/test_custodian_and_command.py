@@ -12,7 +12,7 @@ from ladder.book.book_file import load_book
 from ladder.cli import main
 from ladder.commands import custodian as custodian_command
 from ladder.report.custodian import compare_holdings, read_custodian_file
-from ladder.report.journal import read_journal
+from ladder.book.journal import read_journal
 
 
 def _custodian_file(folder, path):

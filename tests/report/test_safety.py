@@ -8,12 +8,13 @@ import sqlite3
 import pytest
 
 import ladder.book.save as save
+import ladder.book.journal as journal
 import ladder.report.custodian as custodian
 from ladder.book.book_file import load_book
 from ladder.errors import InputError
 from ladder.report import history
 from ladder.report.history import Snapshot, input_file, load_snapshot, record_snapshot, snapshot_dates
-from ladder.report.journal import JournalEntry, append_journal, journal_path, read_journal
+from ladder.book.journal import JournalEntry, append_journal, journal_path, read_journal
 
 
 def _snapshot(as_of: dt.date, value: float, holdings: dict | None = None) -> Snapshot:
@@ -76,7 +77,7 @@ def test_import_whose_journal_fails_puts_the_holdings_back(demo_copy, monkeypatc
 
     def fail(*args):
         raise OSError("journal not writable (simulated)")
-    monkeypatch.setattr(custodian, "append_journal", fail)
+    monkeypatch.setattr(journal, "append_journal", fail)
     with pytest.raises(OSError):
         custodian.replace_holdings(book, new, changes, "custodian.csv")
     assert (demo_copy / "holdings.csv").read_bytes() == original

@@ -14,7 +14,7 @@ from report_books import copy_demo, recorded_month_end
 from ladder.analysis.report import month_end_report, past_report, record_month_end
 from ladder.book.book_file import load_book
 from ladder.report.history import snapshot_dates
-from ladder.report.journal import JournalEntry, append_journal, read_journal
+from ladder.book.journal import JournalEntry, append_journal, read_journal
 
 FIRST, SECOND = dt.date(2026, 11, 30), dt.date(2026, 12, 31)
 

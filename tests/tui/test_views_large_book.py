@@ -6,7 +6,6 @@ from __future__ import annotations
 import asyncio
 
 from conftest import SIZE
-from ladder.tui import tasks
 
 
 def test_a_ten_thousand_holding_book_opens_and_every_view_shows(big_book):

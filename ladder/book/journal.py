@@ -11,6 +11,7 @@ from __future__ import annotations
 import datetime as dt
 import json
 import math
+import os
 from dataclasses import asdict, dataclass
 from pathlib import Path
 
@@ -103,3 +104,23 @@ def append_journal(book_or_folder, entries) -> tuple[JournalEntry, ...]:
 def entries_between(entries, start: dt.date | None, end: dt.date) -> tuple[JournalEntry, ...]:
     """The entries dated in (start, end] (every one up to ``end`` when ``start`` is None), in file order."""
     return tuple(e for e in entries if (start is None or e.date > start) and e.date <= end)
+
+
+def save_with_journal(book, holdings, entries) -> Path:
+    """Write ``holdings`` as the book's holdings file and append ``entries`` to its journal.
+
+    The holdings are written first (atomically, the previous file kept as ``.bak``); if the journal
+    cannot be written, the previous holdings file is put back, so the book and its journal never
+    disagree. Returns the holdings file written.
+    """
+    from ladder.book.save import save_holdings
+
+    path = save_holdings(book, holdings)
+    backup = path.with_name(path.name + ".bak")
+    try:
+        append_journal(book, entries)
+    except BaseException:
+        if backup.exists():
+            os.replace(backup, path)
+        raise
+    return path

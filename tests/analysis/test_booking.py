@@ -1,0 +1,62 @@
+"""Booking trades: the holdings file and the journal change together (issue 9 item 2)."""
+
+from __future__ import annotations
+
+import shutil
+
+import numpy as np
+import pytest
+
+import ladder.book.journal as journal
+from ladder.analysis.booking import book_trades
+from ladder.book.book_file import load_book
+from ladder.book.journal import read_journal
+from ladder.demo import DEMO_BOOK
+from ladder.policy.trades import read_trades
+
+TRADES = """id,sector,issuer,kind,face,maturity_date,coupon_pct,rating,price,action
+NEW-TSY-1,treasury,US Treasury,fixed,2000000,2028-11-30,4.0,AA+,100.25,buy
+DEMO-TSY-0101,treasury,US Treasury,discount,3000000,2026-12-17,,AA+,,sell
+"""
+
+
+@pytest.fixture()
+def book(tmp_path):
+    folder = tmp_path / "book"
+    shutil.copytree(DEMO_BOOK, folder, ignore=shutil.ignore_patterns("*.bak", "history.sqlite", "journal.jsonl"))
+    return load_book(folder)
+
+
+def _trades(book, tmp_path):
+    path = tmp_path / "trades.csv"
+    path.write_text(TRADES, encoding="utf-8")
+    return read_trades(path, book.holdings, book.valuation_date)
+
+
+def test_booked_trades_change_the_holdings_and_are_journaled(book, tmp_path):
+    trades = _trades(book, tmp_path)
+    booked = book_trades(book, trades, "test booking")
+    reread = load_book(book.folder)
+    assert "NEW-TSY-1" in set(reread.holdings.id)
+    held = dict(zip(reread.holdings.id, reread.holdings.face))
+    assert held["DEMO-TSY-0101"] == pytest.approx(8_000_000 - 3_000_000)
+    entries = read_journal(book.folder)
+    assert [(e.action, e.holding, e.face) for e in entries] == [("buy", "NEW-TSY-1", 2_000_000.0),
+                                                                ("sell", "DEMO-TSY-0101", 3_000_000.0)]
+    buy, sell = entries
+    assert buy.price == pytest.approx(100.25) and buy.amount < 0 < sell.amount   # cash out for a buy, in for a sale
+    assert booked.entries[0].reason == "test booking"
+    assert (book.folder / "holdings.csv.bak").exists()
+
+
+def test_a_journal_failure_leaves_the_holdings_as_they_were(book, tmp_path, monkeypatch):
+    original = (book.folder / "holdings.csv").read_bytes()
+    trades = _trades(book, tmp_path)
+
+    def fail(*args):
+        raise OSError("journal not writable (simulated)")
+    monkeypatch.setattr(journal, "append_journal", fail)
+    with pytest.raises(OSError):
+        book_trades(book, trades, "test booking")
+    assert (book.folder / "holdings.csv").read_bytes() == original
+    assert not np.isin("NEW-TSY-1", load_book(book.folder).holdings.id)
