@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from textual.app import ComposeResult
 from textual.binding import Binding
-from textual.containers import Grid, Horizontal, Vertical
+from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
 from textual.widgets import Button, DataTable, Label, Static
 
@@ -91,12 +91,13 @@ class QuitScreen(ModalScreen[str]):
         self.changes = changes
 
     def compose(self) -> ComposeResult:
-        with Grid(id="question"):
-            yield Label("Unsaved changes: " + ", ".join(self.changes) + ".\nSave them before quitting?",
+        with Vertical(id="question"):
+            yield Label("Unsaved changes: " + "; ".join(self.changes) + ".\nSave them before quitting?",
                         id="question-text")
-            yield Button("Save and quit (s)", id="save", variant="primary")
-            yield Button("Quit without saving (d)", id="discard", variant="error")
-            yield Button("Stay (Esc)", id="stay")
+            with Horizontal(classes="buttons"):
+                yield Button("Save and quit (s)", id="save", variant="primary")
+                yield Button("Quit without saving (d)", id="discard", variant="error")
+                yield Button("Stay (Esc)", id="stay")
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         self.dismiss(event.button.id)
@@ -119,10 +120,11 @@ class ConfirmScreen(ModalScreen[bool]):
         self.question = question
 
     def compose(self) -> ComposeResult:
-        with Grid(id="question"):
+        with Vertical(id="question"):
             yield Label(self.question, id="question-text")
-            yield Button("Yes (y)", id="yes", variant="primary")
-            yield Button("No (n)", id="no")
+            with Horizontal(classes="buttons"):
+                yield Button("Yes (y)", id="yes", variant="primary")
+                yield Button("No (n)", id="no")
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         self.dismiss(event.button.id == "yes")

@@ -42,7 +42,10 @@ def test_palette_lists_every_view_and_bindings_have_ids(demo_book):
         assert f"Show {cls.TITLE}" in titles
     keys = {b.key for b in LadderApp.BINDINGS}
     assert {key for _, key, _ in VIEWS} <= keys and "question_mark" in keys
-    for owner in [LadderApp] + [cls for _, _, cls in VIEWS]:
+    from ladder.tui.screens import ConfirmScreen, DetailScreen, QuitScreen
+    from ladder.tui.widgets.frame_table import FrameTable
+
+    for owner in [LadderApp, FrameTable, DetailScreen, QuitScreen, ConfirmScreen] + [cls for _, _, cls in VIEWS]:
         for binding in owner.BINDINGS:
             assert binding.id and binding.description, (owner.__name__, binding.key)
 

@@ -10,7 +10,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Grid, Horizontal, Vertical
 from textual.message import Message
-from textual.widgets import Checkbox, Input, Label, ProgressBar, Static
+from textual.widgets import Input, Label, ProgressBar, Select, Static
 from textual.worker import get_current_worker
 
 from ladder.tui import format as fmt
@@ -103,7 +103,8 @@ class BuilderView(View):
                 yield Input(placeholder="default: even to the policy's maximum; 5x1Y, 12x3M, 3M,6M,1Y,2Y",
                             id="builder-rungs", compact=True)
                 yield Label("Sales")
-                yield Checkbox("allow selling holdings", id="builder-sales", compact=True)
+                yield Select([("buy only", False), ("buy and sell holdings", True)], value=False, allow_blank=False,
+                             id="builder-sales", compact=True)
             with Vertical(id="builder-state"):
                 yield Static("f goes to the form: enter the cash, press ctrl+g to build; Esc leaves the form.", id="builder-status")
                 yield ProgressBar(total=1.0, show_eta=False, id="builder-progress")
@@ -148,7 +149,7 @@ class BuilderView(View):
         self.set_class(True, "-computing")
         rungs = self.query_one("#builder-rungs", Input).value.strip() or None
         self.run_build(self._asked, self._book, self.query_one("#builder-cash", Input).value, rungs,
-                       self.query_one("#builder-sales", Checkbox).value)
+                       bool(self.query_one("#builder-sales", Select).value))
 
     @work(thread=True, exclusive=True, exit_on_error=False, group="builder")
     def run_build(self, asked: int, book, cash: str, rungs: str | None, allow_sales: bool) -> None:
@@ -183,6 +184,7 @@ class BuilderView(View):
             return
         self._show(message.result, "Proposed: review the trades and the policy after them; ctrl+y accepts."
                    if message.result.status == "built" else "No ladder: see why below.")
+        self.query_one("#builder-trades", FrameTable).focus()
 
     def _show(self, result, status: str) -> None:
         self.result = result
@@ -213,6 +215,7 @@ class BuilderView(View):
             if yes and self.result is r:
                 self.post_message(self.Accepted(r))
                 self._show(None, f"Accepted: {len(r.trades)} trade(s) added to the book. Save with ctrl+s.")
+                self.query_one("#builder-trades", FrameTable).focus()
 
         after = status_word(r.compliance_status) if r.compliance_status else fmt.NA_TEXT
         self.app.push_screen(ConfirmScreen(f"Add the {len(r.trades)} proposed trade(s) to the book? Policy after "

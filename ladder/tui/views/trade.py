@@ -233,6 +233,7 @@ class TradeView(View):
         table = self.query_one("#ticket-table", FrameTable)
         table.show(changes_frame(w.check), keep_place=False)
         table.sort_by("after")
+        table.focus()
         self.query_one("#ticket-risk", Static).update(risk_text(w))
         self.refresh_bindings()
 
@@ -250,6 +251,7 @@ class TradeView(View):
             if yes and self.whatif is w:
                 self.post_message(self.TradeBooked(booked_trades(w), label))
                 self._clear(f"Booked: {label}. Save the book with ctrl+s.")
+                self.query_one("#ticket-table", FrameTable).focus()
 
         self.app.push_screen(ConfirmScreen(f"Book the trade: {label}?{warning}\nThe book changes on screen; "
                                            "ctrl+s writes it to the holdings file."), answered)

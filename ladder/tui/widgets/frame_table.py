@@ -33,14 +33,14 @@ class FrameTable(ScrollView, can_focus=True):
     FrameTable { height: 1fr; }
     """
     BINDINGS = [
-        Binding("up", "cursor(-1)", "Up", show=False),
-        Binding("down", "cursor(1)", "Down", show=False),
-        Binding("pageup", "page(-1)", "Page up", show=False),
-        Binding("pagedown", "page(1)", "Page down", show=False),
-        Binding("home", "cursor(-1000000000)", "First", show=False),
-        Binding("end", "cursor(1000000000)", "Last", show=False),
-        Binding("left", "column(-1)", "Column left", show=False),
-        Binding("right", "column(1)", "Column right", show=False),
+        Binding("up", "cursor(-1)", "Up", id="table.up", show=False),
+        Binding("down", "cursor(1)", "Down", id="table.down", show=False),
+        Binding("pageup", "page(-1)", "Page up", id="table.page_up", show=False),
+        Binding("pagedown", "page(1)", "Page down", id="table.page_down", show=False),
+        Binding("home", "cursor(-1000000000)", "First", id="table.first", show=False),
+        Binding("end", "cursor(1000000000)", "Last", id="table.last", show=False),
+        Binding("left", "column(-1)", "Column left", id="table.left", show=False),
+        Binding("right", "column(1)", "Column right", id="table.right", show=False),
         Binding("s", "sort", "Sort", id="table.sort", tooltip="Sort by the highlighted column; again to reverse"),
     ]
 
