@@ -23,7 +23,7 @@ class DetailScreen(ModalScreen[None]):
     """One holding: terms, figures, cash-flow schedule, price against yield (and calls)."""
 
     BINDINGS = [Binding("escape", "dismiss", "Back", id="detail.back"),
-                Binding("q", "dismiss", "Back", show=False)]
+                Binding("q", "dismiss", "Back", id="detail.back_q", show=False)]
 
     def __init__(self, detail: Detail, currency: str) -> None:
         super().__init__(classes="detail-screen")
