@@ -11,6 +11,8 @@ import datetime as dt
 from dataclasses import dataclass
 from pathlib import Path
 
+import numpy as np
+
 
 from ladder.analysis.valuation import value_book
 from ladder.book.book_file import Book
@@ -30,15 +32,17 @@ def trade_entries(book: Book, trades: Trades, reason: str, at: dt.date | None = 
     paid (-) for a buy or received (+) for a sale, dirty)."""
     date = at or book.valuation_date
     buys = trades.action == "buy"
-    values = value_book(book.with_holdings(trades.holdings), date)
+    values = value_book(book.with_holdings(trades.holdings.take(buys)), date) if buys.any() else None
     # A sale is priced as the book's own holding is valued today.
-    held = value_book(book, date)
-    index = {hid: i for i, hid in enumerate(held.holdings.id)}
+    sold = np.isin(book.holdings.id, trades.holdings.id[~buys])
+    held = value_book(book.with_holdings(book.holdings.take(sold)), date) if sold.any() else None
+    index = {hid: i for i, hid in enumerate(held.holdings.id)} if held else {}
+    bought = np.cumsum(buys) - 1
     entries = []
     for i, hid in enumerate(trades.holdings.id):
         face = float(trades.holdings.face[i])
         if buys[i]:
-            clean, dirty, sign = values.clean[i], values.dirty[i], -1.0
+            clean, dirty, sign = values.clean[bought[i]], values.dirty[bought[i]], -1.0
         else:
             j = index[hid]
             clean, dirty, sign = held.clean[j], held.dirty[j], 1.0

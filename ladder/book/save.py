@@ -88,3 +88,16 @@ def save_holdings(book, holdings: Holdings) -> Path:
         target = target.with_suffix(".csv")
     write_atomic(target, holdings_csv(holdings))
     return target
+
+
+def curve_csv(par_curve) -> str:
+    """The text of a ``curve.csv`` for a par curve (yields in percent)."""
+    lines = ["tenor,par_yield_pct"] + [f"{t},{y * 100:.10g}" for t, y in zip(par_curve.tenors, par_curve.par_yields)]
+    return "\n".join(lines) + "\n"
+
+
+def save_curve(book, par_curve) -> Path:
+    """Write ``par_curve`` as the book's curve file (atomic, previous file kept as ``.bak``)."""
+    target = Path(book.files["curve"])
+    write_atomic(target, curve_csv(par_curve))
+    return target

@@ -76,6 +76,7 @@ class LadderApp(App[None]):
         self.book = book
         self.original_curve = book.curve
         self.saved_holdings = book.holdings
+        self.pending_journal: list = []      # journal lines of booked trades, written with the holdings
         self.unsaved: dict[str, str] = {}
         self.results = Results(0, book)
         self.options = tasks.Options()
@@ -208,8 +209,15 @@ class LadderApp(App[None]):
     def on_trade_view_trade_booked(self, message: TradeView.TradeBooked) -> None:
         from ladder.policy.trades import apply_trades
 
+        self._journal(message.trades, f"trade ticket: {message.label}")
         holdings = apply_trades(self.book.holdings, message.trades)
         self.change_book(self.book.with_holdings(holdings), "holdings", self._holdings_change(message.label))
+
+    def _journal(self, trades, reason: str) -> None:
+        """Keep the journal lines of booked trades until the holdings are saved with them."""
+        from ladder.analysis.booking import trade_entries
+
+        self.pending_journal.extend(trade_entries(self.book, trades, reason))
 
     def _holdings_change(self, label: str) -> str:
         previous = self.unsaved.get("holdings")
@@ -228,6 +236,7 @@ class LadderApp(App[None]):
         except Exception as error:   # an InputError explains why it cannot be applied
             self.notify(describe(error), title="Not applied", severity="error")
             return
+        self._journal(message.result.trades, f"ladder builder: {message.result.invested:,.2f} invested")
         self.change_book(book, "holdings", self._holdings_change(f"builder: {len(message.result.trades)} trade(s)"))
 
     def on_holdings_view_sell_wanted(self, message: HoldingsView.SellWanted) -> None:
@@ -277,19 +286,17 @@ class LadderApp(App[None]):
 
     def save(self) -> list[Path]:
         """Write the unsaved parts of the book (atomic replace, previous file kept as .bak)."""
-        from ladder.book.save import save_holdings, write_atomic
+        from ladder.book.journal import save_with_journal
+        from ladder.book.save import save_curve
 
         written = []
         if "holdings" in self.unsaved:
-            written.append(save_holdings(self.book, self.book.holdings))
+            written.append(save_with_journal(self.book, self.book.holdings, self.pending_journal))
+            self.pending_journal.clear()
             self.saved_holdings = self.book.holdings
         if "curve" in self.unsaved:
-            path = Path(self.book.files["curve"])
-            par = self.book.curve
-            lines = ["tenor,par_yield_pct"] + [f"{t},{y * 100:.10g}" for t, y in zip(par.tenors, par.par_yields)]
-            write_atomic(path, "\n".join(lines) + "\n")
-            self.original_curve = par
-            written.append(path)
+            written.append(save_curve(self.book, self.book.curve))
+            self.original_curve = self.book.curve
         self.unsaved.clear()
         self._show_bar()
         self.refresh_bindings()

@@ -290,6 +290,10 @@ def test_builder_accept_adds_the_proposed_holdings_and_save_writes_them(book_cop
     reread = load_book(book_copy.folder)
     assert list(reread.holdings.id) == seen["after"]
     assert (book_copy.folder / "holdings.csv.bak").exists()
+    # issue 9: every change made through the tool is journaled with the save
+    from ladder.book.journal import read_journal
+    journal = read_journal(book_copy.folder)
+    assert [(e.action, e.holding) for e in journal] == [("buy", t) for t in seen["trades"]]
 
 
 def test_selling_a_holding_from_the_holdings_view_checks_in_the_ticket(demo_book):
