@@ -13,32 +13,30 @@ import sys
 from ladder import CAUTION, __version__
 from ladder.errors import InputError
 
-COMMANDS = ("value", "shock", "check", "plan", "build", "report", "custodian", "open")
+# subcommand -> module in ladder/commands
+COMMANDS = {"value": "value", "shock": "shock", "check": "check", "plan": "plan", "build": "build",
+            "report": "report", "import": "custodian", "open": "open"}
 EXIT_OK, EXIT_BREACH, EXIT_INPUT = 0, 1, 2
 
 
-def _parser() -> argparse.ArgumentParser:
+def _parser(only: str | None = None) -> argparse.ArgumentParser:
+    """The argument parser; with ``only``, just that subcommand's module is imported (a faster start)."""
     import importlib
 
     parser = argparse.ArgumentParser(
         prog="ladder", description="A treasury workstation for a corporate cash ladder.", epilog=CAUTION)
     parser.add_argument("--version", action="version", version=f"ladder {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
-    for name in COMMANDS:
-        try:
-            module = importlib.import_module(f"ladder.commands.{name}")
-        except ModuleNotFoundError as error:
-            if error.name != f"ladder.commands.{name}":
-                raise
-            continue
-        module.add_parser(sub)
+    for name, module in COMMANDS.items():
+        if only is None or name == only:
+            importlib.import_module(f"ladder.commands.{module}").add_parser(sub)
     return parser
 
 
 def main(argv: list[str] | None = None) -> int:
-    argv = sys.argv[1:] if argv is None else argv
-    parser = _parser()
-    args = parser.parse_args(argv or ["open"])
+    argv = (sys.argv[1:] if argv is None else argv) or ["open"]
+    parser = _parser(argv[0] if argv[0] in COMMANDS else None)
+    args = parser.parse_args(argv)
     if not getattr(args, "run", None):
         parser.print_help()
         return EXIT_INPUT
