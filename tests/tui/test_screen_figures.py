@@ -14,8 +14,9 @@ from ladder.errors import InputError
 from ladder.risk.rungs import RUNGS
 from ladder.tui import format as fmt
 from ladder.tui.frame import sort_order
-from ladder.tui.holding_detail import detail, price_yield
-from ladder.tui.rung_summary import rung_summary
+from ladder.analysis.price_yield import price_yield
+from ladder.tui.holding_detail import detail
+from ladder.analysis.rung_summary import rung_summary
 from ladder.tui.ticket import Ticket, ticket_row
 from ladder.tui.views.rates import scenario_from_text
 

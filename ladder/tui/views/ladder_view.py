@@ -10,7 +10,7 @@ from textual.widgets import Static
 from ladder.tui import format as fmt
 from ladder.tui.frame import Column, Frame
 from ladder.tui.results import Results
-from ladder.tui.rung_summary import CROWDED_SHARE, GAP_SHARE, RungSummary, rung_summary
+from ladder.analysis.rung_summary import CROWDED_SHARE, GAP_SHARE, RungSummary, rung_summary
 from ladder.tui.views.base import Notice, View
 from ladder.tui.widgets.chart import Chart
 from ladder.tui.widgets.frame_table import FrameTable
