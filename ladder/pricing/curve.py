@@ -14,7 +14,8 @@ date gives month-end dates; common practice, as in ``ladder.market.schedule``). 
 not rolled to business days: the curve prices the quoted instruments on their nominal dates.
 
 Interpolation between the maturities (the nodes), and extrapolation past the last one with a flat
-instantaneous forward equal to the forward at the last node:
+instantaneous forward equal to the last interval's average (discrete) forward, as QuantLib's
+piecewise curves do; it is positive whenever that discrete forward is:
 - ``"monotone_convex"`` (default): the monotone convex method of P. S. Hagan and G. West,
   "Interpolation Methods for Curve Construction", Applied Mathematical Finance 13(2), 2006, with
   their positivity bound on the node forwards (within [0, 2 * min(adjacent discrete forwards)]).
@@ -248,7 +249,8 @@ def _shape_polynomials(node_times: np.ndarray, F: np.ndarray):
     """Each interval's g as a quadratic in y = x - eta on each side of eta (side 0: x < eta, side 1:
     x >= eta): g = c0 + c1 y + c2 y^2, and its integral from 0 to x is G(eta) + c0 y + c1 y^2/2 + c2 y^3/3.
 
-    Returns the discrete forwards (B, n), the last node forward (B, 1), eta (B, n) and terms
+    Returns the discrete forwards (B, n), the forward held past the last node (the last discrete
+    forward, (B, 1)), eta (B, n) and terms
     (B, n, 2, 4) = [G(eta), c0, c1, c2]. Expanding about eta keeps every term bounded by the g's.
     """
     fd = _discrete_forwards(node_times, F)
@@ -264,7 +266,7 @@ def _shape_polynomials(node_times: np.ndarray, F: np.ndarray):
     # Sector (i), expanded about x = 1 on both sides: g(1) = g1, g'(1) = 2 g0 + 4 g1, g'' = 6 (g0 + g1).
     quad = np.stack([zero, g1, 2.0 * g0 + 4.0 * g1, 3.0 * (g0 + g1)], axis=-1)[..., None, :]
     terms = np.where(quadratic[..., None, None], quad, pieces)
-    return fd, f[:, -1:], np.where(quadratic, 1.0, eta), terms
+    return fd, fd[:, -1:], np.where(quadratic, 1.0, eta), terms
 
 
 def _monotone_convex_at(node_times, F, t):

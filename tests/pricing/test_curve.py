@@ -5,7 +5,7 @@ QuantLib comparisons are in test_curve_quantlib.py.
 
 import numpy as np
 import pytest
-from hypothesis import assume, given, settings
+from hypothesis import assume, example, given, settings
 from hypothesis import strategies as st
 
 from ladder.pricing.curve import (METHODS, ParCurve, bootstrap, bootstrap_many, par_instruments,
@@ -120,11 +120,12 @@ def test_par_yields_without_positive_discount_factors_are_refused():
 
 
 @pytest.mark.parametrize("method", METHODS)
-def test_extrapolation_holds_the_last_node_forward(method):
-    # Our convention (module docstring): flat instantaneous forward beyond the last node.
+def test_extrapolation_holds_the_last_discrete_forward(method):
+    # Our convention (module docstring), QuantLib's too: beyond the last node the instantaneous
+    # forward is flat at the last interval's average forward.
     curve = bootstrap(par_curve("upward"), DATE, method)
     end = curve.node_times[-1]
-    f_end = curve.instantaneous_forward(end)
+    f_end = -np.log(curve.node_discount[-1] / curve.node_discount[-2]) / (end - curve.node_times[-2])
     later = end + np.array([0.5, 5.0, 20.0])
     np.testing.assert_allclose(curve.instantaneous_forward(later), f_end, rtol=0, atol=1e-15)
     np.testing.assert_allclose(curve.discount(later), curve.discount(end) * np.exp(-f_end * (later - end)),
@@ -236,6 +237,9 @@ def test_property_upward_shift_lowers_every_discount_factor(curve, bp, method):
 
 @settings(max_examples=30, deadline=None)
 @given(ordinary_curves)
+# Found by hypothesis: a falling 30Y end pinned the last node forward to 0, and a curve extrapolated
+# at that forward stopped discounting past 30Y.
+@example(ParCurve(TENORS, (1.25 + np.concatenate([[0.0], np.cumsum([0.0] * 9 + [-0.3125])])) / 100))
 def test_property_positive_curve_has_falling_discount_factors(curve):
     # Common practice: positive forwards <=> discount factors fall with time (monotone convex keeps
     # forwards positive when the discrete forwards are, Hagan and West 2006).

@@ -71,9 +71,10 @@ def test_discount_factors_match_quantlib(name, date, method, tolerance):
     theirs, ref = quantlib_curve(date, TENORS, yields, method)
     # Same nodes (QuantLib's pillar dates are the maturities) ...
     assert [d.ISO() for d in theirs.dates()[1:]] == [str(d) for d in ours.instruments.maturity_dates]
-    # ... and the same discount factors every third day up to the last node. Beyond it QuantLib's
-    # forward curve holds the last discrete forward and ours the last node forward (not compared).
-    days = np.arange(0, theirs.maxDate() - ref + 1, 3)
+    # ... and the same discount factors every third day up to the last node, and for ten years past
+    # it, where both hold the last discrete forward flat.
+    theirs.enableExtrapolation()
+    days = np.arange(0, theirs.maxDate() - ref + 1 + 3650, 3)
     expected = np.array([theirs.discount(ref + int(k)) for k in days])
     np.testing.assert_allclose(ours.discount(days / 365.0), expected, rtol=0, atol=tolerance)
 
