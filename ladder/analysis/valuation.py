@@ -17,11 +17,11 @@ from scipy import sparse
 
 from ladder.book.book_file import Book
 from ladder.book.holdings import QUOTE_NONE, Holdings
-from ladder.errors import InputError, Problems
+from ladder.errors import Problems
 from ladder.market.dates import days_between
-from ladder.pricing.callable import HullWhiteParams, callable_prices, option_adjusted_spreads
+from ladder.pricing.callable import (CallableBonds, HullWhiteParams, callable_prices, option_adjusted_spreads,
+                                     workout_yields)
 from ladder.pricing.callable_terms import CallTerms, call_terms
-from ladder.pricing.callable import workout_yields
 from ladder.pricing.cashflows import CashFlows, cash_flows
 from ladder.pricing.curve import Curve, CurveSet, bootstrap
 from ladder.pricing.quotes import Measures, cf_rows, dirty_from_quote, measures_from_dirty
@@ -299,7 +299,7 @@ def _callables(book, cf, curve, quoted, dirty, spread, params):
     return terms, option_value, ytw, ytfc
 
 
-def _subset(terms: CallTerms, index) -> "CallableBonds":
+def _subset(terms: CallTerms, index) -> CallableBonds:
     from dataclasses import fields, replace
 
     b = terms.bonds

@@ -52,3 +52,14 @@ def fmt(value, digits: int = 2, empty: str = "—") -> str:
     if value is None:
         return empty
     return f"{value:,.{digits}f}"
+
+
+def emit(fmt_name: str, document, records=None, table=None) -> None:
+    """Write a result in the chosen format: ``document()`` as JSON, ``records()`` as CSV, or call
+    ``table()`` for the rich table. Each is a callable so that only the chosen form is built."""
+    if fmt_name == "json":
+        write_json(document())
+    elif fmt_name == "csv":
+        write_csv(records())
+    else:
+        table()

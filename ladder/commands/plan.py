@@ -10,7 +10,7 @@ from ladder.analysis.plan import (
 )
 from ladder.book.book_file import REINVEST_RULES, load_book
 from ladder.commands.common import add_book
-from ladder.commands.output import console, fmt, print_caution, write_csv, write_json
+from ladder.commands.output import console, emit, fmt, print_caution
 from ladder.plan.periods import STEPS
 from ladder.plan.rates import RULES
 
@@ -49,12 +49,7 @@ def run(args) -> int:
                           sector=args.sector, buffer=args.buffer, rates=args.rates)
     plan = _with_progress(lambda progress: plan_book(book, args.at, scenario=args.scenario, bp=args.bp,
                                                       options=options, progress=progress))
-    if args.format == "json":
-        write_json(plan_document(plan))
-    elif args.format == "csv":
-        write_csv(period_records(plan))
-    else:
-        _table(plan)
+    emit(args.format, lambda: plan_document(plan), lambda: period_records(plan), lambda: _table(plan))
     return 0
 
 

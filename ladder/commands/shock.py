@@ -8,7 +8,7 @@ from pathlib import Path
 from ladder.analysis.shock import shock_book, shock_document, shock_rows, shock_scenarios
 from ladder.book.book_file import load_book
 from ladder.commands.common import add_book
-from ladder.commands.output import console, fmt, print_caution, write_csv, write_json
+from ladder.commands.output import console, emit, fmt, print_caution
 from ladder.errors import InputError, Problems
 from ladder.risk.scenarios import parse_bp_list
 
@@ -53,12 +53,7 @@ def _inputs(args):
 def run(args) -> int:
     book, shifts = _inputs(args)
     result = shock_book(book, args.at, shock_scenarios(book, shifts, args.scenarios))
-    if args.format == "json":
-        write_json(shock_document(result))
-    elif args.format == "csv":
-        write_csv(shock_rows(result))
-    else:
-        _tables(result)
+    emit(args.format, lambda: shock_document(result), lambda: shock_rows(result), lambda: _tables(result))
     return 0
 
 

@@ -6,7 +6,7 @@ from ladder.analysis.records import holding_records, totals_record, valuation_do
 from ladder.analysis.valuation import value_book
 from ladder.book.book_file import load_book
 from ladder.commands.common import add_book
-from ladder.commands.output import console, fmt, print_caution, write_csv, write_json
+from ladder.commands.output import console, emit, fmt, print_caution
 
 WIDE_TABLE = 190   # characters the full table needs; narrower terminals get the essential columns
 NARROW_COLUMNS = ("id", "maturity_date", "face", "clean_price", "ytm_pct", "effective_duration")
@@ -22,12 +22,8 @@ def add_parser(subparsers) -> None:
 def run(args) -> int:
     book = load_book(args.book)
     valuation = value_book(book, args.at)
-    if args.format == "json":
-        write_json(valuation_document(valuation))
-    elif args.format == "csv":
-        write_csv(holding_records(valuation))
-    else:
-        _table(book, valuation)
+    emit(args.format, lambda: valuation_document(valuation), lambda: holding_records(valuation),
+         lambda: _table(book, valuation))
     return 0
 
 

@@ -10,7 +10,6 @@ from dataclasses import dataclass
 import numpy as np
 
 from ladder.analysis.price_yield import PriceYield, price_yield
-from ladder.pricing.quotes import cf_rows
 from ladder.tui import format as fmt
 
 
