@@ -189,7 +189,7 @@ def price_from_yield(coupon_rate, yield_, terms: YieldToPriceTerms,
       F    (II.F):        X = (r'/s)(C/2),              A = [(r' - r)/s](C/2)
       G    (II.G):        X = [(r'/s)(C/2)] v,          A = [(r' - r)/s](C/2)
     which ``terms.r_prime`` folds into X = (r'/s)(C/2) [times v for C, G], A = [(r' - r)/s](C/2)
-    outside E. In F and G the first payment uses r' (the whole short coupon), not r as a transcription
+    outside E. In F and G the first payment uses r' (the whole short coupon), not r as one published copy
     of the formulas prints it: only r' reproduces the published intermediate values (II.F
     5.2214673913 = (183/184)(5.25); II.G 1.549168216 = (61/183)(4.875) v).
     Rounding (``decimals``, default 6): as in the appendix's examples, A and P + A are each rounded
