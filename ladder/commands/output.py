@@ -63,3 +63,13 @@ def emit(fmt_name: str, document, records=None, table=None) -> None:
         write_csv(records())
     else:
         table()
+
+
+def print_whole(con, table) -> None:
+    """Print a rich table at its natural width even on a narrow console, so numbers are never cut."""
+    from rich.measure import Measurement
+
+    width = con.width
+    con.width = max(width, Measurement.get(con, con.options.update(max_width=10_000), table).maximum)
+    con.print(table)
+    con.width = width

@@ -10,7 +10,7 @@ from ladder.analysis.plan import (
 )
 from ladder.book.book_file import REINVEST_RULES, load_book
 from ladder.commands.common import add_book
-from ladder.commands.output import console, emit, fmt, print_caution
+from ladder.commands.output import console, emit, fmt, print_caution, print_whole
 from ladder.plan.periods import STEPS
 from ladder.plan.rates import RULES
 
@@ -83,7 +83,7 @@ def _table(plan) -> None:
     for record in period_records(plan):
         style = "bold red" if record["shortfall"] else ("yellow" if record["tight"] else None)
         table.add_row(*[str(record[k]) if d is None else fmt(record[k], d, "") for k, _, d in columns], style=style)
-    con.print(table)
+    print_whole(con, table)
     first = plan.first_shortfall
     pr = plan.projection
     t = pr.tightest
@@ -101,7 +101,7 @@ def _table(plan) -> None:
         for s in sale_records(plan, first):
             sales.add_row(s["id"], s["maturity_date"], fmt(s["face"], 0), fmt(s["clean_price"], 4),
                           fmt(s["proceeds"], 0), fmt(s["realized_gain"], 0))
-        con.print(sales)
+        print_whole(con, sales)
         if pr.unfunded[first] > 0:
             con.print(f"[bold red]{fmt(pr.unfunded[first], 0)} cannot be covered even by selling everything.[/bold red]")
         later = int((pr.shortfall > 0).sum()) - 1
@@ -115,7 +115,7 @@ def _table(plan) -> None:
     for x in income_records(plan):
         income.add_row(x["scenario"], fmt(x["income_12m"], 0), fmt(x["income_change"], 0),
                        fmt(x["price_change_12m"], 0), fmt(x["total_return_12m"], 0), fmt(x["total_return_12m_pct"], 3))
-    con.print(income)
+    print_whole(con, income)
     for note in plan.notes:
         con.print(f"[dim]Note: {note}[/dim]")
     print_caution(con)

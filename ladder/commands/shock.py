@@ -8,7 +8,7 @@ from pathlib import Path
 from ladder.analysis.shock import shock_book, shock_document, shock_rows, shock_scenarios
 from ladder.book.book_file import load_book
 from ladder.commands.common import add_book
-from ladder.commands.output import console, emit, fmt, print_caution
+from ladder.commands.output import console, emit, fmt, print_caution, print_whole
 from ladder.errors import InputError, Problems
 from ladder.risk.scenarios import parse_bp_list
 
@@ -58,17 +58,12 @@ def run(args) -> int:
 
 
 def _tables(r) -> None:
-    from rich.measure import Measurement
     from rich.table import Table
 
     con = console()
 
     def show(t: Table) -> None:
-        """At its natural width even on a narrow console: numbers are never cut short."""
-        width = con.width
-        con.width = max(width, Measurement.get(con, con.options.update(max_width=10_000), t).maximum)
-        con.print(t)
-        con.width = width
+        print_whole(con, t)
 
     con.print(f"[bold]{r.book_name}[/bold]: rate shocks at {r.as_of}   base value {fmt(r.base_value, 0)}   "
               f"effective duration {fmt(r.effective_duration, 3)}   effective convexity {fmt(r.effective_convexity, 3)}")
