@@ -7,16 +7,14 @@ Every problem is reported as ``file:row:column`` (row 1 is the header) and the f
 
 from __future__ import annotations
 
-import csv
 import datetime as dt
-import difflib
 import math
 import re
 from dataclasses import dataclass
-from pathlib import Path
 
 import numpy as np
 
+from ladder.book.table_file import read_rows
 from ladder.errors import Problems
 
 COLUMNS = ("date", "amount", "label")
@@ -61,58 +59,28 @@ def _number(text: str) -> float | None:
 
 def read_cash_needs(path) -> CashNeeds:
     """Read ``cash_needs.csv`` at ``path``; raises ``InputError`` listing every problem."""
-    path = Path(path)
     name = str(path)
     problems = Problems()
-    try:
-        with path.open(newline="", encoding="utf-8-sig") as handle:
-            rows = list(csv.reader(handle))
-    except (OSError, UnicodeDecodeError, csv.Error) as exc:
-        problems.add(name, 0, 0, f"cannot read the cash-needs file: {exc}")
-        problems.raise_if_any()
-    if not rows:
-        problems.add(name, 1, 0, f"empty file: expected a header row {','.join(COLUMNS)}")
-        problems.raise_if_any()
-    header = [h.strip() for h in rows[0]]
-    where = {}
-    for col, title in enumerate(header, start=1):
-        if title in COLUMNS and title not in where:
-            where[title] = col
-        elif title in where:
-            problems.add(name, 1, col, f"column {title!r} appears twice")
-        else:
-            close = difflib.get_close_matches(title, COLUMNS, n=1, cutoff=0.6)
-            hint = f" (did you mean {close[0]!r}?)" if close else ""
-            problems.add(name, 1, col, f"unknown column {title!r}{hint}; columns are {', '.join(COLUMNS)}")
-    for title in REQUIRED:
-        if title not in where:
-            problems.add(name, 1, 0, f"missing column {title!r}")
-    problems.raise_if_any()
+    rows = read_rows(path, COLUMNS, problems, required=REQUIRED)
     dates, amounts, labels, lines = [], [], [], []
-    for line, cells in enumerate(rows[1:], start=2):
-        if not any(c.strip() for c in cells):
-            continue
-        if len(cells) > len(header):
-            problems.add(name, line, len(header) + 1, f"{len(cells)} cells but {len(header)} columns")
-            continue
-        cell = {t: (cells[c - 1].strip() if c <= len(cells) else "") for t, c in where.items()}
-        date_text, amount_text = cell["date"], cell["amount"]
+    for line, cell in rows:
+        (date_col, date_text), (amount_col, amount_text) = cell["date"], cell["amount"]
         date = None
         if not _ISO_DATE.match(date_text):
-            problems.add(name, line, where["date"], f"date {date_text!r} is not YYYY-MM-DD")
+            problems.add(name, line, date_col, f"date {date_text!r} is not YYYY-MM-DD")
         else:
             try:
                 date = dt.date.fromisoformat(date_text)
             except ValueError:
-                problems.add(name, line, where["date"], f"{date_text!r} is not a calendar date")
+                problems.add(name, line, date_col, f"{date_text!r} is not a calendar date")
         amount = _number(amount_text)
         if amount is None:
-            problems.add(name, line, where["amount"],
+            problems.add(name, line, amount_col,
                          f"amount {amount_text!r} is not a number (currency units; + needed, - inflow)")
         if date is not None and amount is not None:
             dates.append(date)
             amounts.append(amount)
-            labels.append(cell.get("label", ""))
+            labels.append(cell["label"][1])
             lines.append(line)
     problems.raise_if_any()
     return CashNeeds(np.array(dates, dtype="datetime64[D]"), np.array(amounts, dtype=np.float64),

@@ -7,6 +7,7 @@ Every cell comes back as stripped text ("" when empty); spreadsheet dates become
 from __future__ import annotations
 
 import csv
+import difflib
 import datetime as dt
 from dataclasses import dataclass
 from pathlib import Path
@@ -78,14 +79,35 @@ def read_table(path: Path, problems: Problems, label: str | None = None) -> Tabl
 
 
 def check_columns(table: Table, known: tuple[str, ...], required: tuple[str, ...], problems: Problems) -> None:
-    """Unknown, duplicate and missing columns, each a problem on the header row."""
+    """Unknown (with the nearest known name), duplicate and missing columns, each a problem on the header row."""
     seen: set[str] = set()
     for number, name in enumerate(table.header, start=1):
         if name in seen:
             problems.add(table.path, 1, number, f"column {name!r} appears twice")
         elif name not in known:
-            problems.add(table.path, 1, number, f"unknown column {name!r}; known columns: {', '.join(known)}")
+            close = difflib.get_close_matches(name, list(known), n=1, cutoff=0.6)
+            hint = f" (did you mean {close[0]!r}?)" if close else ""
+            problems.add(table.path, 1, number, f"unknown column {name!r}{hint}; known columns: {', '.join(known)}")
         seen.add(name)
     for name in required:
         if name not in seen:
             problems.add(table.path, 1, 0, f"required column {name!r} is missing")
+
+
+Rows = list[tuple[int, dict[str, tuple[int, str]]]]
+
+
+def read_rows(path, columns: tuple[str, ...], problems: Problems, required: tuple[str, ...] | None = None) -> Rows:
+    """The non-blank data rows of a small table whose columns are ``columns`` (all ``required`` unless
+    said otherwise), as ``(row number, {column: (column number, text)})``; [] with the problems added
+    when the file or its header is wrong."""
+    table = read_table(Path(path), problems)
+    if table is None:
+        return []
+    before = len(problems.items)      # a ragged row is reported, but only header problems stop here
+    check_columns(table, columns, columns if required is None else required, problems)
+    if len(problems.items) > before:
+        return []
+    where = table.column
+    return [(number, {name: (where.get(name, 0), table.cell(i, name)) for name in columns})
+            for i, number in ((i, i + 2) for i in range(len(table.rows))) if any(table.rows[i])]

@@ -8,9 +8,9 @@ with the header as row 1.
 
 from __future__ import annotations
 
-import csv
 import math
 
+from ladder.book.table_file import read_rows
 from ladder.errors import Problems
 from ladder.market.tenors import tenor_months
 from ladder.pricing.curve import ParCurve, tenor_problems
@@ -19,50 +19,6 @@ CURVE_COLUMNS = ("tenor", "par_yield_pct")
 YIELD_RANGE_PCT = (-5.0, 30.0)
 # A whole curve inside +/-0.2 % is far likelier decimals typed for percent (0.0425 for 4.25).
 DECIMAL_LOOKING_PCT = 0.2
-
-Rows = list[tuple[int, dict[str, tuple[int, str]]]]
-
-
-def read_table(path, columns: tuple[str, ...], problems: Problems) -> Rows:
-    """The rows of a small CSV file whose header names exactly ``columns`` (any order, any case).
-
-    Returns ``(row number, {column: (column number, stripped text)})`` per non-blank row; adds
-    unreadable-file, empty-file, header and ragged-row problems to ``problems``.
-    """
-    name = str(path)
-    try:
-        with open(path, newline="", encoding="utf-8-sig") as handle:
-            lines = list(csv.reader(handle))
-    except (OSError, UnicodeDecodeError, csv.Error) as error:
-        problems.add(name, 0, 0, f"cannot read the file: {error}")
-        return []
-    numbered = [(r, line) for r, line in enumerate(lines, start=1) if any(cell.strip() for cell in line)]
-    expected = ",".join(columns)
-    if not numbered:
-        problems.add(name, 0, 0, f"the file is empty; expected a header row {expected}")
-        return []
-    header_row, header = numbered[0]
-    position: dict[str, int] = {}
-    for c, cell in enumerate(header, start=1):
-        key = cell.strip().lower()
-        if key not in columns:
-            problems.add(name, header_row, c, f"unknown column {cell.strip()!r}; expected {expected}")
-        elif key in position:
-            problems.add(name, header_row, c, f"column {key!r} appears twice")
-        else:
-            position[key] = c
-    for key in columns:
-        if key not in position:
-            problems.add(name, header_row, 0, f"missing column {key!r}; expected {expected}")
-    if len(position) != len(columns) or len(header) != len(columns):
-        return []
-    rows: Rows = []
-    for r, line in numbered[1:]:
-        if len(line) != len(header):
-            problems.add(name, r, 0, f"expected {len(header)} fields ({expected}), found {len(line)}")
-            continue
-        rows.append((r, {key: (c, line[c - 1].strip()) for key, c in position.items()}))
-    return rows
 
 
 def _percent(text: str) -> float | None:
@@ -77,7 +33,7 @@ def read_curve(path) -> ParCurve:
     """The par curve in ``path``; raises ``InputError`` listing every problem (nothing half-read)."""
     name = str(path)
     problems = Problems()
-    rows = read_table(path, CURVE_COLUMNS, problems)
+    rows = read_rows(path, CURVE_COLUMNS, problems)
     tenors: list[tuple[int, int, int]] = []     # (row, column, months) of readable tenors
     yields: list[tuple[int, int, str, float]] = []
     low, high = YIELD_RANGE_PCT

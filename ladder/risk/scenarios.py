@@ -35,7 +35,7 @@ import numpy as np
 from ladder.errors import Problems
 from ladder.market.tenors import tenor_label, tenor_months
 from ladder.pricing.curve import ParCurve
-from ladder.pricing.curve_file import read_table
+from ladder.book.table_file import read_rows
 
 DEFAULT_PARALLEL_BP = (-300.0, -200.0, -100.0, -50.0, -25.0, 0.0, 25.0, 50.0, 100.0, 200.0, 300.0)
 DEFAULT_PIVOT = "2Y"
@@ -190,7 +190,7 @@ def read_scenarios(path, par_curve: ParCurve) -> tuple[Scenario, ...]:
     """
     name = str(path)
     problems = Problems()
-    rows = read_table(path, SCENARIO_COLUMNS, problems)
+    rows = read_rows(path, SCENARIO_COLUMNS, problems)
     on_curve = {m: i for i, m in enumerate(par_curve.months)}
     points: dict[str, dict[int, tuple[int, float]]] = {}     # scenario -> curve index -> (row, bp)
     for r, cells in rows:

@@ -64,19 +64,19 @@ def test_every_problem_at_once(tmp_path):
         f"{f}:4:2: amount '1.2.3' is not a number (currency units; + needed, - inflow)",
         f"{f}:5:2: amount '' is not a number (currency units; + needed, - inflow)",
         f"{f}:6:2: amount 'inf' is not a number (currency units; + needed, - inflow)",
-        f"{f}:7:4: 4 cells but 3 columns",
+        f"{f}:7:4: row has 4 cells but the header has 3",
     ]
 
 
 def test_header_problems(tmp_path):
     f = str(tmp_path / "cash_needs.csv")
     assert problems(write(tmp_path, "date,amout,label,date\n2025-01-01,1,x,2025-01-01\n")) == [
-        f"{f}:1:0: missing column 'amount'",
-        f"{f}:1:2: unknown column 'amout' (did you mean 'amount'?); columns are date, amount, label",
+        f"{f}:1:0: required column 'amount' is missing",
+        f"{f}:1:2: unknown column 'amout' (did you mean 'amount'?); known columns: date, amount, label",
         f"{f}:1:4: column 'date' appears twice",
     ]
-    assert problems(write(tmp_path, "")) == [f"{f}:1:0: empty file: expected a header row date,amount,label"]
-    assert problems(tmp_path / "missing.csv")[0].startswith(f"{tmp_path / 'missing.csv'}:0:0: cannot read")
+    assert problems(write(tmp_path, "")) == [f"{f}:1:0: the file is empty; the first row must name the columns"]
+    assert problems(tmp_path / "missing.csv")[0]== f"{tmp_path / 'missing.csv'}:0:0: file not found"
 
 
 def test_empty_forecast():

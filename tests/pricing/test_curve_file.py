@@ -82,22 +82,22 @@ def test_a_low_short_end_with_a_normal_long_end_is_fine(tmp_path):
 def test_unknown_missing_and_repeated_columns(tmp_path):
     path = write(tmp_path, "tenor,yield,tenor\n3M,3.7,3M\n")
     assert problems(path) == [
-        f"{path}:1:0: missing column 'par_yield_pct'; expected tenor,par_yield_pct",
-        f"{path}:1:2: unknown column 'yield'; expected tenor,par_yield_pct",
+        f"{path}:1:0: required column 'par_yield_pct' is missing",
+        f"{path}:1:2: unknown column 'yield'; known columns: tenor, par_yield_pct",
         f"{path}:1:3: column 'tenor' appears twice",
     ]
 
 
 def test_empty_header_only_ragged_and_unreadable_files(tmp_path):
     empty = write(tmp_path, "\n\n", "empty.csv")
-    assert problems(empty) == [f"{empty}:0:0: the file is empty; expected a header row tenor,par_yield_pct"]
+    assert problems(empty) == [f"{empty}:1:0: the file is empty; the first row must name the columns"]
     header = write(tmp_path, "tenor,par_yield_pct\n", "header.csv")
     assert problems(header) == [f"{header}:0:0: no tenors: the file has a header but no rows"]
     ragged = write(tmp_path, "tenor,par_yield_pct\n3M,3.7,extra\n6M\n", "ragged.csv")
     assert problems(ragged) == [
-        f"{ragged}:2:0: expected 2 fields (tenor,par_yield_pct), found 3",
-        f"{ragged}:3:0: expected 2 fields (tenor,par_yield_pct), found 1",
+        f"{ragged}:2:3: row has 3 cells but the header has 2",
+        f"{ragged}:3:2: par yield '' is not a number (percent, e.g. 4.25)",
     ]
     missing = tmp_path / "absent.csv"
     [message] = problems(missing)
-    assert message.startswith(f"{missing}:0:0: cannot read the file:")
+    assert message == f"{missing}:0:0: file not found"

@@ -65,10 +65,10 @@ def test_every_bad_row_is_reported(tmp_path):
 def test_bad_header_and_empty_files(tmp_path):
     path = write(tmp_path, "scenario,tenor,bp\n")
     assert problems(path) == [
-        f"{path}:1:0: missing column 'shift_bp'; expected scenario,tenor,shift_bp",
-        f"{path}:1:3: unknown column 'bp'; expected scenario,tenor,shift_bp",
+        f"{path}:1:0: required column 'shift_bp' is missing",
+        f"{path}:1:3: unknown column 'bp'; known columns: scenario, tenor, shift_bp",
     ]
     path = write(tmp_path, "")
-    assert problems(path) == [f"{path}:0:0: the file is empty; expected a header row scenario,tenor,shift_bp"]
+    assert problems(path) == [f"{path}:1:0: the file is empty; the first row must name the columns"]
     path = write(tmp_path, "scenario,tenor,shift_bp\n")
     assert problems(path) == [f"{path}:0:0: no scenarios: the file has a header but no rows"]
