@@ -36,6 +36,12 @@ class View(Vertical):
     def refresh_view(self, results: Results) -> None:  # pragma: no cover - each view overrides
         raise NotImplementedError
 
+    def show_state(self, results: Results, task: str) -> bool:
+        """Say in the view's Notice why ``task``'s figures are missing; True when they are there."""
+        text = self.state_text(results, task)
+        self.query_one(Notice).say(text, "error" if task in results.errors else "computing")
+        return text is None
+
     def state_text(self, results: Results, task: str) -> str | None:
         """Why ``task``'s figures are not on screen (computing, failed, unavailable), or None."""
         if task in results.errors:

@@ -92,11 +92,10 @@ class CurveView(View):
 
     def refresh_view(self, results: Results) -> None:
         v = results.valuation
-        notice = self.query_one(Notice)
         if v is None:
-            notice.say(self.state_text(results, "valuation"), "error" if "valuation" in results.errors else "computing")
+            self.show_state(results, "valuation")
             return
-        notice.say("Recomputing every view…" if "valuation" in results.pending else None, "stale")
+        self.query_one(Notice).say("Recomputing every view…" if "valuation" in results.pending else None, "stale")
         curve = v.curve
         original = getattr(self.app, "original_curve", results.book.curve)
         self.table.show(curve_frame(curve, original))

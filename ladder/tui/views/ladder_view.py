@@ -45,11 +45,10 @@ class LadderView(View):
 
     def refresh_view(self, results: Results) -> None:
         v = results.valuation
-        notice = self.query_one(Notice)
         if v is None:
-            notice.say(self.state_text(results, "valuation"), "error" if "valuation" in results.errors else "computing")
+            self.show_state(results, "valuation")
             return
-        notice.say("Recomputing…" if "valuation" in results.pending else None, "stale")
+        self.query_one(Notice).say("Recomputing…" if "valuation" in results.pending else None, "stale")
         s = rung_summary(v, results.book.cash_needs)
         self.query_one("#ladder-table", FrameTable).show(rung_frame(s))
         self.query_one("#ladder-summary", Static).update(

@@ -116,8 +116,7 @@ class TradeView(View):
         self._show_fields("buy")
 
     def refresh_view(self, results: Results) -> None:
-        notice = self.query_one(Notice)
-        notice.say(self.state_text(results, "valuation"), "error" if "valuation" in results.errors else "computing")
+        self.show_state(results, "valuation")
         if self.whatif is not None and self.whatif.before is not results.valuation:
             self._clear("The book changed: check the trade again (ctrl+t).")
 
