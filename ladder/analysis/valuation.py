@@ -9,7 +9,7 @@ from the quoted par yields shifted by +/- ``EFFECTIVE_SHIFT_BP`` and the curve r
 from __future__ import annotations
 
 import datetime as dt
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, fields, replace
 from functools import cached_property
 
 import numpy as np
@@ -300,8 +300,6 @@ def _callables(book, cf, curve, quoted, dirty, spread, params):
 
 
 def _subset(terms: CallTerms, index) -> CallableBonds:
-    from dataclasses import fields, replace
-
     b = terms.bonds
     return replace(b, **{f.name: getattr(b, f.name)[index] for f in fields(b)
                          if isinstance(getattr(b, f.name), np.ndarray)})

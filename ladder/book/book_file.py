@@ -9,7 +9,7 @@ from __future__ import annotations
 import datetime as dt
 import difflib
 import tomllib
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from pathlib import Path
 
 from ladder.book.cash_needs import CashNeeds, read_cash_needs
@@ -88,8 +88,6 @@ class Book:
 
     def with_holdings(self, holdings: Holdings) -> "Book":
         """The same book with other holdings (a what-if or an applied trade)."""
-        from dataclasses import replace
-
         return replace(self, holdings=holdings)
 
 

@@ -75,8 +75,24 @@ def estimated_changes(base_value, duration, convexity, krd, tenor_shifts) -> tup
     return first, first + 0.5 * base_value * convexity * shift**2
 
 
+class _EstimateErrors:
+    """Error of each estimate against the exact ``value`` (estimate - exact), same shape as ``value``."""
+
+    value: np.ndarray
+    est_duration: np.ndarray
+    est_duration_convexity: np.ndarray
+
+    @property
+    def error_duration(self) -> np.ndarray:
+        return self.est_duration - self.value
+
+    @property
+    def error_duration_convexity(self) -> np.ndarray:
+        return self.est_duration_convexity - self.value
+
+
 @dataclass(frozen=True, eq=False)
-class ScenarioTotals:
+class ScenarioTotals(_EstimateErrors):
     """Sums over holdings, per group: ``base`` (G,); ``value`` and the two estimates (G, S), currency."""
 
     groups: tuple[str, ...]
@@ -95,17 +111,9 @@ class ScenarioTotals:
         with np.errstate(invalid="ignore", divide="ignore"):
             return np.where(self.base[:, None] != 0, self.change / self.base[:, None], np.nan)
 
-    @property
-    def error_duration(self) -> np.ndarray:
-        return self.est_duration - self.value
-
-    @property
-    def error_duration_convexity(self) -> np.ndarray:
-        return self.est_duration_convexity - self.value
-
 
 @dataclass(frozen=True, eq=False)
-class Revaluation:
+class Revaluation(_EstimateErrors):
     """Every holding's exact value under every scenario beside its estimates, currency units.
 
     ``base`` (n,); ``value``, ``est_duration``, ``est_duration_convexity`` (S, n).
@@ -119,14 +127,6 @@ class Revaluation:
     @property
     def change(self) -> np.ndarray:
         return self.value - self.base
-
-    @property
-    def error_duration(self) -> np.ndarray:
-        return self.est_duration - self.value
-
-    @property
-    def error_duration_convexity(self) -> np.ndarray:
-        return self.est_duration_convexity - self.value
 
     def totals(self, index=None, groups: tuple[str, ...] = ("portfolio",)) -> ScenarioTotals:
         """Sums by group: ``index`` (n,) int into ``groups`` (default: one group, every holding)."""
