@@ -16,8 +16,8 @@ import numpy as np
 
 
 from ladder.analysis.valuation import value_book
-from ladder.book.book_file import Book
-from ladder.book.journal import JournalEntry, save_with_journal
+from ladder.folder.book_file import Book
+from ladder.folder.journal import JournalEntry, save_with_journal
 from ladder.errors import Problems
 from ladder.pricing.cashflows import cash_flows
 from ladder.policy.trades import Trades, apply_trades

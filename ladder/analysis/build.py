@@ -21,9 +21,9 @@ from ladder.analysis.booking import book_trades
 from ladder.analysis.check import BookCheck, TradeWhatIf, check_book, check_proposed, coverage_months
 from ladder.analysis.records import clean_number
 from ladder.analysis.valuation import Valuation, settlement_date, value_book
-from ladder.book.book_file import Book
+from ladder.folder.book_file import Book
 from ladder.book.holdings import Holdings
-from ladder.book.save import holdings_rows
+from ladder.folder.save import holdings_rows
 from ladder.build.candidates import Candidates, eligible, fund_candidates, generic_candidates, read_offerings
 from ladder.build.naive import feasible, naive_ladder
 from ladder.build.positions import Positions

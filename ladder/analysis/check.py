@@ -8,7 +8,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from ladder.analysis.valuation import Valuation, value_book
-from ladder.book.book_file import Book
+from ladder.folder.book_file import Book
 from ladder.policy.checker import check
 from ladder.policy.measures import PositionMeasures, cash_by_month
 from ladder.policy.results import CheckResult

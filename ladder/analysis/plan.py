@@ -24,7 +24,7 @@ import numpy as np
 
 from ladder.analysis.records import clean_number
 from ladder.analysis.valuation import Valuation, value_book
-from ladder.book.book_file import Book
+from ladder.folder.book_file import Book
 from ladder.book.holdings import Holdings
 from ladder.errors import InputError, Problems
 from ladder.market.dates import NAT, to_days

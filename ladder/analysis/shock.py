@@ -32,7 +32,7 @@ import numpy as np
 
 from ladder.analysis.records import clean_number
 from ladder.analysis.valuation import EFFECTIVE_SHIFT_BP, Valuation, value_book
-from ladder.book.book_file import Book
+from ladder.folder.book_file import Book
 from ladder.book.holdings import SECTORS
 from ladder.errors import Problems
 from ladder.pricing.curve import Curve, CurveSet

@@ -16,7 +16,7 @@ from ladder.book.holdings import (DAY_COUNTS, FREQUENCIES, KIND_DAY_COUNT, KINDS
                                   Holdings, make_holdings)
 from ladder.book.table_file import Table, check_columns, read_table
 from ladder.errors import Problems
-from ladder.policy.ratings import explain_long, explain_short, tokens
+from ladder.market.ratings import explain_long, explain_short, tokens
 
 REQUIRED = ("id", "sector", "issuer", "face", "maturity_date")
 OPTIONAL = ("kind", "coupon_pct", "frequency", "day_count", "issue_date", "first_coupon_date",

@@ -27,13 +27,13 @@ from pathlib import Path
 
 import numpy as np
 
-from ladder.book.book_file import Book
+from ladder.folder.book_file import Book
 from ladder.book.holdings import SECTORS, Holdings, make_holdings
 from ladder.book.holdings_file import read_holdings
 from ladder.book.table_file import read_table
 from ladder.build.rungs import Rungs
 from ladder.errors import Problems
-from ladder.policy import ratings
+from ladder.market import ratings
 from ladder.policy.model import Policy, issuer_key
 from ladder.pricing.cashflows import cash_flows
 from ladder.pricing.curve import bootstrap

@@ -12,9 +12,9 @@ import sys
 from pathlib import Path
 
 from ladder.analysis.build import BuildResult, apply_build, build_ladder, save_build, trade_records
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.book.holdings_file import COLUMNS
-from ladder.book.save import write_atomic
+from ladder.folder.save import write_atomic
 from ladder.build.program import RUNG_BAND
 from ladder.commands.common import add_book
 from ladder.commands.output import console, fmt, print_caution, write_json

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from ladder.analysis.check import check_book, check_trade_file
 from ladder.analysis.valuation import Totals
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.commands.common import add_book
 from ladder.commands.output import console, fmt, print_caution, write_json
 

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.commands.output import console, print_caution, write_csv, write_json
 from ladder.report.custodian import compare_holdings, read_custodian_file, replace_holdings
 

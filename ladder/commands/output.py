@@ -8,15 +8,8 @@ import json
 import sys
 
 from ladder import CAUTION
+from ladder.neutralize import safe_cell
 
-FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
-
-
-def safe_cell(value):
-    """A text cell a spreadsheet would run as a formula is prefixed with a quote (OWASP CSV injection)."""
-    if isinstance(value, str) and value.startswith(FORMULA_START):
-        return "'" + value
-    return value
 
 
 def write_json(document, out=None) -> None:

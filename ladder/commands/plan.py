@@ -8,7 +8,7 @@ import argparse
 from ladder.analysis.plan import (
     PLAN_MONTHS, PlanOptions, income_records, period_records, plan_book, plan_document, sale_records,
 )
-from ladder.book.book_file import REINVEST_RULES, load_book
+from ladder.folder.book_file import REINVEST_RULES, load_book
 from ladder.commands.common import add_book
 from ladder.commands.output import console, emit, fmt, print_caution, print_whole
 from ladder.plan.periods import STEPS

@@ -4,14 +4,14 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from ladder.analysis.report import month_end_report, past_report, record_month_end
-from ladder.book.book_file import load_book
+from ladder.report.month_end import month_end_report, past_report, record_month_end
+from ladder.folder.book_file import load_book
 from ladder.commands.common import add_book
 from ladder.commands.output import console, print_caution
 from ladder.errors import InputError, Problem
 from ladder.report.files import FORMATS, write_report
 from ladder.report.history import history_path, load_snapshot
-from ladder.book.journal import journal_path
+from ladder.folder.journal import journal_path
 
 HELP = ("the month-end report: holdings at amortized cost, summary against last month, activity, allocation "
         "against limits, ladder, rate shocks, income, compliance certificate")

@@ -22,7 +22,7 @@ def add_parser(subparsers) -> None:
 
 def run(args) -> int:
     from ladder.analysis.booking import roll_book
-    from ladder.book.book_file import load_book
+    from ladder.folder.book_file import load_book
 
     book = load_book(args.book)
     called = tuple(c.strip() for c in args.called.split(",") if c.strip())

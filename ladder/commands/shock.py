@@ -6,7 +6,7 @@ import re
 from pathlib import Path
 
 from ladder.analysis.shock import shock_book, shock_document, shock_rows, shock_scenarios
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.commands.common import add_book
 from ladder.commands.output import console, emit, fmt, print_caution, print_whole
 from ladder.errors import InputError, Problems

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from ladder.analysis.records import holding_records, totals_record, valuation_document
 from ladder.analysis.valuation import value_book
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.commands.common import add_book
 from ladder.commands.output import console, emit, fmt, print_caution
 

@@ -25,7 +25,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from ladder.book.book_file import REINVEST_RULES, SPREAD_BUCKETS, Book
+from ladder.folder.book_file import REINVEST_RULES, SPREAD_BUCKETS, Book
 from ladder.book.holdings import SECTORS
 from ladder.errors import Problems
 from ladder.market.dates import add_months, is_month_end

@@ -20,7 +20,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ladder.book.cash_needs import CashNeeds
-from ladder.policy import ratings
+from ladder.market import ratings
 from ladder.policy.measures import PositionMeasures
 from ladder.policy.model import Policy
 from ladder.policy.results import BREACH, NEAR, REVIEW, STATUSES, CheckResult, Finding, RuleResult

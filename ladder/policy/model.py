@@ -123,7 +123,7 @@ class Policy:
     testing: str = "at_all_times"    # one of TESTING_MODES
     near_pct: float = 90.0           # near when headroom is under (100 - near_pct)% of the limit
     cure_days: int | None = None
-    split: str = "lowest"            # ladder.policy.ratings.SPLIT_RULES
+    split: str = "lowest"            # ladder.market.ratings.SPLIT_RULES
     portfolio: PortfolioRules = PortfolioRules()
     sectors: tuple[SectorRule, ...] = ()
     issuers: tuple[IssuerRule, ...] = ()

@@ -15,7 +15,7 @@ from pathlib import Path
 
 from ladder.book.holdings import SECTORS
 from ladder.errors import Problems
-from ladder.policy import ratings
+from ladder.market import ratings
 from ladder.policy.model import (
     BASES, TESTING_MODES, IssuerRule, LiquidityFloor, MaturityLimit, Policy, PortfolioRules, SectorRule,
     issuer_key, key_path,

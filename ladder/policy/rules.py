@@ -31,7 +31,7 @@ import numpy as np
 
 from ladder.book.cash_needs import CashNeeds
 from ladder.errors import Problems
-from ladder.policy import ratings
+from ladder.market import ratings
 from ladder.policy.measures import PositionMeasures, coverage_start
 from ladder.policy.model import MaturityLimit, Policy, issuer_key
 

@@ -10,7 +10,7 @@ from __future__ import annotations
 import numpy as np
 
 from ladder.book.holdings import Holdings
-from ladder.policy.ratings import long_notches, long_symbol, short_notches, short_symbol
+from ladder.market.ratings import long_notches, long_symbol, short_notches, short_symbol
 from ladder.pricing.cashflows import CashFlows
 
 

@@ -9,19 +9,23 @@ from __future__ import annotations
 
 import numpy as np
 
-from ladder.book.book_file import Book
+from ladder.folder.book_file import Book
 from ladder.policy.model import issuer_key
-from ladder.policy.ratings import long_notches, long_symbol, short_notches, short_symbol
+from ladder.market.ratings import long_notches, long_symbol, short_notches, short_symbol
 from ladder.policy.results import PASS, CheckResult, worst
 from ladder.report.model import Chart, Column, Table
 from ladder.risk.rungs import RUNGS, rung_ends, rung_index
 
 
+NOT_CHECKED = "not checked"
+
+
 def _status(check: CheckResult, rule: str, group: str) -> str:
+    """The status of ``rule`` for ``group``; NOT_CHECKED when the check has no such rule."""
     try:
         result = check.rule(rule)
     except KeyError:
-        return PASS
+        return NOT_CHECKED
     key = issuer_key(group)
     found = [f.status for f in result.findings if issuer_key(f.group) == key]
     return worst(found) if found else (PASS if result.findings or result.status == PASS else result.status)
@@ -106,7 +110,9 @@ def issuer_table(book: Book, check: CheckResult, market_value, weight) -> Table:
         limits = _issuer_limits(book, issuer, inside, pct)
         share = float(pct[inside].sum()) / 100.0
         sectors = ", ".join(dict.fromkeys(h.sector[inside]))
-        status = worst([_status(check, key, issuer) for key, _, _ in limits])
+        statuses = [_status(check, key, issuer) for key, _, _ in limits]
+        known = [s for s in statuses if s != NOT_CHECKED]
+        status = worst(known) if len(known) == len(statuses) or worst(known) != PASS else NOT_CHECKED
         if limits:
             key, limit, counted = min(limits, key=lambda x: x[1] - x[2])
             rows.append((issuer, sectors, int(inside.sum()), float(market_value[inside].sum()), share,

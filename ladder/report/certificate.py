@@ -6,7 +6,7 @@ from __future__ import annotations
 import numpy as np
 
 from ladder.analysis.valuation import Valuation
-from ladder.book.book_file import Book
+from ladder.folder.book_file import Book
 from ladder.policy.results import BREACH, NEAR, PASS, REVIEW, CheckResult, RuleResult
 from ladder.report.model import Column, Section, Table
 

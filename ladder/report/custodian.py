@@ -3,7 +3,7 @@ replacement of the book's holdings with it (journaled), only when asked.
 
 Holdings are matched by id. A change is any difference in face, price (the quote and its kind) or
 book price, or in any other term (listed by field). Replacing writes the holdings atomically
-(``ladder.book.save.save_holdings``, previous file kept as ``.bak``) and then appends one journal
+(``ladder.folder.save.save_holdings``, previous file kept as ``.bak``) and then appends one journal
 entry per difference; if the journal cannot be written the previous holdings file is put back.
 """
 
@@ -16,11 +16,11 @@ from pathlib import Path
 
 import numpy as np
 
-from ladder.book.book_file import Book
+from ladder.folder.book_file import Book
 from ladder.book.holdings import Holdings
 from ladder.book.holdings_file import read_holdings
 from ladder.errors import Problems
-from ladder.book.journal import JournalEntry, save_with_journal
+from ladder.folder.journal import JournalEntry, save_with_journal
 
 COMPARED = ("face", "quote_type", "quote", "book_price")
 IGNORED = ("row",)

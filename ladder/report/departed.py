@@ -23,7 +23,7 @@ from ladder.errors import Problems
 from ladder.pricing.amortization import amortize
 from ladder.report import history
 from ladder.report.history import Snapshot
-from ladder.book.journal import JournalEntry
+from ladder.folder.journal import JournalEntry
 from ladder.report.model import Column, Table
 
 EXIT_ACTIONS = ("mature", "call", "sell", "remove")

@@ -1,6 +1,6 @@
 """Writing the report's files: html, xlsx or md (with its chart images) into an output folder.
 
-Every file is replaced atomically: text through ``ladder.book.save.write_atomic``, binary files
+Every file is replaced atomically: text through ``ladder.folder.save.write_atomic``, binary files
 (xlsx, png) through ``write_bytes_atomic`` (the same rule for bytes): a failure midway leaves the
 previous file as it was.
 """
@@ -11,7 +11,7 @@ import os
 import tempfile
 from pathlib import Path
 
-from ladder.book.save import write_atomic
+from ladder.folder.save import write_atomic
 from ladder.report.charts import chart_png
 from ladder.report.html import report_html
 from ladder.report.markdown import report_md

@@ -10,7 +10,7 @@ import numpy as np
 from ladder.analysis.valuation import Valuation
 from ladder.pricing.amortization import CallSchedule
 from ladder.report.accounting import Accounting
-from ladder.book.journal import JournalEntry
+from ladder.folder.journal import JournalEntry
 from ladder.report.model import Column, Table
 
 HOLDING_COLUMNS = (

@@ -12,7 +12,7 @@ from __future__ import annotations
 import numpy as np
 
 from ladder.analysis.valuation import Valuation
-from ladder.book.book_file import Book
+from ladder.folder.book_file import Book
 from ladder.market.dates import add_months, month_end
 from ladder.report.accounting import interest_by_period
 from ladder.report.model import Chart, Column, Table

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 from ladder.analysis.plan import BASE
 from ladder.analysis.shock import ShockResult
-from ladder.book.book_file import Book
+from ladder.folder.book_file import Book
 from ladder.report.model import Chart, Column, Section, Table
 
 SHOCK_COLUMNS = (Column("shift_bp", "Parallel move, bp", "bp"), Column("value", "Market value", "money"),

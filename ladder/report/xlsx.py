@@ -8,7 +8,7 @@ from __future__ import annotations
 
 import io
 
-from ladder.commands.output import safe_cell
+from ladder.neutralize import safe_cell
 from ladder.report.model import Report, Section, Table
 
 NUMBER_FORMATS = {"money": "#,##0.00", "pct": "0.000%", "price": "0.0000", "bp": "+0;-0;0", "years": "0.000",

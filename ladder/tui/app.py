@@ -19,7 +19,7 @@ from textual.widgets import ContentSwitcher, Static
 from textual.worker import get_current_worker
 
 from ladder import CAUTION
-from ladder.book.book_file import Book
+from ladder.folder.book_file import Book
 from ladder.tui import tasks
 from ladder.tui.executor import DaemonExecutor
 from ladder.tui.results import TASKS, Results
@@ -121,7 +121,7 @@ class LadderApp(App[None]):
             state.append("not available: " + ", ".join(sorted(r.errors)))
         if self.unsaved:
             state.append("UNSAVED: " + "; ".join(self.unsaved.values()))
-        line = f"{book.name}  ·  valuation date {book.valuation_date}  ·  {book.currency}"
+        line = f"{book.name} ({book.folder})  ·  valuation date {book.valuation_date}  ·  {book.currency}"
         bar = self.query_one("#book-line", Static)
         bar.update(line + ("  ·  " + "  ·  ".join(state) if state else "  ·  figures current"))
         bar.set_class(bool(self.unsaved), "-unsaved")
@@ -286,8 +286,8 @@ class LadderApp(App[None]):
 
     def save(self) -> list[Path]:
         """Write the unsaved parts of the book (atomic replace, previous file kept as .bak)."""
-        from ladder.book.journal import save_with_journal
-        from ladder.book.save import save_curve
+        from ladder.folder.journal import save_with_journal
+        from ladder.folder.save import save_curve
 
         written = []
         if "holdings" in self.unsaved:
@@ -334,7 +334,7 @@ class LadderApp(App[None]):
 def make_app(book) -> LadderApp:
     """The workstation on ``book`` (a Book, or a folder path read with ``load_book``)."""
     if not isinstance(book, Book):
-        from ladder.book.book_file import load_book
+        from ladder.folder.book_file import load_book
 
         book = load_book(book)
     return LadderApp(book)

@@ -9,7 +9,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field, replace
 from typing import Any
 
-from ladder.book.book_file import Book
+from ladder.folder.book_file import Book
 
 TASKS = ("valuation", "check", "shock", "plan")
 

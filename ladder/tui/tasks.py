@@ -56,7 +56,28 @@ DEPENDS = {"valuation": (), "check": ("valuation",), "shock": ("valuation",), "p
 
 
 def describe(error: BaseException) -> str:
-    """Text for the screen: every problem of an InputError, one a line; else the message."""
+    """Text for the screen: every problem of an InputError, one a line; for anything else its type and
+    message, with the traceback written to the log file the text names."""
     if isinstance(error, InputError):
         return "\n".join(str(p) for p in error.problems)
-    return str(error) or type(error).__name__
+    where = log_failure(error)
+    return f"{type(error).__name__}: {error} (details in {where})"
+
+
+def log_failure(error: BaseException) -> str:
+    """Append ``error``'s traceback, with the time, to ``workstation.log`` in the user's log folder;
+    returns the file's path, or why it could not be written."""
+    import datetime as dt
+    import traceback
+
+    from platformdirs import user_log_path
+
+    path = user_log_path("ladder") / "workstation.log"
+    try:
+        path.parent.mkdir(parents=True, exist_ok=True)
+        with path.open("a", encoding="utf-8") as log:
+            log.write(f"--- {dt.datetime.now().isoformat(timespec='seconds')}\n")
+            log.write("".join(traceback.format_exception(error)))
+    except OSError as failure:
+        return f"no log: {failure}"
+    return str(path)

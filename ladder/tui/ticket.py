@@ -35,7 +35,7 @@ class Ticket:
 
 
 def ticket_row(ticket: Ticket, holdings) -> dict[str, str]:
-    """The trades-file row: a sell is the holding's own row (``ladder.book.save.holdings_rows``)
+    """The trades-file row: a sell is the holding's own row (``ladder.folder.save.holdings_rows``)
     with the face to sell (InputError when the book holds no such id: nothing to complete it from)."""
     row = {name: ticket.fields.get(name, "").strip() for name in COLUMNS}
     if ticket.action == "sell":
@@ -45,7 +45,7 @@ def ticket_row(ticket: Ticket, holdings) -> dict[str, str]:
             problems.add(TICKET_FILE, 2, COLUMNS.index("id") + 1,
                          f"{row['id'] or 'an empty id'} is not in the book, so it cannot be sold")
             problems.raise_if_any()
-        from ladder.book.save import holdings_rows
+        from ladder.folder.save import holdings_rows
 
         row = dict(holdings_rows(holdings.take(hit[:1]))[0], face=row["face"])
     row["action"] = ticket.action

@@ -7,19 +7,20 @@ option-free holdings priced from the curve (no quotes), so a test controls every
 
 from __future__ import annotations
 
+from ladder.demo import demo_source
+
 import datetime as dt
 from dataclasses import replace
 from functools import lru_cache
-from pathlib import Path
 
 import numpy as np
 from hypothesis import strategies as st
 
-from ladder.book.book_file import Book, load_book
+from ladder.folder.book_file import Book, load_book
 from ladder.book.holdings import Holdings, make_holdings
 from ladder.pricing.curve import ParCurve
 
-DEMO = Path(__file__).resolve().parents[2] / "demo_portfolios" / "tessaline"
+DEMO = demo_source()
 TENORS = ("1M", "3M", "6M", "1Y", "2Y", "3Y", "5Y", "7Y", "10Y", "20Y", "30Y")
 UPWARD_PCT = (3.60, 3.70, 3.80, 3.90, 4.00, 4.10, 4.25, 4.40, 4.55, 4.80, 4.90)   # smooth, rising
 START = dt.date(2026, 12, 15)                   # first maturity month of generated holdings

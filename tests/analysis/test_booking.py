@@ -2,16 +2,15 @@
 
 from __future__ import annotations
 
-import shutil
 
 import numpy as np
 import pytest
 
-import ladder.book.journal as journal
+import ladder.folder.journal as journal
 from ladder.analysis.booking import book_trades
-from ladder.book.book_file import load_book
-from ladder.book.journal import read_journal
-from ladder.demo import DEMO_BOOK
+from ladder.folder.book_file import load_book
+from ladder.folder.journal import read_journal
+from ladder.demo import write_demo
 from ladder.policy.trades import read_trades
 
 TRADES = """id,sector,issuer,kind,face,maturity_date,coupon_pct,rating,price,action
@@ -23,7 +22,7 @@ DEMO-TSY-0101,treasury,US Treasury,discount,3000000,2026-12-17,,AA+,,sell
 @pytest.fixture()
 def book(tmp_path):
     folder = tmp_path / "book"
-    shutil.copytree(DEMO_BOOK, folder, ignore=shutil.ignore_patterns("*.bak", "history.sqlite", "journal.jsonl"))
+    write_demo(folder)
     return load_book(folder)
 
 

@@ -2,7 +2,8 @@
 
 import numpy as np
 
-from ladder.analysis.valuation import _from_settle, value_book
+from ladder.analysis.valuation import value_book
+from ladder.pricing.pricer import from_settle
 from ladder.pricing.callable import callable_prices
 from ladder.pricing.spreads import dirty_at_spread, settle_discount
 
@@ -22,7 +23,7 @@ def test_scenario_prices_equal_the_one_curve_formula():
         expected = dirty_at_spread(pricer.cash_flows, settle_discount(curves[s], pricer.cash_flows), pricer.spread)
         np.testing.assert_allclose(prices[s, option_free], expected[option_free], rtol=1e-13, atol=0)
         rows = pricer.callable_rows
-        tree = callable_prices(pricer.calls.bonds, _from_settle(curves[s], pricer.cash_flows.settle[0]),
+        tree = callable_prices(pricer.calls.bonds, from_settle(curves[s], pricer.cash_flows.settle[0]),
                                pricer.spread[rows], pricer.params)
         np.testing.assert_allclose(prices[s, rows], tree, rtol=1e-13, atol=0)
     # One curve gives one row; the base curve reprices every holding at its valuation price.

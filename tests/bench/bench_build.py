@@ -9,6 +9,8 @@ in the same run, and the whole build (valuation, program, solve, what-if check, 
 
 from __future__ import annotations
 
+from ladder.demo import demo_source
+
 import csv
 import statistics
 import sys
@@ -19,7 +21,7 @@ from pathlib import Path
 import numpy as np
 
 from ladder.analysis.build import build_ladder
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.book.holdings_file import COLUMNS
 
 ROOT = Path(__file__).resolve().parents[2]
@@ -60,7 +62,7 @@ def offerings(path: Path, settle: np.datetime64, rng: np.random.Generator) -> No
 
 
 def main() -> int:
-    book = load_book(ROOT / "demo_portfolios" / "tessaline")
+    book = load_book(demo_source())
     rng = np.random.default_rng(7)
     with tempfile.TemporaryDirectory() as folder:
         path = Path(folder) / "offerings.csv"

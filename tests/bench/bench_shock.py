@@ -22,6 +22,8 @@ durations, output).
 
 from __future__ import annotations
 
+from ladder.demo import demo_source
+
 import argparse
 import csv
 import datetime as dt
@@ -43,10 +45,10 @@ from test_curve_quantlib import quantlib_curve  # noqa: E402
 
 from ladder.analysis.shock import shock_book  # noqa: E402
 from ladder.analysis.valuation import value_book  # noqa: E402
-from ladder.book.book_file import load_book  # noqa: E402
+from ladder.folder.book_file import load_book  # noqa: E402
 
 ROOT = Path(__file__).resolve().parents[2]
-DEMO = ROOT / "demo_portfolios" / "tessaline"
+DEMO = demo_source()
 SHIFTS_BP = np.arange(-300.0, 301.0, 10.0)
 COLUMNS = ("id", "sector", "issuer", "kind", "face", "maturity_date", "coupon_pct", "frequency", "day_count",
            "issue_date", "rating", "short_rating", "price", "yield_pct", "discount_rate_pct", "book_price",

@@ -11,23 +11,22 @@ from __future__ import annotations
 
 import asyncio
 import csv
-import shutil
 import statistics
 import sys
 import tempfile
 import time
 from pathlib import Path
 
-from ladder.book.book_file import load_book
-from ladder.demo import DEMO_BOOK
+from ladder.folder.book_file import load_book
+from ladder.demo import demo_source, write_demo
 
 COPIES = 146
 ROUNDS = 3
 
 
 def big_book(folder: Path):
-    shutil.copytree(DEMO_BOOK, folder)
-    rows = list(csv.DictReader(open(DEMO_BOOK / "holdings.csv", newline="", encoding="utf-8")))
+    write_demo(folder)
+    rows = list(csv.DictReader(open(demo_source() / "holdings.csv", newline="", encoding="utf-8")))
     with open(folder / "holdings.csv", "w", newline="", encoding="utf-8") as out:
         writer = csv.DictWriter(out, fieldnames=list(rows[0]))
         writer.writeheader()
@@ -94,7 +93,7 @@ async def builtin_table_fill(book) -> float:
 def main() -> None:
     with tempfile.TemporaryDirectory() as folder:
         big = big_book(Path(folder) / "big")
-        demo = load_book(DEMO_BOOK)
+        demo = load_book(demo_source())
         small = asyncio.run(switches(demo))
         large = asyncio.run(switches(big))
         fill = asyncio.run(builtin_table_fill(big))

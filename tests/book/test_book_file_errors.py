@@ -12,7 +12,7 @@ from pathlib import Path
 import pytest
 
 from ladder.analysis.valuation import value_book
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.errors import InputError
 
 DOCS = Path(__file__).resolve().parents[2] / "docs"

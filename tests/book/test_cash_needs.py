@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from ladder.demo import demo_source
+
 from pathlib import Path
 
 import numpy as np
@@ -11,7 +13,7 @@ import pytest
 from ladder.book.cash_needs import CashNeeds, read_cash_needs
 from ladder.errors import InputError
 
-DEMO = Path(__file__).resolve().parents[2] / "demo_portfolios" / "tessaline" / "cash_needs.csv"
+DEMO = demo_source() / "cash_needs.csv"
 
 
 def write(tmp_path, text: str, encoding="utf-8") -> Path:

@@ -7,10 +7,12 @@ at all times (so "no breach and no review" means every limit holds), one cash ne
 
 from __future__ import annotations
 
+from ladder.demo import demo_source, write_demo
+
 import shutil
 from pathlib import Path
 
-DEMO = Path(__file__).resolve().parents[2] / "demo_portfolios" / "tessaline"
+DEMO = demo_source()
 RUNGS = "1Y,2Y,3Y,5Y"
 
 HOLDINGS = """id,sector,issuer,kind,face,maturity_date,coupon_pct,frequency,day_count,issue_date,first_coupon_date,rating,short_rating,rating_at_purchase,price,yield_pct,discount_rate_pct,book_price,purchase_date,first_call_date,call_frequency,call_price
@@ -78,5 +80,5 @@ def make_book(folder: Path, duration: float = 1.5, need: float = 6_000_000) -> P
 
 def demo_copy(folder: Path) -> Path:
     """A copy of the demo book (the real demo files are never modified)."""
-    shutil.copytree(DEMO, folder)
+    write_demo(folder)
     return folder

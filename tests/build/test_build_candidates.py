@@ -6,11 +6,11 @@ import pytest
 
 from build_books import DEMO, OFFERINGS, OFFERINGS_HEADER, make_book
 from ladder.analysis.valuation import value_book
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.build.candidates import eligible, fund_candidates, generic_candidates, read_offerings
 from ladder.build.rungs import make_rungs
 from ladder.errors import InputError
-from ladder.policy import ratings
+from ladder.market import ratings
 
 
 @pytest.fixture(scope="module")

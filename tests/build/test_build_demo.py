@@ -9,7 +9,7 @@ import pytest
 from build_books import DEMO
 from ladder.analysis.build import BuildResult, apply_build, build_ladder
 from ladder.analysis.check import check_book, check_proposed, check_trade_file
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.commands.build import trades_csv
 from ladder.errors import InputError
 

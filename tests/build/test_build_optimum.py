@@ -12,7 +12,7 @@ from build_books import RUNGS, make_book
 from ladder.analysis.build import build_ladder
 from ladder.analysis.check import check_proposed
 from ladder.analysis.valuation import value_book
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.book.holdings import Holdings
 from ladder.build.candidates import read_offerings
 from ladder.build.rungs import make_rungs

@@ -11,7 +11,7 @@ from hypothesis import strategies as st
 from build_books import RUNGS, make_book
 from ladder.analysis.build import build_ladder
 from ladder.analysis.check import check_proposed
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 
 
 @pytest.fixture(scope="module")

@@ -6,9 +6,9 @@ nothing written; applying a build leaves a book ``ladder check`` passes); the CL
 (0 ok, 1 no ladder fits, 2 bad input).
 """
 
+from ladder.demo import demo_source, write_demo
 import json
 import os
-import shutil
 import subprocess
 import sys
 from pathlib import Path
@@ -16,7 +16,7 @@ from pathlib import Path
 import pytest
 
 ROOT = Path(__file__).resolve().parents[2]
-DEMO = ROOT / "demo_portfolios" / "tessaline"
+DEMO = demo_source()
 
 
 def ladder(*args, stdin: str | None = None) -> subprocess.CompletedProcess:
@@ -28,7 +28,7 @@ def ladder(*args, stdin: str | None = None) -> subprocess.CompletedProcess:
 @pytest.fixture
 def book(tmp_path) -> Path:
     folder = tmp_path / "tessaline"
-    shutil.copytree(DEMO, folder)
+    write_demo(folder)
     return folder
 
 

@@ -7,6 +7,7 @@ Source: issue 5's contract: ``ladder plan BOOK [--at DATE] [--months N] [--scena
 (exit status 2, every problem on stderr, no traceback).
 """
 
+from ladder.demo import demo_source, write_demo
 import csv
 import io
 import json
@@ -19,7 +20,7 @@ from pathlib import Path
 import pytest
 
 ROOT = Path(__file__).resolve().parents[2]
-DEMO = ROOT / "demo_portfolios" / "tessaline"
+DEMO = demo_source()
 MINIMAL_POLICY = '[policy]\nname = "CLI test"\nversion = "1"\nadopted = 2024-01-01\n\n[portfolio]\nmax_maturity_years = 5\n'
 PERIOD_FIELDS = ("start", "end", "opening_cash", "coupons", "principal", "needs", "reinvested", "closing_cash",
                  "shortfall")
@@ -28,7 +29,7 @@ PERIOD_FIELDS = ("start", "end", "opening_cash", "coupons", "principal", "needs"
 @pytest.fixture(scope="module")
 def book(tmp_path_factory) -> Path:
     folder = tmp_path_factory.mktemp("cli") / "tessaline"
-    shutil.copytree(DEMO, folder)
+    write_demo(folder)
     if not (folder / "policy.toml").exists():
         (folder / "policy.toml").write_text(MINIMAL_POLICY, encoding="utf-8")
     return folder

@@ -2,21 +2,19 @@
 
 from __future__ import annotations
 
-import shutil
 
 import pytest
 
-from ladder.book.book_file import load_book
-from ladder.book.journal import read_journal
+from ladder.folder.book_file import load_book
+from ladder.folder.journal import read_journal
 from ladder.cli import main
-from ladder.demo import DEMO_BOOK
+from ladder.demo import write_demo
 
 
 @pytest.fixture()
 def folder(tmp_path):
     target = tmp_path / "book"
-    shutil.copytree(DEMO_BOOK, target, ignore=shutil.ignore_patterns("*.bak", "history.sqlite", "journal.jsonl",
-                                                                     "reports"))
+    write_demo(target)
     return target
 
 

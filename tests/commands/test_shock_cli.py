@@ -1,15 +1,15 @@
 """``ladder shock`` on the demo book: json, csv and table output, and refused input (exit 2)."""
 
+from ladder.demo import demo_source
 import csv
 import io
 import json
-from pathlib import Path
 
 import pytest
 
 from ladder.cli import main
 
-DEMO = str(Path(__file__).resolve().parents[2] / "demo_portfolios" / "tessaline")
+DEMO = str(demo_source())
 
 
 def run(capsys, *args):

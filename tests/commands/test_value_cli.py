@@ -1,29 +1,27 @@
-"""``ladder value`` end to end (a subprocess, as a user runs it), and the layering rule that the model
-never imports Textual or rich.
+"""``ladder value`` end to end (a subprocess, as a user runs it).
 
 Sources: issue 2's contract (the json document and its fields, exit status 0 / 2, problems on stderr
 with no traceback, the totals' definitions: market-value-weighted semiannual bond-equivalent yield,
-MV-weighted modified duration and convexity, total DV01, WAM in days); DESIGN.md ("the model never
-imports Textual or rich": a test that imports the model modules in a subprocess and checks sys.modules).
+MV-weighted modified duration and convexity, total DV01, WAM in days).
 """
 
+from ladder.demo import demo_source, write_demo
 import csv
 import io
 import json
 import os
 import re
-import shutil
 import subprocess
 import sys
 from pathlib import Path
 
 import pytest
 
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.errors import InputError
 
 ROOT = Path(__file__).resolve().parents[2]
-DEMO = ROOT / "demo_portfolios" / "tessaline"
+DEMO = demo_source()
 HOLDING_FIELDS = ("id", "clean_price", "accrued", "dirty_price", "market_value", "ytm_pct", "macaulay_duration",
                   "modified_duration", "convexity", "dv01", "book_value", "unrealized_gain")
 TOTAL_FIELDS = ("face", "market_value", "book_value", "unrealized_gain", "ytm_pct", "modified_duration",
@@ -48,7 +46,7 @@ def demo(tmp_path_factory) -> Path:
         if not all(Path(p.file).name == "policy.toml" for p in error.problems):
             raise
     copy = tmp_path_factory.mktemp("demo") / "tessaline"
-    shutil.copytree(DEMO, copy)
+    write_demo(copy)
     example = re.search(r"```toml\n(.*?)```", (ROOT / "docs" / "policy.md").read_text(encoding="utf-8"), re.S)
     (copy / "policy.toml").write_text(example.group(1), encoding="utf-8")
     return copy
@@ -136,7 +134,7 @@ def test_at_moves_the_settlement_date(demo, document, tmp_path):
     # the next day their money is available) are taken out of a copy of the book first.
     later = "2026-12-15"
     copy = tmp_path / "later"
-    shutil.copytree(demo, copy)
+    write_demo(copy)
     lines = (copy / "holdings.csv").read_text(encoding="utf-8").splitlines()
     at = lines[0].split(",").index("maturity_date")
     kept = [lines[0]] + [line for line in lines[1:] if line.split(",")[at] > later]
@@ -152,7 +150,7 @@ def test_at_moves_the_settlement_date(demo, document, tmp_path):
 def test_bad_book_exits_2_with_every_problem_and_no_traceback(demo, tmp_path):
     # issue 2: a book with problems is refused whole (exit 2), every problem on stderr as file:row:column
     bad = tmp_path / "bad"
-    shutil.copytree(demo, bad)
+    write_demo(bad)
     lines = (bad / "holdings.csv").read_text(encoding="utf-8").splitlines()
     header = lines[0].split(",")
     row = lines[1].split(",")
@@ -172,27 +170,3 @@ def test_bad_book_exits_2_with_every_problem_and_no_traceback(demo, tmp_path):
 def test_missing_book_folder_exits_2(tmp_path):
     done = ladder("value", tmp_path / "nowhere")
     assert done.returncode == 2 and "Traceback" not in done.stderr and "book.toml" in done.stderr
-
-
-def test_model_never_imports_textual_or_rich():
-    # DESIGN.md: the model never imports Textual or rich. Import every module of the model packages and
-    # the valuation facade in a fresh interpreter, then look at sys.modules.
-    script = (
-        "import importlib, pkgutil, sys\n"
-        "import ladder\n"
-        "names = ['ladder.analysis.valuation', 'ladder.analysis.records', 'ladder.errors']\n"
-        "for package in ('market', 'pricing', 'book', 'policy', 'risk', 'plan', 'build'):\n"
-        "    try:\n"
-        "        module = importlib.import_module('ladder.' + package)\n"
-        "    except ModuleNotFoundError:\n"
-        "        continue\n"
-        "    names.append(module.__name__)\n"
-        "    names += [m.name for m in pkgutil.walk_packages(module.__path__, module.__name__ + '.')]\n"
-        "for name in names:\n"
-        "    importlib.import_module(name)\n"
-        "bad = sorted(m for m in sys.modules if m.split('.')[0] in ('textual', 'rich'))\n"
-        "print(len(names), bad)\n"
-        "sys.exit(1 if bad else 0)\n")
-    done = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, cwd=ROOT, timeout=300)
-    assert done.returncode == 0, done.stdout + done.stderr
-    assert int(done.stdout.split()[0]) >= 20          # the model modules were really imported

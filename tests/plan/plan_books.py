@@ -13,7 +13,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.pricing.curve import ParCurve, par_instruments
 
 TENORS = ("1M", "3M", "6M", "1Y", "2Y", "3Y", "5Y", "7Y", "10Y")

@@ -10,7 +10,7 @@ from __future__ import annotations
 import numpy as np
 import pytest
 
-from ladder.analysis.valuation import _from_settle
+from ladder.pricing.pricer import from_settle
 from ladder.book.holdings import make_holdings
 from ladder.plan.calls import expected_calls
 from ladder.plan.rates import RatePath
@@ -43,7 +43,7 @@ def test_forward_path_is_the_tree_at_zero_volatility(shift_bp):
     cf, terms, inputs = _inputs()
     curve = CURVE.shifted(shift_bp)
     _, today = expected_calls(RatePath(curve, "forward"), *inputs)
-    tree = callable_prices(terms.bonds, _from_settle(curve, TODAY), OAS, HullWhiteParams(0.03, 1e-8, 52))
+    tree = callable_prices(terms.bonds, from_settle(curve, TODAY), OAS, HullWhiteParams(0.03, 1e-8, 52))
     assert np.allclose(today, tree, atol=1e-9)
 
 

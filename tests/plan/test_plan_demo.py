@@ -8,25 +8,25 @@ due that month plus 5.0 million if DEMO-AGY-0322 is called on its one call date,
 
 from __future__ import annotations
 
+from ladder.demo import demo_source, write_demo
+
 import json
-import shutil
-from pathlib import Path
 
 import numpy as np
 import pytest
 
 from ladder.analysis.plan import PlanOptions, plan_book, plan_document
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.risk.scenarios import DEFAULT_PARALLEL_BP
 from plan_books import POLICY
 
-DEMO = Path(__file__).resolve().parents[2] / "demo_portfolios" / "tessaline"
+DEMO = demo_source()
 
 
 @pytest.fixture(scope="module")
 def demo(tmp_path_factory):
     folder = tmp_path_factory.mktemp("demo") / "tessaline"
-    shutil.copytree(DEMO, folder)
+    write_demo(folder)
     if not (folder / "policy.toml").exists():        # the demo's own policy, once written, is used as is
         (folder / "policy.toml").write_text(POLICY, encoding="utf-8")
     return load_book(folder)

@@ -6,15 +6,15 @@ from __future__ import annotations
 import pytest
 
 from ladder.analysis.valuation import value_book
-from ladder.book.book_file import load_book
-from ladder.demo import DEMO_BOOK
+from ladder.folder.book_file import load_book
+from ladder.demo import demo_source
 from ladder.policy.checker import check
 from ladder.policy.measures import PositionMeasures, cash_by_month
 
 
 @pytest.fixture(scope="module")
 def result():
-    book = load_book(DEMO_BOOK)
+    book = load_book(demo_source())
     v = value_book(book)
     months = book.policy.portfolio.cash_needs_horizon_months
     m = PositionMeasures(v.holdings, v.as_of, v.market_value, v.book_value, v.effective_duration,

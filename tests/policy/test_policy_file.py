@@ -3,6 +3,8 @@ problem at once, each with its key path, line and (for near-misspellings) a sugg
 
 from __future__ import annotations
 
+from ladder.demo import demo_source
+
 import datetime as dt
 import re
 from pathlib import Path
@@ -54,7 +56,7 @@ def test_documented_example_loads():
 
 
 def test_demo_policy_loads():
-    p = load_policy(ROOT / "demo_portfolios" / "tessaline" / "policy.toml")
+    p = load_policy(demo_source() / "policy.toml")
     assert p.testing == "at_purchase" and p.basis == "market"
     assert p.sector("commercial_paper").max_maturity == MaturityLimit(270, "days",
                                                                       "sectors.commercial_paper.max_maturity_days")

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from ladder.demo import demo_source
+
 import datetime as dt
 from pathlib import Path
 
@@ -12,7 +14,7 @@ from ladder.book.holdings_file import read_holdings
 from ladder.errors import InputError, Problems
 from ladder.policy.trades import apply_trades, read_trades
 
-DEMO = Path(__file__).resolve().parents[2] / "demo_portfolios" / "tessaline"
+DEMO = demo_source()
 VALUATION = dt.date(2026, 11, 30)
 HEADER = "id,action,sector,issuer,face,maturity_date,coupon_pct,rating,short_rating,price,discount_rate_pct\n"
 BUY_CP = "NEW-CP-1,buy,commercial_paper,Marigold Foods Finance Corp,3000000,2027-04-15,,,A-1,,3.9\n"

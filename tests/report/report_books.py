@@ -2,20 +2,19 @@
 
 from __future__ import annotations
 
-import shutil
 
-from ladder.demo import DEMO_BOOK
+from ladder.demo import write_demo
 
 
 def copy_demo(target):
-    shutil.copytree(DEMO_BOOK, target)
+    write_demo(target)
     return target
 
 
 def recorded_month_end(folder):
     """The month-end report of the book in ``folder`` at its valuation date, recorded in its history."""
-    from ladder.analysis.report import month_end_report, record_month_end
-    from ladder.book.book_file import load_book
+    from ladder.report.month_end import month_end_report, record_month_end
+    from ladder.folder.book_file import load_book
 
     book = load_book(folder)
     m = month_end_report(book)

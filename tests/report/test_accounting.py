@@ -8,9 +8,9 @@ import numpy as np
 import pytest
 
 from ladder.analysis.valuation import value_book
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.book.holdings import make_holdings
-from ladder.demo import DEMO_BOOK
+from ladder.demo import demo_source
 from ladder.report.accounting import accounting_figures, interest_by_period
 
 FACE = 100_000.0
@@ -18,7 +18,7 @@ FACE = 100_000.0
 
 @pytest.fixture(scope="module")
 def demo():
-    return load_book(DEMO_BOOK)
+    return load_book(demo_source())
 
 
 def _book(demo, **terms):

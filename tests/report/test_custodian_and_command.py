@@ -8,11 +8,11 @@ import io
 import json
 from contextlib import redirect_stdout
 
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.cli import main
 from ladder.commands import custodian as custodian_command
 from ladder.report.custodian import compare_holdings, read_custodian_file
-from ladder.book.journal import read_journal
+from ladder.folder.journal import read_journal
 
 
 def _custodian_file(folder, path):

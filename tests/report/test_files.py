@@ -17,7 +17,7 @@ from openpyxl import load_workbook
 
 from ladder.cli import main
 from ladder.report.files import write_report
-from ladder.book.journal import JournalEntry
+from ladder.folder.journal import JournalEntry
 from ladder.report.model import Column, Report, Section, Table
 from ladder.report.xlsx import report_xlsx
 

@@ -7,14 +7,14 @@ import sqlite3
 
 import pytest
 
-import ladder.book.save as save
-import ladder.book.journal as journal
+import ladder.folder.save as save
+import ladder.folder.journal as journal
 import ladder.report.custodian as custodian
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.errors import InputError
 from ladder.report import history
 from ladder.report.history import Snapshot, input_file, load_snapshot, record_snapshot, snapshot_dates
-from ladder.book.journal import JournalEntry, append_journal, journal_path, read_journal
+from ladder.folder.journal import JournalEntry, append_journal, journal_path, read_journal
 
 
 def _snapshot(as_of: dt.date, value: float, holdings: dict | None = None) -> Snapshot:

@@ -11,10 +11,10 @@ import math
 import pytest
 from report_books import copy_demo, recorded_month_end
 
-from ladder.analysis.report import month_end_report, past_report, record_month_end
-from ladder.book.book_file import load_book
+from ladder.report.month_end import month_end_report, past_report, record_month_end
+from ladder.folder.book_file import load_book
 from ladder.report.history import snapshot_dates
-from ladder.book.journal import JournalEntry, append_journal, read_journal
+from ladder.folder.journal import JournalEntry, append_journal, read_journal
 
 FIRST, SECOND = dt.date(2026, 11, 30), dt.date(2026, 12, 31)
 

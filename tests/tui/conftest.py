@@ -8,12 +8,11 @@ from __future__ import annotations
 
 import asyncio
 import csv
-import shutil
 
 import pytest
 
-from ladder.book.book_file import load_book
-from ladder.demo import DEMO_BOOK
+from ladder.folder.book_file import load_book
+from ladder.demo import demo_source, write_demo
 
 SIZE = (160, 45)
 BIG_COPIES = 146          # 146 x the demo's 69 holdings = 10,074 holdings
@@ -40,15 +39,16 @@ def drive(book, script, size=SIZE):
 
 
 @pytest.fixture(scope="session")
-def demo_book():
-    return load_book(DEMO_BOOK)
+def demo_book(tmp_path_factory):
+    """The demo book, from a copy of its own files (never what a run left in the demo folder)."""
+    return load_book(write_demo(tmp_path_factory.mktemp("demo") / "book"))
 
 
 @pytest.fixture
 def book_copy(tmp_path):
     """A private copy of the demo book folder (for saving), loaded."""
     folder = tmp_path / "book"
-    shutil.copytree(DEMO_BOOK, folder)
+    write_demo(folder)
     return load_book(folder)
 
 
@@ -56,8 +56,8 @@ def book_copy(tmp_path):
 def big_book(tmp_path_factory):
     """The demo book with its holdings repeated under new ids: 10,074 holdings."""
     folder = tmp_path_factory.mktemp("big") / "book"
-    shutil.copytree(DEMO_BOOK, folder)
-    with open(DEMO_BOOK / "holdings.csv", newline="", encoding="utf-8") as source:
+    write_demo(folder)
+    with open(demo_source() / "holdings.csv", newline="", encoding="utf-8") as source:
         rows = list(csv.DictReader(source))
     with open(folder / "holdings.csv", "w", newline="", encoding="utf-8") as out:
         writer = csv.DictWriter(out, fieldnames=list(rows[0]))

@@ -13,7 +13,7 @@ sys.path.insert(0, str(Path(__file__).parent))
 
 from conftest import settle  # noqa: E402
 
-from ladder.demo import DEMO_BOOK  # noqa: E402
+from ladder.demo import demo_source  # noqa: E402
 
 OUT = Path(__file__).resolve().parents[2] / "docs" / "img"
 SIZE = (140, 42)
@@ -22,7 +22,7 @@ SIZE = (140, 42)
 async def main() -> None:
     from ladder.tui.app import make_app
 
-    app = make_app(DEMO_BOOK)
+    app = make_app(demo_source())
     async with app.run_test(size=SIZE) as pilot:
         await settle(app, pilot)
 

@@ -9,7 +9,7 @@ import sys
 
 from conftest import drive
 from ladder import CAUTION
-from ladder.demo import DEMO_BOOK
+from ladder.demo import demo_files, demo_source
 
 
 def test_keys_switch_every_view_and_focus_follows(demo_book):
@@ -130,12 +130,21 @@ def test_quitting_without_changes_does_not_ask(demo_book):
     assert not drive(demo_book, script).is_running
 
 
-def test_open_is_the_default_command_on_the_demo_book():
+def test_open_is_the_default_command_on_a_working_copy_of_the_demo(tmp_path, monkeypatch):
+    # issue 12: `ladder` alone opens a copy in the user's data folder (XDG_DATA_HOME on Linux, as
+    # platformdirs reads it), made on first use, never the installed files.
     from ladder.cli import _parser
+    from ladder.demo import working_demo
 
     args = _parser().parse_args(["open"])
-    assert args.book == str(DEMO_BOOK)
-    assert args.run.__module__ == "ladder.commands.open"
+    assert args.book is None and args.run.__module__ == "ladder.commands.open"
+    monkeypatch.setenv("XDG_DATA_HOME", str(tmp_path))
+    folder = working_demo()
+    assert folder.is_relative_to(tmp_path) and (folder / "book.toml").is_file()
+    assert sorted(p.name for p in folder.iterdir()) == sorted(p.name for p in demo_files())
+    (folder / "holdings.csv").write_text("changed by the user", encoding="utf-8")
+    assert working_demo() == folder and (folder / "holdings.csv").read_text(encoding="utf-8") == "changed by the user"
+    assert "changed" not in (demo_source() / "holdings.csv").read_text(encoding="utf-8")
 
 
 def test_reporting_commands_never_load_textual():

@@ -11,7 +11,7 @@ from ladder.analysis.check import check_book
 from ladder.analysis.plan import plan_book
 from ladder.analysis.shock import shock_book
 from ladder.analysis.valuation import value_book
-from ladder.book.book_file import load_book
+from ladder.folder.book_file import load_book
 from ladder.risk.rungs import RUNGS, rung_index
 from ladder.tui import format as fmt
 
@@ -291,7 +291,7 @@ def test_builder_accept_adds_the_proposed_holdings_and_save_writes_them(book_cop
     assert list(reread.holdings.id) == seen["after"]
     assert (book_copy.folder / "holdings.csv.bak").exists()
     # issue 9: every change made through the tool is journaled with the save
-    from ladder.book.journal import read_journal
+    from ladder.folder.journal import read_journal
     journal = read_journal(book_copy.folder)
     assert [(e.action, e.holding) for e in journal] == [("buy", t) for t in seen["trades"]]
 

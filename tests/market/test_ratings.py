@@ -17,7 +17,7 @@ import math
 import numpy as np
 import pytest
 
-from ladder.policy import ratings as r
+from ladder.market import ratings as r
 
 # S&P "Ratings Definitions": the categories best to worst, '+'/'-' from AA to CCC only.
 SP_LONG = ["AAA", "AA+", "AA", "AA-", "A+", "A", "A-", "BBB+", "BBB", "BBB-", "BB+", "BB", "BB-",

@@ -21,7 +21,7 @@ from ladder.analysis.check import check_book, position_measures
 from ladder.analysis.plan import plan_book
 from ladder.analysis.shock import shock_book
 from ladder.analysis.valuation import Valuation
-from ladder.book.book_file import BOOK_FILE, Book
+from ladder.folder.book_file import BOOK_FILE, Book
 from ladder.policy.results import CheckResult
 from ladder.report import history
 from ladder.report.accounting import Accounting, accounting_figures
@@ -31,7 +31,7 @@ from ladder.report.departed import departed_income, departed_table, previous_hol
 from ladder.report.history import InputFile, Snapshot, input_file
 from ladder.report.holdings_table import activity_table, holdings_table
 from ladder.report.income import income_projection, liquidity_statement
-from ladder.book.journal import entries_between, journal_path, read_journal
+from ladder.folder.journal import entries_between, journal_path, read_journal
 from ladder.report.model import Report, Section
 from ladder.report.shock_table import shock_section
 from ladder.report.summary import summary_figures, summary_table

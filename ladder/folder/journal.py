@@ -15,7 +15,7 @@ import os
 from dataclasses import asdict, dataclass
 from pathlib import Path
 
-from ladder.book.save import write_atomic
+from ladder.folder.save import write_atomic
 from ladder.errors import Problems
 
 JOURNAL_FILE = "journal.jsonl"
@@ -113,7 +113,7 @@ def save_with_journal(book, holdings, entries) -> Path:
     cannot be written, the previous holdings file is put back, so the book and its journal never
     disagree. Returns the holdings file written.
     """
-    from ladder.book.save import save_holdings
+    from ladder.folder.save import save_holdings
 
     path = save_holdings(book, holdings)
     backup = path.with_name(path.name + ".bak")
