@@ -2,12 +2,15 @@
 
 What it does (the rules are in ``ladder.plan``'s modules and docs/methods.md, "Cash plan"):
 - values the book (``value_book``) and moves the curve by the scenario (``--scenario`` / ``--bp``;
-  the base case is no move), which then stays or follows today's forwards (``rates``);
+  the base case is no move), which then stays or follows today's forwards (``rates``); a scenario
+  that moves spreads (``ladder.risk.scenarios.SpreadMove``) moves them for the whole horizon: the
+  holdings' spreads (OAS for callables) in sale prices, call decisions and horizon values, and the
+  reinvestment spread by the move of the bought sector (``reinvestment_move_bp``);
 - buckets the holdings' coupons and principal (with the calls the scenario expects) and the cash
   needs by period, runs the periods (``ladder.plan.projection``) with the reinvestment rule, and
   finds the first shortfall and the sales that would cover it;
 - for the base case and every scenario of the shock set (the parallel set, the standard non-parallel
-  set and the book's own scenarios) runs the first 12 months again: interest income on an accrual
+  set, the standard credit set and the book's own scenarios) runs the first 12 months again: interest income on an accrual
   basis and the 12-month total return (the income-at-risk table).
 Holdings without a book price or purchase date are amortized from the plan date at today's price.
 """
@@ -25,6 +28,7 @@ import numpy as np
 from ladder.analysis.records import clean_number
 from ladder.analysis.valuation import Valuation, value_book
 from ladder.folder.book_file import Book
+from ladder.pricing.spreads import RATING_BUCKETS
 from ladder.book.holdings import Holdings
 from ladder.errors import InputError, Problems
 from ladder.market.dates import NAT, to_days
@@ -37,6 +41,7 @@ from ladder.plan.reinvestment import Reinvestment, resolve_reinvestment, with_sp
 from ladder.plan.returns import HorizonReturn, holdings_value, modified_dietz
 from ladder.pricing.amortization import Amortization, CallSchedule, amortize
 from ladder.pricing.quotes import cf_rows
+from ladder.risk.credit import at_spread, credit_set
 from ladder.risk.scenarios import (
     DEFAULT_PARALLEL_BP, MAX_SHIFT_BP, Scenario, parallel, parallel_set, standard_non_parallel,
 )
@@ -110,9 +115,10 @@ class CashPlan:
 
 def scenario_choices(book: Book) -> dict[str, Scenario]:
     """Every scenario ``--scenario`` can name: the base case, the parallel set, the standard
-    non-parallel set and the book's own scenarios (``scenarios.csv``), by name."""
+    non-parallel set, the standard credit set and the book's own scenarios (``scenarios.csv``), by name."""
     choices = {BASE: parallel(book.curve, 0.0)}
-    for s in (*parallel_set(book.curve, DEFAULT_PARALLEL_BP), *standard_non_parallel(book.curve), *book.scenarios):
+    for s in (*parallel_set(book.curve, DEFAULT_PARALLEL_BP), *standard_non_parallel(book.curve),
+              *credit_set(book.curve), *book.scenarios):
         if s.parallel_bp != 0.0:
             choices.setdefault(s.name, s)
     return choices
@@ -151,6 +157,21 @@ def _option_problems(options: PlanOptions) -> Problems:
     return problems
 
 
+def reinvestment_move_bp(book: Book, scenario: Scenario, sector: str) -> float:
+    """The scenario's move of the reinvestment spread, bp: the face-weighted move of the book's own
+    (non-callable) holdings of ``sector``, whose spreads set the reinvestment spread; when it holds
+    none, the move of the ``[spreads]`` bucket the spread was read from (``default``: the sector's
+    move for every bucket)."""
+    h = book.holdings
+    rows = (h.sector == sector) & (h.kind != "fund") & ~h.callable
+    if rows.any():
+        return float((scenario.spread_shift_bp(h)[rows] * h.face[rows]).sum() / h.face[rows].sum())
+    moves = {(m.sector, m.bucket): m.bp for m in scenario.spread_moves}
+    table = book.spreads.get(sector, {})
+    bucket = next((b for b in RATING_BUCKETS if b in table and "default" not in table), "")
+    return moves.get((sector, bucket), moves.get((sector, ""), 0.0))
+
+
 class _Planner:
     """The book-level pieces every scenario's projection shares; ``run`` does one scenario."""
 
@@ -165,7 +186,8 @@ class _Planner:
         fund = full.kind == "fund"
         self.opening_cash = float(full.face[fund].sum())
         self.base_short = float(RatePath(valuation.curve).short_rate(np.array([self.as_of]))[0])
-        table = book.spreads.get("fund", {}).get("default", 0.0) / 1e4
+        fund_table = book.spreads.get("fund", {}).get("default")
+        table = 0.0 if fund_table is None else float(fund_table.at(0.0)) / 1e4
         self.fund_yield = (float((full.quote[fund] * full.face[fund]).sum() / full.face[fund].sum())
                            if fund.any() else self.base_short + table)
         missing = np.isnan(self.h.book_price) | np.isnat(self.h.purchase_date) | (self.h.purchase_date > self.as_of)
@@ -190,18 +212,23 @@ class _Planner:
             return where, None
         cf = cf_rows(self.cf, where)
         return where, (cf.dates, np.where(cf.mask, cf.amount, 0.0), cf.mask, terms.dates,
-                       terms.prices + terms.accrued, terms.mask, self.spread[where])
+                       terms.prices + terms.accrued, terms.mask)
 
     def path(self, scenario: Scenario) -> RatePath:
         curve = self.valuation.curve
         moved = curve if not np.any(scenario.shift_bp_by_tenor) else curve.shifted(scenario.shift_bp_by_tenor)
         return RatePath(moved, self.options.rates)
 
-    def redeemed_on(self, path: RatePath) -> np.ndarray:
+    def spread_move(self, scenario: Scenario) -> np.ndarray:
+        """The scenario's move of each planned holding's spread (``h``), decimal."""
+        return scenario.spread_shift_bp(self.h) / 1e4
+
+    def redeemed_on(self, path: RatePath, spread: np.ndarray) -> np.ndarray:
+        """The call date each callable is expected on (NaT otherwise), at ``spread`` (OAS, decimal)."""
         where, inputs = self.callable_inputs
         out = np.full(len(self.h), NAT)
         if inputs is not None:
-            out[where] = expected_calls(path, *inputs)[0]
+            out[where] = expected_calls(path, *inputs, spread[where])[0]
         return out
 
     def amortization(self, redeemed: np.ndarray) -> Amortization:
@@ -219,18 +246,20 @@ class _Planner:
         return self._cash[key]
 
     def sale_clean(self, scenario: Scenario, path: RatePath) -> np.ndarray:
-        """Valuation prices under the scenario: today's clean prices on the moved curve."""
-        if not np.any(scenario.shift_bp_by_tenor):
+        """Valuation prices under the scenario: today's clean prices on the moved curve at the moved spreads."""
+        if not np.any(scenario.shift_bp_by_tenor) and not scenario.spread_moves:
             return self.valuation.clean[self.rows]
-        return self.valuation.pricer.dirty(path.curve)[self.rows] - self.cf.accrued
+        pricer = at_spread(self.valuation.pricer, scenario.spread_shift_bp(self.book.holdings) / 1e4)
+        return pricer.dirty(path.curve)[self.rows] - self.cf.accrued
 
     def run(self, scenario: Scenario, months: int) -> tuple[Projection, RatePath, np.ndarray]:
         periods = make_periods(self.as_of, months, self.options.period)
         path = self.path(scenario)
-        redeemed = self.redeemed_on(path)
+        redeemed = self.redeemed_on(path, self.spread + self.spread_move(scenario))
         cash = self.holding_cash(periods, redeemed)
         r = self.reinvestment
-        purchases = None if r.rule == "fund" else path.purchase_terms(periods.end, r.months, r.spread_bp / 1e4)
+        spread_bp = r.spread_bp + reinvestment_move_bp(self.book, scenario, r.sector)
+        purchases = None if r.rule == "fund" else path.purchase_terms(periods.end, r.months, spread_bp / 1e4)
         shift = path.short_rate(periods.boundaries[:-1]) - self.base_short
         setup = PlanSetup(periods, self.h, cash, self.sale_clean(scenario, path), self.opening_cash,
                           periods.total(self.need_dates, self.need_amounts),
@@ -242,8 +271,8 @@ class _Planner:
         end = horizon_end(self.as_of, INCOME_MONTHS)
         cash = self.holding_cash(projection.periods, redeemed)
         params = self.valuation.pricer.params
-        held = holdings_value(self.h, projection.face_left, cash.end_date, self.spread, path, end, params,
-                              str(self.book.files["holdings"]))
+        held = holdings_value(self.h, projection.face_left, cash.end_date, self.spread + self.spread_move(scenario),
+                              path, end, params, str(self.book.files["holdings"]))
         bought = 0.0
         if projection.purchases is not None:
             bought = float((projection.purchases.value(path, end) * projection.reinvested / 100.0).sum())

@@ -148,7 +148,7 @@ def value_book(book: Book, at: dt.date | None = None) -> Valuation:
     cf = cash_flows(h, np.datetime64(settle))
     discount = settle_discount(curve, cf)
     quoted = h.quote_type != QUOTE_NONE
-    table_bp = table_spreads_bp(h, book.spreads)
+    table_bp = table_spreads_bp(h, book.spreads, settle)
     missing = np.flatnonzero(~quoted & np.isnan(table_bp) & (h.kind != "fund"))
     if len(missing):
         _spread_problems(book, missing)

@@ -202,7 +202,7 @@ def generic_candidates(book: Book, rungs: Rungs, settle: dt.date) -> Candidates:
     rows["id"] = unique_ids(rows["id"], book.holdings.id)
     h = make_holdings(**rows, face=np.full(n, GENERIC_LOT))
     curve = bootstrap(book.curve, np.datetime64(book.valuation_date))
-    spread_bp = table_spreads_bp(h, book.spreads)
+    spread_bp = table_spreads_bp(h, book.spreads, settle64)
     h = replace(h, coupon=_par_coupons(h, curve, settle64, spread_bp))
     return Candidates(h, np.full(n, np.inf), np.full(n, GENERIC_LOT), np.full(n, GENERIC_LOT), np.ones(n, bool),
                       "generic (curve + spread table)")

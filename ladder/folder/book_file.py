@@ -22,6 +22,7 @@ from ladder.policy.policy_file import load_policy
 from ladder.policy.toml_lines import KeyLines
 from ladder.pricing.curve import ParCurve
 from ladder.pricing.curve_file import read_curve
+from ladder.pricing.spreads import RATING_BUCKETS, SpreadCurve, SpreadTable
 from ladder.risk.scenarios import Scenario, read_scenarios
 
 BOOK_FILE = "book.toml"
@@ -30,23 +31,39 @@ DEFAULT_FILES = {"holdings": "holdings.csv", "curve": "curve.csv", "policy": "po
 OPTIONAL_FILES = ("scenarios",)
 REINVEST_RULES = ("longest_rung", "target_tenor", "fund")
 TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "reinvest", "model")
-SPREAD_BUCKETS = ("AAA", "AA", "A", "BBB", "A-1+", "A-1", "A-2", "A-3", "default")
+SPREAD_BUCKETS = RATING_BUCKETS + ("default",)
 # Defaults of the callable model (Hull-White): see docs/methods.md for where they come from.
 DEFAULT_MEAN_REVERSION = 0.03
 DEFAULT_VOLATILITY = 0.01
 MAX_SPREAD_BP = 2000.0
-# Spreads over the government curve (bp) for holdings without a quote, by sector and rating bucket;
-# invented defaults of a realistic size for high-grade US paper (docs/formats.md). A [spreads]
-# table in book.toml replaces them sector by sector.
-DEFAULT_SPREADS_BP: dict[str, dict[str, float]] = {
+# Spreads over the government curve (bp) for holdings without a quote, by sector, rating bucket and
+# tenor: INVENTED defaults of a realistic shape for high-grade US paper, not market data
+# (docs/formats.md): short tenors tighter than long ones, wider for lower buckets; money-market
+# sectors by short-term bucket. A [spreads] table in book.toml replaces them sector by sector.
+_MONEY_MARKET = ("1M", "3M", "6M", "1Y")
+_NOTES = ("3M", "1Y", "2Y", "5Y", "10Y")
+
+
+def _points(tenors: tuple[str, ...], *bp: float) -> dict[str, float]:
+    return dict(zip(tenors, bp))
+
+
+DEFAULT_SPREADS_BP: dict[str, dict[str, float | dict[str, float]]] = {
     "treasury": {"default": 0.0},
-    "agency": {"AAA": 10.0, "AA": 14.0, "A": 30.0},
-    "supranational": {"AAA": 12.0, "AA": 20.0, "A": 35.0},
-    "municipal": {"AAA": 22.0, "AA": 32.0, "A": 55.0, "BBB": 95.0},
-    "corporate": {"AAA": 35.0, "AA": 48.0, "A": 72.0, "BBB": 115.0},
-    "commercial_paper": {"A-1+": 12.0, "A-1": 20.0, "A-2": 40.0, "A-3": 70.0},
-    "cd": {"A-1+": 15.0, "A-1": 22.0, "A-2": 45.0, "default": 30.0},
-    "deposit": {"A-1+": 10.0, "A-1": 15.0, "A-2": 35.0, "default": 20.0},
+    "agency": {"AAA": _points(_NOTES, 4, 6, 8, 12, 18), "AA": _points(_NOTES, 6, 9, 11, 16, 22),
+               "A": _points(_NOTES, 12, 18, 24, 34, 45)},
+    "supranational": {"AAA": _points(_NOTES, 5, 7, 10, 14, 20), "AA": _points(_NOTES, 8, 12, 16, 24, 32),
+                      "A": _points(_NOTES, 14, 20, 28, 40, 52)},
+    "municipal": {"AAA": _points(_NOTES, 8, 12, 16, 26, 40), "AA": _points(_NOTES, 12, 18, 24, 36, 52),
+                  "A": _points(_NOTES, 20, 30, 40, 60, 80), "BBB": _points(_NOTES, 40, 55, 70, 100, 130)},
+    "corporate": {"AAA": _points(_NOTES, 3, 14, 22, 38, 55), "AA": _points(_NOTES, 5, 20, 30, 50, 70),
+                  "A": _points(_NOTES, 10, 30, 45, 75, 100), "BBB": _points(_NOTES, 28, 55, 75, 115, 150)},
+    "commercial_paper": {"A-1+": _points(_MONEY_MARKET, 6, 10, 14, 20), "A-1": _points(_MONEY_MARKET, 10, 16, 22, 30),
+                         "A-2": _points(_MONEY_MARKET, 25, 35, 42, 55), "A-3": _points(_MONEY_MARKET, 45, 60, 70, 85)},
+    "cd": {"A-1+": _points(_MONEY_MARKET, 8, 12, 16, 22), "A-1": _points(_MONEY_MARKET, 12, 18, 24, 32),
+           "A-2": _points(_MONEY_MARKET, 28, 38, 46, 60), "default": _points(_MONEY_MARKET, 18, 26, 32, 42)},
+    "deposit": {"A-1+": _points(_MONEY_MARKET, 5, 8, 12, 18), "A-1": _points(_MONEY_MARKET, 8, 12, 16, 24),
+                "A-2": _points(_MONEY_MARKET, 22, 30, 38, 50), "default": _points(_MONEY_MARKET, 12, 18, 24, 32)},
     "fund": {"default": 0.0},
 }
 
@@ -82,7 +99,7 @@ class Book:
     policy: Policy
     cash_needs: CashNeeds
     scenarios: tuple[Scenario, ...]
-    spreads: dict[str, dict[str, float]] = field(default_factory=dict)   # sector -> bucket -> bp
+    spreads: SpreadTable = field(default_factory=dict)   # sector -> bucket -> SpreadCurve (bp by tenor)
     reinvest: ReinvestSettings = ReinvestSettings()
     model: ModelSettings = ModelSettings()
 
@@ -130,6 +147,25 @@ class _Settings:
         return float(value)
 
 
+def _spread_curve(s: _Settings, path: tuple, value) -> SpreadCurve:
+    """A bucket's spread: a number of bp (flat), or a table of tenor = bp (``{ 3M = 12, 5Y = 75 }``)."""
+    if not isinstance(value, dict):
+        return SpreadCurve.flat(s.number(path, value, 0.0, -MAX_SPREAD_BP, MAX_SPREAD_BP))
+    points: dict[float, float] = {}
+    for tenor, bp in value.items():
+        try:
+            years = tenor_months(tenor) / 12.0
+        except ValueError as exc:
+            s.error(path + (tenor,), str(exc))
+            continue
+        if years in points:
+            s.error(path + (tenor,), f"tenor {tenor} is given twice (as another label of the same length)")
+        points[years] = s.number(path + (tenor,), bp, 0.0, -MAX_SPREAD_BP, MAX_SPREAD_BP)
+    if not value:
+        s.error(path, "an empty table; give basis points, or tenor = basis points such as { 3M = 12, 5Y = 75 }")
+    return SpreadCurve.of(points) if points else SpreadCurve.flat(0.0)
+
+
 def _read_settings(path: Path, problems: Problems):
     """(name, currency, valuation date, files, spreads, reinvest, model) from book.toml, or None."""
     label = str(path)
@@ -160,7 +196,8 @@ def _read_settings(path: Path, problems: Problems):
             files[key] = path.parent / value
         else:
             s.error(("files", key), "must be a file name in quotes")
-    spreads = dict(DEFAULT_SPREADS_BP)
+    spreads = {sector: {b: _spread_curve(s, ("spreads", sector, b), v) for b, v in buckets.items()}
+               for sector, buckets in DEFAULT_SPREADS_BP.items()}
     for sector, buckets in s.table(data, "spreads", SECTORS).items():
         if not isinstance(buckets, dict):
             s.error(("spreads", sector), "must be a table of rating bucket = basis points")
@@ -168,8 +205,7 @@ def _read_settings(path: Path, problems: Problems):
         for bucket in buckets:
             if bucket not in SPREAD_BUCKETS:
                 _unknown(problems, label, s.lines, ("spreads", sector, bucket), bucket, SPREAD_BUCKETS)
-        spreads[sector] = {b: s.number(("spreads", sector, b), v, 0.0, -MAX_SPREAD_BP, MAX_SPREAD_BP)
-                           for b, v in buckets.items()}
+        spreads[sector] = {b: _spread_curve(s, ("spreads", sector, b), v) for b, v in buckets.items()}
     r = s.table(data, "reinvest", ("rule", "target_tenor", "min_cash_buffer"))
     rule = r.get("rule", ReinvestSettings.rule)
     if rule not in REINVEST_RULES:

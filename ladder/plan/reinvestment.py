@@ -12,7 +12,7 @@ The bought security is a par security of ``sector`` (default: treasury) bought a
 scenario's curve at that sector's spread (``ladder.plan.rates.RatePath.purchase_terms``). The spread
 is the face-weighted average spread of the book's own (non-callable) holdings of that sector as the
 valuation found it (the z-spread solved from a quote, or the ``[spreads]`` table); when the book
-holds none, the sector's ``[spreads]`` entry (``default``, else the first bucket given); for
+holds none, the sector's ``[spreads]`` entry (``default``, else the first bucket given) at the bought tenor; for
 Treasuries with neither, 0 (the curve is the government curve). ``spread_bp`` is NaN until
 ``with_spread`` fills it from the valuation.
 """
@@ -87,10 +87,11 @@ def _cut_to(months: int, limit_days: int, as_of: dt.date) -> int:
     return max(fits, default=1)
 
 
-def sector_spread_bp(book: Book, sector: str, spreads: np.ndarray) -> float | None:
+def sector_spread_bp(book: Book, sector: str, spreads: np.ndarray, months: int) -> float | None:
     """The bought sector's spread in bp (see the module docstring), None if there is none.
 
-    ``spreads`` (n,) decimal: each holding's spread from the valuation (z-spread or, from the table).
+    ``spreads`` (n,) decimal: each holding's spread from the valuation (z-spread or, from the table);
+    ``months`` the bought tenor, where the table's curve is read.
     """
     h = book.holdings
     rows = (h.sector == sector) & (h.kind != "fund") & ~h.callable & np.isfinite(spreads)
@@ -99,7 +100,7 @@ def sector_spread_bp(book: Book, sector: str, spreads: np.ndarray) -> float | No
     table = book.spreads.get(sector, {})
     for bucket in ("default", *SPREAD_BUCKETS):
         if bucket in table:
-            return float(table[bucket])
+            return float(table[bucket].at(months / 12.0))
     return 0.0 if sector == "treasury" else None
 
 
@@ -161,7 +162,7 @@ def with_spread(reinvestment: Reinvestment, book: Book, spreads: np.ndarray) -> 
     raises ``InputError`` when the sector has none."""
     if reinvestment.rule == "fund":
         return replace(reinvestment, spread_bp=0.0)
-    spread = sector_spread_bp(book, reinvestment.sector, spreads)
+    spread = sector_spread_bp(book, reinvestment.sector, spreads, reinvestment.months)
     if spread is None:
         problems = Problems()
         problems.add(str(book.folder / "book.toml"), 0, 0,

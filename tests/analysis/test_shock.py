@@ -16,14 +16,15 @@ def demo_result():
     return shock_book(demo_book())
 
 
-def test_default_scenarios_are_parallel_non_parallel_and_the_books_own():
+def test_default_scenarios_are_parallel_non_parallel_credit_and_the_books_own():
     names = [s.name for s in shock_scenarios(demo_book())]
     assert names[:11] == ["-300 bp", "-200 bp", "-100 bp", "-50 bp", "-25 bp", "0 bp", "+25 bp", "+50 bp",
                           "+100 bp", "+200 bp", "+300 bp"]
     assert names[11:18] == ["steepener 100 bp about 2Y", "flattener 100 bp about 2Y", "short end +100 bp",
                             "short end -100 bp", "long end +100 bp", "long end -100 bp",
                             "twist +50/-50 bp about 5Y"]
-    assert names[18:] == ["bear-flattener", "recession-rally", "inflation-scare"]   # demo scenarios.csv
+    assert names[18:21] == ["credit +50 bp", "credit +100 bp", "credit +200 bp"]
+    assert names[21:] == ["bear-flattener", "recession-rally", "inflation-scare"]   # demo scenarios.csv
 
 
 def test_bp_list_and_scenario_file_replace_the_defaults(tmp_path):

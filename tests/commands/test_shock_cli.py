@@ -27,13 +27,15 @@ def test_json_has_the_issue_fields(capsys):
     assert isinstance(doc["effective_convexity"], float)
     assert list(doc["key_rate_durations"])[:3] == ["1M", "3M", "6M"]
     assert sum(doc["key_rate_durations"].values()) == pytest.approx(doc["effective_duration"], abs=1e-6)
-    assert len(doc["scenarios"]) == 21
+    assert len(doc["scenarios"]) == 24
+    assert 0 < doc["spread_duration"] < 5 and all("spread_duration" in h for h in doc["holdings"])
     for scenario in doc["scenarios"]:
         assert {"name", "shift_bp", "value", "change", "change_pct", "est_duration",
                 "est_duration_convexity"} <= set(scenario)
     by_name = {s["name"]: s for s in doc["scenarios"]}
     assert by_name["+100 bp"]["shift_bp"] == 100.0 and by_name["+100 bp"]["change"] < 0
     assert by_name["recession-rally"]["shift_bp"] is None and by_name["recession-rally"]["change"] > 0
+    assert by_name["credit +100 bp"]["shift_bp"] is None and by_name["credit +100 bp"]["change"] < 0
 
 
 def test_bp_list_chooses_the_parallel_moves(capsys):

@@ -66,7 +66,7 @@ def test_bad_header_and_empty_files(tmp_path):
     path = write(tmp_path, "scenario,tenor,bp\n")
     assert problems(path) == [
         f"{path}:1:0: required column 'shift_bp' is missing",
-        f"{path}:1:3: unknown column 'bp'; known columns: scenario, tenor, shift_bp",
+        f"{path}:1:3: unknown column 'bp'; known columns: scenario, tenor, shift_bp, sector, bucket",
     ]
     path = write(tmp_path, "")
     assert problems(path) == [f"{path}:1:0: the file is empty; the first row must name the columns"]
