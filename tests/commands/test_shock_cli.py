@@ -100,3 +100,26 @@ def test_bad_scenarios_file_is_refused(capsys, tmp_path):
     code, out, err = run(capsys, "--scenarios", str(path))
     assert code == 2 and out == ""
     assert f"{path}:2:2: tenor 4Y is not on the curve" in err
+
+
+def test_a_spread_move_for_an_unknown_sector_or_bucket_is_refused(capsys, tmp_path):
+    path = tmp_path / "credit.csv"
+    path.write_text("scenario,tenor,shift_bp,sector,bucket\nwide,,50,corprate,\nwide,,90,corporate,BB\n")
+    code, out, err = run(capsys, "--scenarios", str(path))
+    assert code == 2 and out == ""
+    assert f"{path}:2:4: unknown sector 'corprate'" in err and f"{path}:3:5: unknown rating bucket 'BB'" in err
+
+
+def test_table_shows_spread_durations_and_a_combined_scenario(capsys, tmp_path):
+    path = tmp_path / "credit.csv"
+    path.write_text("scenario,tenor,shift_bp,sector,bucket\nsell-off,2Y,50,,\nsell-off,,100,corporate,\n")
+    code, out, _ = run(capsys, "--scenarios", str(path), "--format", "json")
+    doc = json.loads(out)
+    (selloff,) = doc["scenarios"]
+    corporate = [h for h in doc["holdings"] if h["sector"] == "corporate"]
+    assert selloff["spread_moves_bp"] == [{"sector": "corporate", "bucket": "", "bp": 100.0}]
+    assert all(h["spread_duration"] > 0 for h in corporate)
+    code, out, _ = run(capsys, "--scenarios", str(path))
+    assert code == 0
+    for text in ("Spread duration by holding", "Scenarios that move spreads", "sell-off", "DEMO-CORP-0601"):
+        assert text in out

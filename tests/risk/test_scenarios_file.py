@@ -72,3 +72,38 @@ def test_bad_header_and_empty_files(tmp_path):
     assert problems(path) == [f"{path}:1:0: the file is empty; the first row must name the columns"]
     path = write(tmp_path, "scenario,tenor,shift_bp\n")
     assert problems(path) == [f"{path}:0:0: no scenarios: the file has a header but no rows"]
+
+
+def test_spread_rows_move_sectors_and_buckets_alone_or_with_rates(tmp_path):
+    from ladder.book.holdings import make_holdings
+
+    path = write(tmp_path, "scenario,tenor,shift_bp,sector,bucket\n"
+                           "wider,,75,corporate,\nwider,,150,corporate,BBB\nwider,,40,commercial_paper,A-1\n"
+                           "sell-off,2Y,50,,\nsell-off,,100,municipal,\n")
+    wider, selloff = read_scenarios(path, CURVE)
+    assert not wider.shift_bp_by_tenor.any()                              # spreads alone: no rate move
+    np.testing.assert_array_equal(selloff.shift_bp_by_tenor, np.full(len(TENORS), 50.0))
+    h = make_holdings(id=["C1", "C2", "C3", "P1", "M1", "T1"],
+                      sector=["corporate", "corporate", "corporate", "commercial_paper", "municipal", "treasury"],
+                      face=[1e6] * 6, maturity=["2028-06-15"] * 6, coupon=[0.04] * 6,
+                      rating=["BBB-", "A+", "", "", "AA", "AA+"], short_rating=["", "", "", "P-1", "", ""])
+    # BBB- reads the BBB move, A+ and unrated the sector's move for every bucket, P-1 the A-1 move.
+    np.testing.assert_array_equal(wider.spread_shift_bp(h), [150.0, 75.0, 75.0, 40.0, 0.0, 0.0])
+    np.testing.assert_array_equal(selloff.spread_shift_bp(h), [0.0, 0.0, 0.0, 0.0, 100.0, 0.0])
+
+
+def test_bad_spread_rows_are_refused_with_their_cells(tmp_path):
+    path = write(tmp_path, "scenario,tenor,shift_bp,sector,bucket\n"
+                           "x,,50,corporates,\n"
+                           "x,,50,corporate,B\n"
+                           "x,2Y,50,corporate,A\n"
+                           "x,,50,agency,AA\n"
+                           "x,,60,agency,AA\n")
+    assert problems(path) == [
+        f"{path}:2:4: unknown sector 'corporates'; known: treasury, agency, supranational, municipal, corporate, "
+        "commercial_paper, cd, fund, deposit",
+        f"{path}:3:5: unknown rating bucket 'B'; known: AAA, AA, A, BBB, A-1+, A-1, A-2, A-3 (or blank for every "
+        "bucket of the sector)",
+        f"{path}:4:2: a spread move applies at every tenor: leave tenor blank on a row with a sector",
+        f"{path}:6:4: scenario 'x' moves agency AA twice (also row 5)",
+    ]
