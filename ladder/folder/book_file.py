@@ -12,6 +12,8 @@ import tomllib
 from dataclasses import dataclass, field, replace
 from pathlib import Path
 
+import numpy as np
+
 from ladder.book.cash_needs import CashNeeds, read_cash_needs
 from ladder.book.holdings import SECTORS, Holdings
 from ladder.book.holdings_file import read_holdings
@@ -20,8 +22,9 @@ from ladder.market.tenors import tenor_months
 from ladder.policy.model import Policy
 from ladder.policy.policy_file import load_policy
 from ladder.policy.toml_lines import KeyLines
-from ladder.pricing.curve import ParCurve
+from ladder.pricing.curve import ParCurve, bootstrap
 from ladder.pricing.curve_file import read_curve
+from ladder.pricing.spread_fit import fit_levels, quoted_z_spreads_bp
 from ladder.pricing.spreads import RATING_BUCKETS, SpreadCurve, SpreadTable
 from ladder.risk.scenarios import Scenario, read_scenarios
 
@@ -36,6 +39,7 @@ SPREAD_BUCKETS = RATING_BUCKETS + ("default",)
 DEFAULT_MEAN_REVERSION = 0.03
 DEFAULT_VOLATILITY = 0.01
 MAX_SPREAD_BP = 2000.0
+FIT_KEY = "fit_to_quotes"     # [spreads] key: sectors whose curves are fitted to their quoted holdings
 # Spreads over the government curve (bp) for holdings without a quote, by sector, rating bucket and
 # tenor: INVENTED defaults of a realistic shape for high-grade US paper, not market data
 # (docs/formats.md): short tenors tighter than long ones, wider for lower buckets; money-market
@@ -166,6 +170,17 @@ def _spread_curve(s: _Settings, path: tuple, value) -> SpreadCurve:
     return SpreadCurve.of(points) if points else SpreadCurve.flat(0.0)
 
 
+def _fit_sectors(s: _Settings, value) -> tuple[str, ...]:
+    """``[spreads].fit_to_quotes``: the sectors whose curves are fitted to their quoted holdings."""
+    if not isinstance(value, list) or not all(isinstance(v, str) for v in value):
+        s.error(("spreads", FIT_KEY), 'must be a list of sectors in quotes, e.g. ["corporate", "cd"]')
+        return ()
+    for i, sector in enumerate(value):
+        if sector not in SECTORS:
+            s.error(("spreads", FIT_KEY, i), f"{sector!r} is not a sector; known: {', '.join(SECTORS)}")
+    return tuple(v for v in value if v in SECTORS)
+
+
 def _read_settings(path: Path, problems: Problems):
     """(name, currency, valuation date, files, spreads, reinvest, model) from book.toml, or None."""
     label = str(path)
@@ -198,7 +213,11 @@ def _read_settings(path: Path, problems: Problems):
             s.error(("files", key), "must be a file name in quotes")
     spreads = {sector: {b: _spread_curve(s, ("spreads", sector, b), v) for b, v in buckets.items()}
                for sector, buckets in DEFAULT_SPREADS_BP.items()}
-    for sector, buckets in s.table(data, "spreads", SECTORS).items():
+    fit: tuple[str, ...] = ()
+    for sector, buckets in s.table(data, "spreads", SECTORS + (FIT_KEY,)).items():
+        if sector == FIT_KEY:
+            fit = _fit_sectors(s, buckets)
+            continue
         if not isinstance(buckets, dict):
             s.error(("spreads", sector), "must be a table of rating bucket = basis points")
             continue
@@ -221,7 +240,7 @@ def _read_settings(path: Path, problems: Problems):
     model = ModelSettings(
         s.number(("model", "mean_reversion"), m.get("mean_reversion"), DEFAULT_MEAN_REVERSION, 1e-6, 5.0),
         s.number(("model", "volatility"), m.get("volatility"), DEFAULT_VOLATILITY, 0.0, 0.2))
-    return name, currency, valuation, files, spreads, ReinvestSettings(rule, tenor, buffer), model
+    return name, currency, valuation, files, (spreads, fit), ReinvestSettings(rule, tenor, buffer), model
 
 
 def _collect(problems: Problems, read, *args):
@@ -250,7 +269,7 @@ def load_book(folder) -> Book:
     settings = _read_settings(folder / BOOK_FILE, problems)
     if settings is None:
         problems.raise_if_any()
-    name, currency, valuation, files, spreads, reinvest, model = settings
+    name, currency, valuation, files, (spreads, fit), reinvest, model = settings
     named = "holdings" in (tomllib.loads((folder / BOOK_FILE).read_text(encoding="utf-8-sig")).get("files") or {})
     holdings = None
     if valuation is not None:
@@ -270,5 +289,8 @@ def load_book(folder) -> Book:
                 problems.add(str(files["cash_needs"]), int(row), 1,
                              f"cash need dated {date} is before the valuation date {valuation}")
     problems.raise_if_any()
+    if fit:
+        z_bp = quoted_z_spreads_bp(holdings, bootstrap(curve, np.datetime64(valuation)), valuation)
+        spreads, _ = fit_levels(spreads, holdings, valuation, z_bp, fit)
     return Book(folder, name, currency, valuation, files, holdings, curve, policy, needs, scenarios,
                 spreads, reinvest, model)

@@ -83,3 +83,45 @@ def test_a_spread_tenor_that_is_not_a_tenor_is_refused_at_its_line_and_column(tm
     err = capsys.readouterr().err
     assert f"{path}:{line}:{column}: spreads.corporate.A.1X: '1X' is not a tenor" in err
     assert sorted((p.name, p.stat().st_mtime_ns) for p in folder.iterdir()) == before     # nothing written
+
+
+def test_fit_to_quotes_moves_each_bucket_by_its_least_squares_level(tmp_path):
+    # Least squares of z_i = s(T_i) + L over a bucket's quoted holdings: the residuals of the fitted
+    # curve sum to zero (the normal equation of L), and the curve keeps its shape (moves by L at every tenor).
+    from ladder.analysis.valuation import value_book
+    from ladder.pricing.spreads import spread_keys, tenor_years
+
+    folder = write_demo(tmp_path / "book")
+    plain = load_book(folder)
+    path = folder / "book.toml"
+    path.write_text(path.read_text().replace("[spreads]\n", '[spreads]\nfit_to_quotes = ["corporate"]\n', 1))
+    fitted = load_book(folder)
+    z_bp = value_book(plain).spread * 1e4            # quoted rows: z-spreads solved from their prices
+    h = plain.holdings
+    keys = spread_keys(h, plain.spreads)
+    years = tenor_years(h, plain.valuation_date)
+    moved = 0
+    for bucket, curve in plain.spreads["corporate"].items():
+        rows = (h.sector == "corporate") & (keys == bucket) & ~h.callable & (h.quote_type != "")
+        new = fitted.spreads["corporate"][bucket]
+        level = new.bp - curve.bp
+        assert np.ptp(level) < 1e-12                                     # one level at every tenor
+        if rows.any():
+            moved += 1
+            assert abs(np.sum(z_bp[rows] - new.at(years[rows]))) < 1e-9 * rows.sum()
+        else:
+            assert level[0] == 0
+    assert moved >= 2
+    assert fitted.spreads["agency"]["AA"].bp == pytest.approx(plain.spreads["agency"]["AA"].bp, rel=0, abs=0)
+
+
+def test_fit_to_quotes_names_sectors(tmp_path, capsys):
+    from ladder.cli import main
+
+    folder = write_demo(tmp_path / "book")
+    path = folder / "book.toml"
+    text = path.read_text().replace("[spreads]\n", '[spreads]\nfit_to_quotes = ["corporates"]\n', 1)
+    path.write_text(text)
+    line = text.splitlines().index('fit_to_quotes = ["corporates"]') + 1
+    assert main(["value", str(folder)]) == 2
+    assert f"{path}:{line}:" in capsys.readouterr().err
