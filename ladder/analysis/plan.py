@@ -10,8 +10,8 @@ What it does (the rules are in ``ladder.plan``'s modules and docs/methods.md, "C
   needs by period, runs the periods (``ladder.plan.projection``) with the reinvestment rule, and
   finds the first shortfall and the sales that would cover it;
 - for the base case and every scenario of the shock set (the parallel set, the standard non-parallel
-  set, the standard credit set and the book's own scenarios) runs the first 12 months again: interest income on an accrual
-  basis and the 12-month total return (the income-at-risk table).
+  set, the standard credit set and the book's own scenarios) runs the first 12 months again:
+  interest income on an accrual basis and the 12-month total return (the income-at-risk table).
 Holdings without a book price or purchase date are amortized from the plan date at today's price.
 """
 

@@ -182,7 +182,8 @@ def _fit_sectors(s: _Settings, value) -> tuple[str, ...]:
 
 
 def _read_settings(path: Path, problems: Problems):
-    """(name, currency, valuation date, files, spreads, reinvest, model) from book.toml, or None."""
+    """(name, currency, valuation date, files, (spreads, sectors to fit), reinvest, model) from book.toml,
+    or None."""
     label = str(path)
     try:
         text = path.read_text(encoding="utf-8-sig")

@@ -101,11 +101,15 @@ class Scenario:
         out = np.zeros(len(holdings))
         if not self.spread_moves:
             return out
-        moves = {(m.sector, m.bucket): m.bp for m in self.spread_moves}
         long_, short = rating_buckets(holdings)
-        for i, sector in enumerate(holdings.sector):
-            out[i] = next((moves[(sector, key)] for key in (long_[i], short[i], "")
-                           if (sector, key) in moves), 0.0)
+        done = np.zeros(len(holdings), dtype=bool)
+        for bucket_of in (long_, short, None):          # the long bucket's move first, the sector's last
+            for m in self.spread_moves:
+                if (m.bucket == "") != (bucket_of is None):
+                    continue
+                rows = ~done & (holdings.sector == m.sector) & (True if bucket_of is None else bucket_of == m.bucket)
+                out[rows] = m.bp
+                done |= rows
         return out
 
 

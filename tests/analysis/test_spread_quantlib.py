@@ -55,8 +55,9 @@ def _book():
 
 
 def _bonds(book):
-    return [ql_note(ISSUES[j % len(MATURITIES)], MATURITIES[j % len(MATURITIES)],
-                    COUPONS[j % len(MATURITIES)] / 100, book.holdings.day_count[j])[0] for j in range(len(book.holdings))]
+    k = len(MATURITIES)
+    return [ql_note(ISSUES[j % k], MATURITIES[j % k], COUPONS[j % k] / 100, book.holdings.day_count[j])[0]
+            for j in range(len(book.holdings))]
 
 
 def _ql_dirty(bond, curve, z, ref):
@@ -66,8 +67,8 @@ def _ql_dirty(bond, curve, z, ref):
 def test_spread_shocks_alone_and_with_a_rate_move_are_quantlib_prices_at_the_moved_z_spread():
     book = _book()
     n_tenors = len(TENORS)
-    scenarios = [Scenario(f"corporate {bp:+g}", "user", np.zeros(n_tenors), spread_moves=(SpreadMove("corporate", "", bp),))
-                 for bp in SPREAD_MOVES_BP]
+    scenarios = [Scenario(f"corporate {bp:+g}", "user", np.zeros(n_tenors),
+                          spread_moves=(SpreadMove("corporate", "", bp),)) for bp in SPREAD_MOVES_BP]
     up = parallel(book.curve, 100.0)
     scenarios.append(Scenario("rates +100, corporate +50", "user", up.shift_bp_by_tenor,
                               spread_moves=(SpreadMove("corporate", "", 50.0),)))
