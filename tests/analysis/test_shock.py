@@ -24,7 +24,7 @@ def test_default_scenarios_are_parallel_non_parallel_credit_and_the_books_own():
                             "short end -100 bp", "long end +100 bp", "long end -100 bp",
                             "twist +50/-50 bp about 5Y"]
     assert names[18:21] == ["credit +50 bp", "credit +100 bp", "credit +200 bp"]
-    assert names[21:] == ["bear-flattener", "recession-rally", "inflation-scare"]   # demo scenarios.csv
+    assert names[21:] == ["bear-flattener", "recession-rally", "inflation-scare", "flight-to-quality"]   # demo file
 
 
 def test_bp_list_and_scenario_file_replace_the_defaults(tmp_path):

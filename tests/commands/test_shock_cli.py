@@ -27,7 +27,7 @@ def test_json_has_the_issue_fields(capsys):
     assert isinstance(doc["effective_convexity"], float)
     assert list(doc["key_rate_durations"])[:3] == ["1M", "3M", "6M"]
     assert sum(doc["key_rate_durations"].values()) == pytest.approx(doc["effective_duration"], abs=1e-6)
-    assert len(doc["scenarios"]) == 24
+    assert len(doc["scenarios"]) == 25
     assert 0 < doc["spread_duration"] < 5 and all("spread_duration" in h for h in doc["holdings"])
     for scenario in doc["scenarios"]:
         assert {"name", "shift_bp", "value", "change", "change_pct", "est_duration",

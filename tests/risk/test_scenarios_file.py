@@ -79,17 +79,20 @@ def test_spread_rows_move_sectors_and_buckets_alone_or_with_rates(tmp_path):
 
     path = write(tmp_path, "scenario,tenor,shift_bp,sector,bucket\n"
                            "wider,,75,corporate,\nwider,,150,corporate,BBB\nwider,,40,commercial_paper,A-1\n"
+                           "wider,,90,commercial_paper,\n"
                            "sell-off,2Y,50,,\nsell-off,,100,municipal,\n")
     wider, selloff = read_scenarios(path, CURVE)
     assert not wider.shift_bp_by_tenor.any()                              # spreads alone: no rate move
     np.testing.assert_array_equal(selloff.shift_bp_by_tenor, np.full(len(TENORS), 50.0))
-    h = make_holdings(id=["C1", "C2", "C3", "P1", "M1", "T1"],
-                      sector=["corporate", "corporate", "corporate", "commercial_paper", "municipal", "treasury"],
-                      face=[1e6] * 6, maturity=["2028-06-15"] * 6, coupon=[0.04] * 6,
-                      rating=["BBB-", "A+", "", "", "AA", "AA+"], short_rating=["", "", "", "P-1", "", ""])
-    # BBB- reads the BBB move, A+ and unrated the sector's move for every bucket, P-1 the A-1 move.
-    np.testing.assert_array_equal(wider.spread_shift_bp(h), [150.0, 75.0, 75.0, 40.0, 0.0, 0.0])
-    np.testing.assert_array_equal(selloff.spread_shift_bp(h), [0.0, 0.0, 0.0, 0.0, 100.0, 0.0])
+    cp = "commercial_paper"
+    h = make_holdings(id=["C1", "C2", "C3", "P1", "P2", "M1", "T1"],
+                      sector=["corporate", "corporate", "corporate", cp, cp, "municipal", "treasury"],
+                      face=[1e6] * 7, maturity=["2028-06-15"] * 7, coupon=[0.04] * 7,
+                      rating=["BBB-", "A+", "", "", "", "AA", "AA+"], short_rating=["", "", "", "P-1", "", "", ""])
+    # BBB- reads the BBB move, A+ and unrated the sector's move for every bucket; P-1 (no long rating)
+    # the A-1 move before its sector's, unrated paper the sector's.
+    np.testing.assert_array_equal(wider.spread_shift_bp(h), [150.0, 75.0, 75.0, 40.0, 90.0, 0.0, 0.0])
+    np.testing.assert_array_equal(selloff.spread_shift_bp(h), [0.0, 0.0, 0.0, 0.0, 0.0, 100.0, 0.0])
 
 
 def test_bad_spread_rows_are_refused_with_their_cells(tmp_path):
