@@ -128,8 +128,10 @@ def test_price_tends_to_the_lowest_workout_as_volatility_vanishes():
     target = deterministic_workouts(bonds, sloped)
     gaps = [np.max(np.abs(callable_prices(bonds, sloped, 0.0, HullWhiteParams(0.03, s)) - target))
             for s in (0.01, 0.001, 1e-4, 0.0)]
-    assert gaps[0] > gaps[1] > gaps[2] > gaps[3]
-    assert gaps[3] < 1e-10
+    # Measured: 2.5, 1.1e-2, then 6e-14 and 7e-14 (round-off on prices near 100). The two volatile gaps
+    # shrink and stay well clear of round-off; the last two are round-off, so only a bound is asserted.
+    assert gaps[0] > gaps[1] > 1e-3
+    assert gaps[2] < 1e-10 and gaps[3] < 1e-10
 
 
 def test_curve_shift_equals_spread_shift():
