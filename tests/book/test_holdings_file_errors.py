@@ -44,7 +44,7 @@ def read(path):
 def test_good_file_reads(tmp_path):
     holdings, problems = read(write(tmp_path, [HEADER, GOOD]))
     assert problems == []
-    assert list(holdings.id) == ["A1"] and holdings.coupon[0] == pytest.approx(0.0425)
+    assert list(holdings.id) == ["A1"] and holdings.coupon[0] == pytest.approx(0.0425, rel=1e-12, abs=0)
     assert holdings.maturity[0] == np.datetime64("2029-03-15") and holdings.row[0] == 2
     assert holdings.day_count[0] == "30/360" and holdings.frequency[0] == 2   # agency defaults (docs/formats.md)
 
