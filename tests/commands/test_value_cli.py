@@ -84,7 +84,8 @@ def test_json_figures_are_consistent(document):
         assert r["dv01"] == pytest.approx(r["modified_duration"] * r["dirty_price"] * r["face"] / 100 * 1e-4,
                                           rel=1e-7, abs=1e-4)
         if r["book_value"] is not None:
-            assert r["unrealized_gain"] == pytest.approx(r["clean_price"] * r["face"] / 100 - r["book_value"], abs=0.02, rel=0)
+            assert r["unrealized_gain"] == pytest.approx(r["clean_price"] * r["face"] / 100 - r["book_value"],
+                                                         abs=0.02, rel=0)
 
 
 def test_json_totals_follow_their_definitions(document):

@@ -56,7 +56,8 @@ def test_every_unit_is_accounted_for(book, needs, rule, tenor, buffer, bp, perio
     assert np.allclose(pr.closing_cash[:-1], pr.opening_cash[1:], rtol=0, atol=0)
     assert pr.opening_cash[0] == 2_000_000
     horizon = pr.periods.end[-1]
-    assert pr.needs.sum() == pytest.approx(sum(a for d, a in zip(dates, cash_needs.amount) if d <= horizon), rel=1e-12, abs=0)
+    assert pr.needs.sum() == pytest.approx(sum(a for d, a in zip(dates, cash_needs.amount) if d <= horizon),
+                                           rel=1e-12, abs=0)
     assert (pr.reinvested >= 0).all() and (pr.shortfall >= 0).all() and (pr.sales >= 0).all()
     # sales happen only to cover a shortfall, cover it (or everything is sold), and never exceed what is held
     assert ((pr.sales > 0) <= (pr.shortfall > 0)).all()
@@ -69,5 +70,6 @@ def test_every_unit_is_accounted_for(book, needs, rule, tenor, buffer, bp, perio
     if rule == "fund":
         assert not pr.reinvested.any()
     else:
-        assert np.allclose(np.minimum(pr.closing_cash, buffer), np.minimum(pr.available + pr.sales, buffer), atol=1e-6, rtol=0)
+        assert np.allclose(np.minimum(pr.closing_cash, buffer), np.minimum(pr.available + pr.sales, buffer),
+                           atol=1e-6, rtol=0)
         assert (pr.closing_cash <= buffer + 1e-6).all()

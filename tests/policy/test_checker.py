@@ -107,7 +107,8 @@ def test_shares_wam_duration_and_coverage_figures():
     assert result.rule("sectors.agency.max_pct").headroom == pytest.approx(20.0, rel=1e-12, abs=0)
     assert result.rule("portfolio.issuer_max_pct").actual == pytest.approx(10.0, rel=1e-12, abs=0)   # US Treasury exempt, Big Agency named
     assert result.rule('issuers."Big Agency".max_pct').actual == pytest.approx(20.0, rel=1e-12, abs=0)
-    assert result.rule("portfolio.liquidity[0].min_pct").actual == pytest.approx(40.0, rel=1e-12, abs=0)   # T1, P1, P2, F1
+    assert result.rule("portfolio.liquidity[0].min_pct").actual == pytest.approx(40.0,
+                                                                                 rel=1e-12, abs=0)   # T1, P1, P2, F1
     days = (np.array(["2025-03-15", "2027-01-31", "2027-06-30", "2028-01-31", "2026-06-30", "2026-01-31",
                       "2027-01-31", "2025-04-30", "2025-03-31"], dtype="datetime64[D]") - AS_OF).astype(int)
     assert result.rule("portfolio.max_wam_days").actual == pytest.approx((days.sum() + 1) / 10, rel=1e-12, abs=0)
@@ -188,7 +189,8 @@ def test_portfolio_callables():
     call = dict(first_call="2025-07-31", call_frequency=2, call_price=100.0)
     result = run(rows(C1=call, C2=call))
     r = result.rule("portfolio.callable_max_pct")
-    assert (r.status, set(r.holdings), r.actual) == ("breach", {"A2", "C1", "C2"}, pytest.approx(30.0, rel=1e-12, abs=0))
+    assert (r.status, set(r.holdings), r.actual) == ("breach", {"A2", "C1", "C2"}, pytest.approx(30.0,
+                                                                                                 rel=1e-12, abs=0))
     assert flagged(result) == {"portfolio.callable_max_pct": "breach"}
 
 

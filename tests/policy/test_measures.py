@@ -36,7 +36,8 @@ def test_cash_by_month_from_the_cash_flow_matrix():
     # the fund's balance is available on the check date itself, before coverage month 0: left out here
     # (coverage counts fund balances at market value instead)
     assert cash[2].sum() == 0.0
-    assert cash_by_month(cf, h.face, AS_OF, 12)[0].sum() == pytest.approx(20_000.0, rel=1e-12, abs=0)   # horizon cuts month 12
+    assert cash_by_month(cf, h.face, AS_OF, 12)[0].sum() == pytest.approx(20_000.0,
+                                                                          rel=1e-12, abs=0)   # horizon cuts month 12
 
 
 def test_days_to_maturity():

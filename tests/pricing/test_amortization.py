@@ -122,7 +122,8 @@ def test_stepped_call_prices_reset_to_each_call():
     calls = CallSchedule(D("2026-01-15", "2027-01-15", "2028-01-15")[None, :], np.array([[102.0, 101.0, 100.0]]),
                          np.ones((1, 3), bool))
     a = amortize(h, calls=calls)
-    assert np.allclose(a.cost(D("2026-01-15", "2027-01-15", "2028-01-15", "2030-01-15"))[0], [102, 101, 100, 100], rtol=1e-12, atol=0)
+    assert np.allclose(a.cost(D("2026-01-15", "2027-01-15", "2028-01-15", "2030-01-15"))[0], [102, 101, 100, 100],
+                       rtol=1e-12, atol=0)
     span = D("2025-01-14", "2026-01-15", "2027-01-15", "2028-01-15", "2031-01-15")
     earned = a.earned(span)
     assert np.allclose(earned.amortization[0], [-1.0, -1.0, -1.0, 0.0], atol=1e-9, rtol=0)
@@ -150,7 +151,8 @@ def test_single_payment_instruments():
     a = amortize(h)
     assert a.cost(D("2027-03-30"))[:, 0] == pytest.approx([98.5 + 1.5 * 89 / 180, 100.0, 100.0], rel=1e-12, abs=0)
     cf = cash_flows(h.take([0]), np.datetime64("2026-12-31"))
-    assert a.book_yield[0] == pytest.approx(measures_from_dirty(h.take([0]), cf, np.array([98.5])).ytm[0], rel=1e-12, abs=0)
+    assert a.book_yield[0] == pytest.approx(measures_from_dirty(h.take([0]), cf, np.array([98.5])).ytm[0],
+                                            rel=1e-12, abs=0)
     earned = a.earned(D("2026-12-31", "2027-01-31", "2027-12-31"))
     assert earned.coupon[1] == pytest.approx([100 * 0.04 * 31 / 360, 100 * 0.04 * 334 / 360], rel=1e-12, abs=0)
     assert earned.amortization[1] == pytest.approx([0.0, 0.0], abs=1e-12, rel=0)

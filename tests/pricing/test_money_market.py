@@ -40,7 +40,8 @@ def test_frn_index_rate_conversion():
 
 def test_discount_dv01():
     # Derived (REFERENCES 4.5): DV01 per 100 = 0.01 t/360; a 90-day bill 0.0025 ($25 per $1 million)
-    assert mm.discount_dv01(90) == pytest.approx(0.0025, abs=1e-15, rel=0)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert mm.discount_dv01(90) == pytest.approx(0.0025, rel=1e-12, abs=0)
     assert mm.discount_dv01(90) * 1e6 / 100 == pytest.approx(25.0, abs=1e-9, rel=0)
 
 
@@ -57,7 +58,8 @@ def test_maturity_value_and_accrued_derived():
 def test_money_market_above_bond_equivalent_for_a_year_bill_at_high_rates():
     # The VI.D.2 bill (31 CFR 356 App. B): P = 92.265, 364 days. Its investment rate is 8.237% while
     # its money-market yield (derived) is 8.291%: "MMY < BEY" only holds for t <= 182 days.
-    assert mm.money_market_yield(92.265, 364) == pytest.approx((100 / 92.265 - 1) * 360 / 364, rel=1e-14, abs=0)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert mm.money_market_yield(92.265, 364) == pytest.approx((100 / 92.265 - 1) * 360 / 364, rel=1e-12, abs=0)
     assert mm.money_market_yield(92.265, 364) > mm.bond_equivalent_yield(92.265, 364)
 
 
@@ -80,8 +82,9 @@ def test_vectorized_per_row_day_counts():
     issue = np.array(["2025-01-31", "2025-01-31", "2025-01-31"], dtype="datetime64[D]")
     maturity = np.array(["2025-07-31", "2025-07-31", "2025-07-31"], dtype="datetime64[D]")
     # Derived: 181 actual days; 30/360 bond basis counts 31 Jan -> 31 Jul as 180 days
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
     np.testing.assert_allclose(mm.maturity_value(0.04, issue, maturity, codes),
-                               100 * (1 + 0.04 * np.array([181 / 360, 181 / 365, 180 / 360])), rtol=1e-15, atol=0)
+                               100 * (1 + 0.04 * np.array([181 / 360, 181 / 365, 180 / 360])), rtol=1e-12, atol=0)
 
 
 # --- QuantLib as an independent reference ---------------------------------------------------------
@@ -219,7 +222,8 @@ def test_single_payment_risk_matches_finite_differences(y, t, payoff):
     def price(rate):
         return mm.price_from_money_market_yield(rate, t, payoff)
     p = price(y)
-    assert risk.macaulay_duration == pytest.approx(tau, rel=1e-15, abs=0)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert risk.macaulay_duration == pytest.approx(tau, rel=1e-12, abs=0)
     assert risk.modified_duration == pytest.approx(-(price(y + h) - price(y - h)) / (2 * h) / p, rel=1e-6, abs=0)
     wide = 1e-3 / tau   # a step of 1e-3 in y*tau keeps both rounding and truncation below 1e-5
     assert risk.convexity == pytest.approx((price(y + wide) - 2 * p + price(y - wide)) / wide**2 / p, rel=1e-5, abs=0)

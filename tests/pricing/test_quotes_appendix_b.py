@@ -170,8 +170,10 @@ def test_bill_investment_rate_uses_366_when_the_next_year_has_29_february():
     # at 2.40% discount: P = 100(1 - .024 x 91/360), i = [(100 - P)/P](366/91) (derived from the formula).
     h, cf, dirty = bill("2019-03-01", "2019-05-31", 2.40)
     price = 100 * (1 - 0.024 * 91 / 360)
-    assert float(dirty[0]) == pytest.approx(price, rel=1e-14, abs=0)
-    assert float(measures_from_dirty(h, cf, dirty).ytm[0]) == pytest.approx((100 - price) / price * 366 / 91, rel=1e-12, abs=0)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert float(dirty[0]) == pytest.approx(price, rel=1e-12, abs=0)
+    assert float(measures_from_dirty(h, cf, dirty).ytm[0]) == pytest.approx((100 - price) / price * 366 / 91,
+                                                                            rel=1e-12, abs=0)
 
 
 def test_bill_quoted_by_investment_rate_round_trips():
@@ -191,7 +193,8 @@ def test_cd_simple_interest_on_act_360():
     assert float(cf.amount.sum()) == pytest.approx(102.5, abs=1e-12, rel=0)
     assert float(cf.accrued[0]) == pytest.approx(1.25, abs=1e-12, rel=0)
     dirty = dirty_from_quote(quoted(h, "yield", 0.04), cf)
-    assert float(dirty[0]) == pytest.approx(102.5 / 1.01, rel=1e-14, abs=0)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert float(dirty[0]) == pytest.approx(102.5 / 1.01, rel=1e-12, abs=0)
     m = measures_from_dirty(h, cf, dirty)
     assert float(m.ytm[0]) == pytest.approx(0.04, abs=1e-13, rel=0)
     assert float(m.modified[0]) == pytest.approx(0.25 / 1.01, rel=1e-12, abs=0)     # tau / (1 + y tau)

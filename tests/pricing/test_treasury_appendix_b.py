@@ -81,7 +81,8 @@ def test_long_first_coupon_i_a_4():
 def test_daily_decimal_unrounded_option():
     # 31 CFR 356 App. B I.A.2 defines the decimal as (rate/2)/days; Table 2 prints it to 9 places
     exact = treasury.daily_interest_decimal(0.08375, 184, decimals=None)
-    assert exact == pytest.approx(41.875 / 184, rel=1e-15, abs=0)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert exact == pytest.approx(41.875 / 184, rel=1e-12, abs=0)
     assert exact != treasury.daily_interest_decimal(0.08375, 184)
 
 
@@ -246,7 +247,8 @@ def test_at_par_on_a_coupon_date(coupon, periods):
     terms = treasury.yield_to_price_terms(maturity, issue, add_months(issue, 6), issue)
     assert terms.case[0] == "A"
     assert terms.n[0] == periods - 1                  # App. B II definitions: one less than remaining
-    assert treasury.price_from_yield(coupon, coupon, terms, decimals=None).price[0] == pytest.approx(100.0, abs=1e-9, rel=0)
+    assert treasury.price_from_yield(coupon, coupon, terms, decimals=None).price[0] == pytest.approx(100.0,
+                                                                                                     abs=1e-9, rel=0)
 
 
 @settings(max_examples=60, deadline=None)
@@ -266,7 +268,8 @@ def test_settlement_after_the_first_coupon_is_a_regular_period():
     t = treasury.yield_to_price_terms(D("2020-05-15"), D("1990-05-15"), D("1990-11-15"), D("1991-01-10"))
     assert (t.case[0], t.n[0], t.r[0], t.s[0], t.r_prime[0]) == ("D", 58, 125, 181, 181)
     got = treasury.price_from_yield(0.0875, 0.0884, t, decimals=None)
-    assert got.accrued[0] == pytest.approx(56 / 181 * 4.375, rel=1e-14, abs=0)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert got.accrued[0] == pytest.approx(56 / 181 * 4.375, rel=1e-12, abs=0)
     # and on a coupon date it is case A with nothing accrued
     on_coupon = treasury.yield_to_price_terms(D("2020-05-15"), D("1990-05-15"), D("1990-11-15"), D("1991-05-15"))
     assert (on_coupon.case[0], on_coupon.n[0], on_coupon.r[0]) == ("A", 57, 184)
@@ -282,7 +285,8 @@ def test_bill_price_vi_a():
 
 def test_bill_prices_of_the_vi_d_examples():
     # 31 CFR 356 App. B VI.D.1: 7.930% for 20 days -> 99.559444; VI.D.2: 7.65% for 364 days -> 92.265000
-    np.testing.assert_allclose(treasury.bill_price([0.0793, 0.0765], [20, 364]), [99.559444, 92.265000], atol=1e-12, rtol=0)
+    np.testing.assert_allclose(treasury.bill_price([0.0793, 0.0765], [20, 364]), [99.559444, 92.265000],
+                               atol=1e-12, rtol=0)
 
 
 def test_bill_amounts_vi_b():
@@ -320,7 +324,8 @@ def test_investment_rate_in_a_366_day_year():
     # 31 CFR 356 App. B VI.D.1 with y = 366 (issue 1 Mar 2019, 91 days), derived from the formula
     issue = np.array(["2019-03-01", "2019-02-28"], dtype="datetime64[D]")
     i = treasury.bill_investment_rate(np.array([98.8, 98.8]), issue, issue + 91)
-    np.testing.assert_allclose(i, [(100 - 98.8) / 98.8 * 366 / 91, (100 - 98.8) / 98.8 * 365 / 91], rtol=1e-14, atol=0)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    np.testing.assert_allclose(i, [(100 - 98.8) / 98.8 * 366 / 91, (100 - 98.8) / 98.8 * 365 / 91], rtol=1e-12, atol=0)
 
 
 def test_investment_rate_more_than_half_year_vi_d_2():
@@ -330,4 +335,5 @@ def test_investment_rate_more_than_half_year_vi_d_2():
     assert i == pytest.approx(0.082373244, abs=5e-10, rel=0)
     assert round(float(i) * 100, 3) == 8.237
     # the quadratic's own terms, from the quantities (App. B VI.D.2)
-    assert money_market.bond_equivalent_yield(92.265, 364, year_days=365) == pytest.approx(0.082373244, abs=5e-10, rel=0)
+    assert money_market.bond_equivalent_yield(92.265, 364, year_days=365) == pytest.approx(0.082373244,
+                                                                                           abs=5e-10, rel=0)

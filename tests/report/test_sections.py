@@ -42,7 +42,8 @@ def test_maturity_distribution_adds_up(first_month):
     assert sum(table.column("count")) == len(book.holdings)
     assert sum(table.column("market_value")) == pytest.approx(m.valuation.totals.market_value, rel=1e-12, abs=0)
     assert sum(table.column("needs")) == pytest.approx(book.cash_needs.amount.sum(), rel=1e-12, abs=0)
-    assert table.rows[-1][8] == pytest.approx(sum(table.column("principal")) - book.cash_needs.amount.sum(), rel=1e-12, abs=0)
+    assert table.rows[-1][8] == pytest.approx(sum(table.column("principal")) - book.cash_needs.amount.sum(),
+                                              rel=1e-12, abs=0)
 
 
 def test_shock_table_against_the_valuation_and_the_cash_plan(first_month):

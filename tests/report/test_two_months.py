@@ -70,7 +70,8 @@ def test_second_month_shows_the_first_as_last_month(tmp_path):
         "Ending market value (with accrued interest)")[1]
     # year to date: November's income plus December's
     income = last.row("Income for the period (interest earned)")
-    assert income[4] == pytest.approx(this.row("Income for the period (interest earned)")[1] + income[1], rel=1e-12, abs=0)
+    assert income[4] == pytest.approx(this.row("Income for the period (interest earned)")[1] + income[1],
+                                      rel=1e-12, abs=0)
     assert second.report.period_start == FIRST
 
     # the activity section lists exactly the journal's entries of (30 Nov, 31 Dec]
@@ -88,7 +89,8 @@ def test_second_month_shows_the_first_as_last_month(tmp_path):
     assert income[1] == pytest.approx(projected, rel=1e-12, abs=0)
     departed = second.report.section("activity").tables[1]
     assert sorted(r[0] for r in departed.rows) == sorted(e.holding for e in entries)
-    assert last.row("of which: holdings that left the book in the period")[1] == pytest.approx(departed.total[5], rel=1e-12, abs=0)
+    assert last.row("of which: holdings that left the book in the period")[1] == pytest.approx(departed.total[5],
+                                                                                               rel=1e-12, abs=0)
 
     # the first month-end is written again exactly as it was, though the book has moved on
     assert past_report(folder, FIRST).to_json() == first.report.to_json()
