@@ -8,6 +8,7 @@ has row/column 0).
 import datetime as dt
 
 import numpy as np
+import openpyxl  # a dependency of ladder itself: missing, this fails, not skips
 import pytest
 
 from ladder.book.holdings_file import COLUMNS, read_holdings
@@ -104,7 +105,6 @@ def test_empty_file(tmp_path):
 
 def test_xlsx_reports_the_same_positions(tmp_path):
     # docs/formats.md: holdings.xlsx has the same columns and the same validation as holdings.csv
-    openpyxl = pytest.importorskip("openpyxl")
     book = openpyxl.Workbook()
     sheet = book.active
     for line in [HEADER, GOOD] + [row for row, *_ in BAD_ROWS]:
