@@ -14,6 +14,7 @@ import sys
 from pathlib import Path
 
 import pytest
+from demo_copy import untracked
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "demo_portfolios" / "tessaline"
@@ -28,7 +29,7 @@ def ladder(*args, stdin: str | None = None) -> subprocess.CompletedProcess:
 @pytest.fixture
 def book(tmp_path) -> Path:
     folder = tmp_path / "tessaline"
-    shutil.copytree(DEMO, folder)
+    shutil.copytree(DEMO, folder, ignore=untracked)   # tracked files only (demo_copy.py)
     return folder
 
 

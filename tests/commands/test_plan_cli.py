@@ -17,10 +17,10 @@ import sys
 from pathlib import Path
 
 import pytest
+from demo_copy import untracked
 
 ROOT = Path(__file__).resolve().parents[2]
 DEMO = ROOT / "demo_portfolios" / "tessaline"
-MINIMAL_POLICY = '[policy]\nname = "CLI test"\nversion = "1"\nadopted = 2024-01-01\n\n[portfolio]\nmax_maturity_years = 5\n'
 PERIOD_FIELDS = ("start", "end", "opening_cash", "coupons", "principal", "needs", "reinvested", "closing_cash",
                  "shortfall")
 
@@ -28,9 +28,7 @@ PERIOD_FIELDS = ("start", "end", "opening_cash", "coupons", "principal", "needs"
 @pytest.fixture(scope="module")
 def book(tmp_path_factory) -> Path:
     folder = tmp_path_factory.mktemp("cli") / "tessaline"
-    shutil.copytree(DEMO, folder)
-    if not (folder / "policy.toml").exists():
-        (folder / "policy.toml").write_text(MINIMAL_POLICY, encoding="utf-8")
+    shutil.copytree(DEMO, folder, ignore=untracked)   # tracked files only (demo_copy.py)
     return folder
 
 

@@ -10,13 +10,13 @@ from ladder.book.book_file import load_book
 from ladder.book.journal import read_journal
 from ladder.cli import main
 from ladder.demo import DEMO_BOOK
+from demo_copy import untracked
 
 
 @pytest.fixture()
 def folder(tmp_path):
     target = tmp_path / "book"
-    shutil.copytree(DEMO_BOOK, target, ignore=shutil.ignore_patterns("*.bak", "history.sqlite", "journal.jsonl",
-                                                                     "reports"))
+    shutil.copytree(DEMO_BOOK, target, ignore=untracked)   # tracked files only (demo_copy.py)
     return target
 
 

@@ -18,6 +18,7 @@ import sys
 from pathlib import Path
 
 import pytest
+from demo_copy import untracked
 
 from ladder.book.book_file import load_book
 from ladder.errors import InputError
@@ -40,17 +41,10 @@ def ladder(*args, columns: int | None = None) -> subprocess.CompletedProcess:
 
 @pytest.fixture(scope="module")
 def demo(tmp_path_factory) -> Path:
-    """The demo book; if its policy.toml is not there (or not valid) yet, a copy with docs/policy.md's example."""
-    try:
-        load_book(DEMO)
-        return DEMO
-    except InputError as error:
-        if not all(Path(p.file).name == "policy.toml" for p in error.problems):
-            raise
+    """A copy of the demo book's tracked files. The demo must load as it is: no fallback policy."""
     copy = tmp_path_factory.mktemp("demo") / "tessaline"
-    shutil.copytree(DEMO, copy)
-    example = re.search(r"```toml\n(.*?)```", (ROOT / "docs" / "policy.md").read_text(encoding="utf-8"), re.S)
-    (copy / "policy.toml").write_text(example.group(1), encoding="utf-8")
+    shutil.copytree(DEMO, copy, ignore=untracked)   # tracked files only (demo_copy.py)
+    load_book(copy)
     return copy
 
 

@@ -5,10 +5,11 @@ from __future__ import annotations
 import shutil
 
 from ladder.demo import DEMO_BOOK
+from demo_copy import untracked
 
 
 def copy_demo(target):
-    shutil.copytree(DEMO_BOOK, target)
+    shutil.copytree(DEMO_BOOK, target, ignore=untracked)   # tracked files only (demo_copy.py)
     return target
 
 

@@ -14,6 +14,7 @@ import pytest
 
 from ladder.book.book_file import load_book
 from ladder.demo import DEMO_BOOK
+from demo_copy import untracked
 
 SIZE = (160, 45)
 BIG_COPIES = 146          # 146 x the demo's 69 holdings = 10,074 holdings
@@ -48,7 +49,7 @@ def demo_book():
 def book_copy(tmp_path):
     """A private copy of the demo book folder (for saving), loaded."""
     folder = tmp_path / "book"
-    shutil.copytree(DEMO_BOOK, folder)
+    shutil.copytree(DEMO_BOOK, folder, ignore=untracked)   # tracked files only (demo_copy.py)
     return load_book(folder)
 
 
@@ -56,7 +57,7 @@ def book_copy(tmp_path):
 def big_book(tmp_path_factory):
     """The demo book with its holdings repeated under new ids: 10,074 holdings."""
     folder = tmp_path_factory.mktemp("big") / "book"
-    shutil.copytree(DEMO_BOOK, folder)
+    shutil.copytree(DEMO_BOOK, folder, ignore=untracked)   # tracked files only (demo_copy.py)
     with open(DEMO_BOOK / "holdings.csv", newline="", encoding="utf-8") as source:
         rows = list(csv.DictReader(source))
     with open(folder / "holdings.csv", "w", newline="", encoding="utf-8") as out:
