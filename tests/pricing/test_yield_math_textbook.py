@@ -239,7 +239,12 @@ def test_long_bond_approaches_the_perpetuity_limit():
     assert float(m.macaulay[0]) == pytest.approx(20.5, abs=1e-5, rel=0)
 
 
-def test_dirty_from_yield_agrees_with_measures():
+def test_dirty_from_yield_on_a_coupon_date_is_the_annuity_formula():
+    # Textbook price of a bullet on a coupon date: P = (C/2)(1 - v^n)/(y/2) + 100 v^n, v = 1/(1 + y/2),
+    # n half-years; here a 3% 3-year note at 4% (n = 6) and a 7% 12-year bond at 5% (n = 24)
     h, cf = bonds([0.03, 0.07], [3, 12])
-    np.testing.assert_array_equal(dirty_from_yield(cf, np.array([0.04, 0.05]), h.frequency),
-                                  measures_at_yield(cf, np.array([0.04, 0.05]), h.frequency).dirty)
+    expected = [1.5 * (1 - 1.02 ** -6) / 0.02 + 100 * 1.02 ** -6,
+                3.5 * (1 - 1.025 ** -24) / 0.025 + 100 * 1.025 ** -24]
+    # relative 1e-12: the same sum in exact arithmetic, so only round-off separates the two
+    np.testing.assert_allclose(dirty_from_yield(cf, np.array([0.04, 0.05]), h.frequency), expected,
+                               rtol=1e-12, atol=0)
