@@ -108,8 +108,10 @@ def test_forwards_keep_the_sign_of_their_discrete_forward():
     nodes = curve.node_times
     fd = -np.diff(np.log(curve.node_discount)) / np.diff(nodes)
     assert fd.min() < 0 < fd.max()
+    # a forward that touches zero may land a round-off below it: 1e-12 of the largest discrete forward
+    margin = 1e-12 * np.abs(fd).max()
     for a, b, sign in zip(nodes[:-1], nodes[1:], np.sign(fd)):
-        assert np.all(sign * curve.instantaneous_forward(np.linspace(a, b, 201)) >= -1e-15)
+        assert np.all(sign * curve.instantaneous_forward(np.linspace(a, b, 201)) >= -margin)
 
 
 def test_par_yields_without_positive_discount_factors_are_refused():
