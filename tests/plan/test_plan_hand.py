@@ -68,7 +68,8 @@ def test_two_bond_ladder_accrual_income(tmp_path):
     b_days = np.array([30, 28, 32, 30, 30, 30])
     expected = 2_000_000 * 0.04 * a_days / 360 + 3_000_000 * 0.05 * b_days / 360 + pr.fund_income
     assert np.allclose(pr.income, expected, rtol=0, atol=1e-6)
-    assert (2_000_000 * 0.04 * a_days / 360).sum() == pytest.approx(20_000, rel=1e-12, abs=0)   # the coupon less the 90 days bought
+    # the coupon less the 90 days bought
+    assert (2_000_000 * 0.04 * a_days / 360).sum() == pytest.approx(20_000, rel=1e-12, abs=0)
 
 
 def test_two_bond_ladder_shortfall_and_sale(tmp_path):

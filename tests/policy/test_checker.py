@@ -105,7 +105,8 @@ def test_shares_wam_duration_and_coverage_figures():
     result = run()
     assert result.rule("sectors.agency.max_pct").actual == pytest.approx(30.0, rel=1e-12, abs=0)
     assert result.rule("sectors.agency.max_pct").headroom == pytest.approx(20.0, rel=1e-12, abs=0)
-    assert result.rule("portfolio.issuer_max_pct").actual == pytest.approx(10.0, rel=1e-12, abs=0)   # US Treasury exempt, Big Agency named
+    # US Treasury exempt, Big Agency named
+    assert result.rule("portfolio.issuer_max_pct").actual == pytest.approx(10.0, rel=1e-12, abs=0)
     assert result.rule('issuers."Big Agency".max_pct').actual == pytest.approx(20.0, rel=1e-12, abs=0)
     assert result.rule("portfolio.liquidity[0].min_pct").actual == pytest.approx(40.0,
                                                                                  rel=1e-12, abs=0)   # T1, P1, P2, F1
@@ -204,7 +205,8 @@ def test_sector_callables():
 def test_liquidity_floor():
     result = run(body=POLICY.replace("min_pct = 10 }", "min_pct = 50 }"))
     r = result.rule("portfolio.liquidity[0].min_pct")
-    assert (r.status, r.limit, r.actual, r.headroom) == ("breach", 50.0, pytest.approx(40.0, rel=1e-12, abs=0), pytest.approx(-10.0, rel=1e-12, abs=0))
+    assert (r.status, r.limit, r.actual, r.headroom) == ("breach", 50.0, pytest.approx(40.0, rel=1e-12, abs=0),
+                                                          pytest.approx(-10.0, rel=1e-12, abs=0))
     assert r.holdings == ()
     assert flagged(result) == {"portfolio.liquidity[0].min_pct": "breach"}
 
@@ -368,4 +370,5 @@ def test_coverage_without_a_forecast_is_an_input_error():
 def test_policy_without_sectors_checks_no_sector_rules():
     result = run(body="[portfolio]\nissuer_max_pct = 25\n")
     assert [r.rule for r in result.rules] == ["portfolio.issuer_max_pct"]
-    assert result.rule("portfolio.issuer_max_pct").actual == pytest.approx(20.0, rel=1e-12, abs=0)    # US Treasury, Big Agency
+    # US Treasury, Big Agency
+    assert result.rule("portfolio.issuer_max_pct").actual == pytest.approx(20.0, rel=1e-12, abs=0)

@@ -32,7 +32,8 @@ def test_cash_by_month_from_the_cash_flow_matrix():
     expected = np.zeros(13)
     expected[5], expected[12] = 20_000.0, 1_020_000.0
     np.testing.assert_allclose(cash[0], expected, rtol=1e-12, atol=0)
-    assert cash[1, 1] == pytest.approx(1_000_000.0, rel=1e-12, abs=0) and cash[1].sum() == pytest.approx(1_000_000.0, rel=1e-12, abs=0)
+    assert cash[1, 1] == pytest.approx(1_000_000.0, rel=1e-12, abs=0)
+    assert cash[1].sum() == pytest.approx(1_000_000.0, rel=1e-12, abs=0)
     # the fund's balance is available on the check date itself, before coverage month 0: left out here
     # (coverage counts fund balances at market value instead)
     assert cash[2].sum() == 0.0

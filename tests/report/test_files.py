@@ -96,7 +96,8 @@ def test_xlsx_numbers_formats_and_totals_equal_ladder_value(first_month, tmp_pat
     assert cell["Face"].value == pytest.approx(totals["face"], abs=0.005, rel=0)
     assert cell["Market value"].value == pytest.approx(totals["market_value"], abs=0.005, rel=0)
     assert cell["Market value"].number_format == "#,##0.00"
-    assert cell["Share of portfolio"].value == pytest.approx(1.0, rel=1e-12, abs=0) and cell["Share of portfolio"].number_format == "0.000%"
+    assert cell["Share of portfolio"].value == pytest.approx(1.0, rel=1e-12, abs=0)
+    assert cell["Share of portfolio"].number_format == "0.000%"
     first = sheet[5]
     assert isinstance(first[header.index("Maturity")].value, dt.datetime)
     assert first[header.index("Book yield")].number_format == "0.000%"
