@@ -38,12 +38,13 @@ def test_booked_trades_change_the_holdings_and_are_journaled(book, tmp_path):
     reread = load_book(book.folder)
     assert "NEW-TSY-1" in set(reread.holdings.id)
     held = dict(zip(reread.holdings.id, reread.holdings.face))
-    assert held["DEMO-TSY-0101"] == pytest.approx(8_000_000 - 3_000_000)
+    assert held["DEMO-TSY-0101"] == pytest.approx(8_000_000 - 3_000_000, rel=1e-12, abs=0)
     entries = read_journal(book.folder)
     assert [(e.action, e.holding, e.face) for e in entries] == [("buy", "NEW-TSY-1", 2_000_000.0),
                                                                 ("sell", "DEMO-TSY-0101", 3_000_000.0)]
     buy, sell = entries
-    assert buy.price == pytest.approx(100.25) and buy.amount < 0 < sell.amount   # cash out for a buy, in for a sale
+    assert buy.price == pytest.approx(100.25, rel=1e-12, abs=0)
+    assert buy.amount < 0 < sell.amount                              # cash out for a buy, in for a sale
     assert booked.entries[0].reason == "test booking"
     assert (book.folder / "holdings.csv.bak").exists()
 

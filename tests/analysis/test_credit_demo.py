@@ -1,7 +1,6 @@
 """Credit on the demo book: the issue's complaints (credit never moves; a 3-month generic corporate
 out-yields commercial paper) and the cash plan's combined scenarios."""
 
-from dataclasses import replace
 
 import numpy as np
 import pytest

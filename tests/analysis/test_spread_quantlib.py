@@ -29,7 +29,7 @@ from ladder.risk.credit import SPREAD_SHIFT_BP  # noqa: E402
 from ladder.risk.scenarios import Scenario, SpreadMove, parallel  # noqa: E402
 
 from shock_books import UPWARD_PCT, TENORS, book_with, months_after, notes  # noqa: E402
-from test_shock_quantlib import ql_note, qdate  # noqa: E402
+from test_shock_quantlib import ql_note  # noqa: E402
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "pricing"))
 from test_curve_quantlib import quantlib_curve  # noqa: E402

@@ -32,10 +32,10 @@ def test_points_are_interpolated_in_tenor_years_and_flat_beyond_the_ends(tmp_pat
     assert (scare.name, scare.kind, scare.parallel_bp) == ("scare", "user", None)
     years = np.array([1 / 12, 3 / 12, 0.5, 1, 2, 3, 5, 7, 10, 20, 30])
     expected = np.interp(years, [0.25, 2, 5, 10], [25, 60, 90, 110])
-    np.testing.assert_allclose(scare.shift_bp_by_tenor, expected, atol=1e-12)
+    np.testing.assert_allclose(scare.shift_bp_by_tenor, expected, atol=1e-12, rtol=0)
     assert scare.shift_bp_by_tenor[0] == 25 and scare.shift_bp_by_tenor[-1] == 110      # flat ends
-    assert scare.shift_bp_by_tenor[TENORS.index("7Y")] == pytest.approx(98.0)        # 90 + 2/5 * 20
-    np.testing.assert_allclose(rally.shift_bp_by_tenor, np.interp(years, [1 / 12, 30], [-150, -45]), atol=1e-12)
+    assert scare.shift_bp_by_tenor[TENORS.index("7Y")] == pytest.approx(98.0, rel=1e-12, abs=0)        # 90 + 2/5 * 20
+    np.testing.assert_allclose(rally.shift_bp_by_tenor, np.interp(years, [1 / 12, 30], [-150, -45]), atol=1e-12, rtol=0)
 
 
 def test_tenor_labels_match_by_length(tmp_path):

@@ -3,6 +3,7 @@ the rung summary's marks, table sorting, scenario text, the trade ticket's row a
 
 from __future__ import annotations
 
+from dataclasses import replace
 from types import SimpleNamespace
 
 import numpy as np
@@ -26,25 +27,38 @@ def valuation(demo_book):
     return value_book(demo_book)
 
 
+def zero_coupon_book(book):
+    """The demo book holds no zero-coupon bond: its longest non-callable Treasury note made one (no coupon,
+    no quote, so priced on the curve plus the sector spread), alone in the book."""
+    h = book.holdings
+    note = np.flatnonzero((h.sector == "treasury") & (h.kind == "fixed") & ~h.callable)
+    one = h.take([int(note[np.argmax(h.maturity[note])])])
+    zero = replace(one, id=np.array(["ZERO-1"], object), kind=np.array(["zero"], object), coupon=np.zeros(1),
+                   quote_type=np.array([""], object), quote=np.full(1, np.nan))
+    return book.with_holdings(zero)
+
+
 @pytest.mark.parametrize("kind", ["fixed", "zero", "discount", "at_maturity"])
-def test_price_yield_curve_passes_through_the_holding_with_the_duration_slope(valuation, kind):
+def test_price_yield_curve_passes_through_the_holding_with_the_duration_slope(valuation, demo_book, kind):
+    if kind == "zero":
+        valuation = value_book(zero_coupon_book(demo_book))
     rows = np.flatnonzero((valuation.holdings.kind == kind) & ~valuation.holdings.callable)
-    if not len(rows):
-        pytest.skip(f"the demo book holds no {kind} holding")
+    assert len(rows), f"the book holds no {kind} holding"
     i = int(rows[0])
     py = price_yield(valuation, i)
     mid = len(py.yields) // 2
     # The exact curve reprices the holding at its own yield (the valuation's dirty price).
-    assert py.exact[mid] == pytest.approx(valuation.dirty[i], rel=1e-10)
-    assert py.yields[mid] == pytest.approx(valuation.measures.ytm[i], abs=1e-15)
+    assert py.exact[mid] == pytest.approx(valuation.dirty[i], rel=1e-10, abs=0)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert py.yields[mid] == pytest.approx(valuation.measures.ytm[i], rel=1e-12, abs=0)
     # Modified duration is -(1/P) dP/dy (yield_math docstring): the exact curve's slope at y0.
     h = py.yields[mid + 1] - py.yields[mid - 1]
     slope = (py.exact[mid + 1] - py.exact[mid - 1]) / h
-    assert slope == pytest.approx(-py.p0 * valuation.measures.modified[i], rel=1e-3)
+    assert slope == pytest.approx(-py.p0 * valuation.measures.modified[i], rel=1e-3, abs=0)
     # Second order beats first order away from y0 (Taylor), and both meet the exact price at y0.
     far = [0, -1]
     assert np.all(np.abs(py.convexity[far] - py.exact[far]) < np.abs(py.duration[far] - py.exact[far]))
-    assert py.duration[mid] == py.convexity[mid] == pytest.approx(py.p0)
+    assert py.duration[mid] == py.convexity[mid] == pytest.approx(py.p0, rel=1e-12, abs=0)
 
 
 def test_funds_have_no_price_yield_curve_and_callables_show_their_calls(valuation):
@@ -76,7 +90,7 @@ def test_rung_marks_gap_crowded_and_short_of_needs():
                       np.array(["a", "b"], dtype=object), np.array([2, 3]))
     s = rung_summary(v, needs)
     assert s.rungs == RUNGS
-    assert s.even_share[:6] == pytest.approx(np.array([3, 3, 6, 12, 12, 24]) / 60)
+    assert s.even_share[:6] == pytest.approx(np.array([3, 3, 6, 12, 12, 24]) / 60, rel=1e-12, abs=0)
     assert list(s.needs[:2]) == [6.0, 0.0]
     marks = dict(zip(s.rungs, s.marks))
     assert marks["0-3M"] == ("short of needs",)      # 6 needed, 5 maturing
