@@ -1,8 +1,10 @@
 """The ``ladder`` command line: ``ladder`` alone opens the workstation on the demo book.
 
 Input problems are printed one per line as ``file:row:column: message`` and exit with status 2;
-``check`` exits 1 on a policy breach; 0 otherwise. The workstation is imported only when it opens,
-so the reporting commands never load Textual.
+a file that cannot be read or written (permission, no space, a folder where a file should be, a
+damaged history database) is one line naming it and what to do, exit status 3; ``check`` exits 1
+on a policy breach; 0 otherwise. The workstation is imported only when it opens, so the reporting
+commands never load Textual.
 """
 
 from __future__ import annotations
@@ -11,12 +13,12 @@ import argparse
 import sys
 
 from ladder import CAUTION, __version__
-from ladder.errors import InputError
+from ladder.errors import FileFault, InputError, describe_os_error
 
 # subcommand -> module in ladder/commands
 COMMANDS = {"value": "value", "shock": "shock", "check": "check", "plan": "plan", "build": "build",
             "report": "report", "import": "custodian", "roll": "roll", "open": "open", "demo": "demo"}
-EXIT_OK, EXIT_BREACH, EXIT_INPUT = 0, 1, 2
+EXIT_OK, EXIT_BREACH, EXIT_INPUT, EXIT_FILE = 0, 1, 2, 3
 
 
 def _parser(only: str | None = None) -> argparse.ArgumentParser:
@@ -53,6 +55,12 @@ def main(argv: list[str] | None = None) -> int:
     except BrokenPipeError:          # output piped into a program that stopped reading (e.g. head)
         sys.stderr.close()
         return EXIT_OK
+    except FileFault as fault:
+        print(f"ladder: {fault}", file=sys.stderr)
+        return EXIT_FILE
+    except OSError as error:         # permission, no space, not a directory, is a directory ...
+        print(f"ladder: {describe_os_error(error)}", file=sys.stderr)
+        return EXIT_FILE
 
 
 if __name__ == "__main__":

@@ -77,8 +77,10 @@ def _refuse_early(args) -> None:
                                       "write it with --out and review it first")
     if args.apply and not args.yes and not sys.stdin.isatty():
         problems.add("--apply", 0, 0, "--apply asks for confirmation on a terminal; add --yes to apply from a script")
-    if args.out and not Path(args.out).parent.exists():
+    if args.out and not Path(args.out).parent.is_dir():
         problems.add(args.out, 0, 0, "the folder for --out does not exist")
+    elif args.out and Path(args.out).is_dir():
+        problems.add(args.out, 0, 0, "--out names a folder; name the trades file to write, e.g. trades.csv")
     problems.raise_if_any()
 
 
