@@ -1,6 +1,7 @@
 """The ``ladder`` command line: ``ladder`` alone opens the workstation on the demo book.
 
 Input problems are printed one per line as ``file:row:column: message`` and exit with status 2;
+a book without holdings says there is nothing to value (status 0);
 a file that cannot be read or written (permission, no space, a folder where a file should be, a
 damaged history database) is one line naming it and what to do, exit status 3; ``check`` exits 1
 on a policy breach; 0 otherwise. The workstation is imported only when it opens, so the reporting
@@ -10,10 +11,11 @@ commands never load Textual.
 from __future__ import annotations
 
 import argparse
+import json
 import sys
 
 from ladder import CAUTION, __version__
-from ladder.errors import FileFault, InputError, describe_os_error
+from ladder.errors import FileFault, InputError, NothingToValue, describe_os_error
 
 # subcommand -> module in ladder/commands
 COMMANDS = {"value": "value", "shock": "shock", "check": "check", "plan": "plan", "build": "build",
@@ -50,6 +52,12 @@ def main(argv: list[str] | None = None) -> int:
         print(f"ladder: refused: {len(error.problems)} problem(s); nothing was computed or written.",
               file=sys.stderr)
         return EXIT_INPUT
+    except NothingToValue as empty:  # an empty book is not a failure: say so, in the format asked for
+        if getattr(args, "format", None) == "json":
+            print(json.dumps({"nothing_to_value": str(empty), "holdings": 0}, indent=2))
+        else:   # a table on the terminal; with csv the line goes to stderr, keeping stdout empty
+            print(f"ladder: {empty}", file=sys.stderr if getattr(args, "format", None) == "csv" else sys.stdout)
+        return EXIT_OK
     except KeyboardInterrupt:
         return 130
     except BrokenPipeError:          # output piped into a program that stopped reading (e.g. head)

@@ -93,3 +93,12 @@ def naming(path):
         if error.filename is None:
             error.filename = str(path)
         raise
+
+
+class NothingToValue(Exception):
+    """The book holds no holdings: there is no figure to show (not a failure; exit status 0)."""
+
+    def __init__(self, holdings_file):
+        self.holdings_file = str(holdings_file)
+        super().__init__(f"{self.holdings_file} holds no holdings: there is nothing to value. Add holdings to it, "
+                         "import a custodian file (ladder import) or build a ladder for new cash (ladder build).")
