@@ -14,6 +14,7 @@ from dataclasses import dataclass
 from pathlib import Path
 
 from ladder.errors import Problems
+from ladder.neutralize import read_cell
 
 
 @dataclass(frozen=True)
@@ -44,7 +45,7 @@ def _text(value) -> str:
         return value.isoformat()
     if isinstance(value, float) and value.is_integer():
         return str(int(value))
-    return str(value).strip()
+    return read_cell(str(value).strip())
 
 
 def read_table(path: Path, problems: Problems, label: str | None = None) -> Table | None:
@@ -63,7 +64,7 @@ def read_table(path: Path, problems: Problems, label: str | None = None) -> Tabl
             book.close()
         else:
             with path.open(newline="", encoding="utf-8-sig") as handle:
-                raw = [[cell.strip() for cell in row] for row in csv.reader(handle)]
+                raw = [[read_cell(cell.strip()) for cell in row] for row in csv.reader(handle)]
     except (UnicodeDecodeError, csv.Error, ValueError, KeyError, zipfile.BadZipFile) as exc:
         what = "a damaged or not an .xlsx workbook" if path.suffix.lower() == ".xlsx" else "not UTF-8 CSV text"
         problems.add(label, 0, 0, f"cannot be read ({exc}): {what}; save it again from the spreadsheet program")

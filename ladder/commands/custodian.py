@@ -11,7 +11,7 @@ import sys
 from pathlib import Path
 
 from ladder.folder.book_file import load_book
-from ladder.commands.output import console, print_caution, write_csv, write_json
+from ladder.commands.output import console, print_caution, term, write_csv, write_json
 from ladder.errors import InputError, Problem
 from ladder.report.custodian import compare_holdings, read_custodian_file, replace_holdings
 
@@ -82,7 +82,7 @@ def run(args) -> int:
     else:
         con = console()
         counts = {k: sum(c.kind == k for c in changes) for k in ("added", "removed", "changed")}
-        con.print(f"{args.file} against {book.files['holdings'].name}: " + ", ".join(f"{v} {k}" for k, v in counts.items()))
+        con.print(f"{term(args.file)} against {term(book.files['holdings'].name)}: " + ", ".join(f"{v} {k}" for k, v in counts.items()))
         for c in changes:
             con.print(f"  {c.describe()}", markup=False, highlight=False)
     if args.apply and changes and not _confirmed(args, why, book.files["holdings"]):
