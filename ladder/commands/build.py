@@ -18,7 +18,7 @@ from ladder.folder.save import write_atomic
 from ladder.build.program import RUNG_BAND
 from ladder.commands.common import add_book
 from ladder.commands.output import console, fmt, print_caution, term, write_json
-from ladder.errors import Problems
+from ladder.errors import Problems, naming
 from ladder.neutralize import safe_cell
 
 HELP = "design a policy-compliant ladder for cash to invest, at the best yield the policy allows"
@@ -110,12 +110,14 @@ def run(args) -> int:
     if args.apply:
         apply_build(book, result)   # refuses a build that cannot be applied before anything is written
     if args.out:
-        write_atomic(Path(args.out), trades_csv(result))
+        with naming(args.out):
+            write_atomic(Path(args.out), trades_csv(result))
         if args.format == "table":
             console().print(f"Trades written to {args.out}.")
     if args.apply:
         if args.yes or _confirm(result, book.files["holdings"]):
-            path = save_build(book, result)
+            with naming(book.files["holdings"]):
+                path = save_build(book, result)
             print(f"Applied {len(result.trades)} trade(s) to {path} (previous file kept as {path.name}.bak).",
                   file=sys.stderr if args.format == "json" else sys.stdout)
         else:

@@ -12,7 +12,7 @@ from pathlib import Path
 
 from ladder.folder.book_file import load_book
 from ladder.commands.output import console, print_caution, term, write_csv, write_json
-from ladder.errors import InputError, Problem
+from ladder.errors import InputError, Problem, naming
 from ladder.report.custodian import compare_holdings, read_custodian_file, replace_holdings
 
 HELP = "compare a custodian holdings file with the book (added, removed, changed face or price); --apply replaces"
@@ -88,7 +88,8 @@ def run(args) -> int:
     if args.apply and changes and not _confirmed(args, why, book.files["holdings"]):
         print("Not applied.", file=sys.stderr)
     elif args.apply and changes:
-        path = replace_holdings(book, new, changes, Path(args.file).name, args.reason)
+        with naming(book.files["holdings"]):
+            path = replace_holdings(book, new, changes, Path(args.file).name, args.reason)
         if args.format == "table":
             con.print(f"Replaced {path} (previous kept as {path.name}.bak); {len(changes)} journal entries added.")
     elif args.format == "table":

@@ -5,6 +5,7 @@ from __future__ import annotations
 
 from ladder.commands.common import iso_date
 from ladder.commands.output import console, fmt, print_caution, term, write_json
+from ladder.errors import naming
 
 HELP = "take holdings that matured by a date, and those the issuer called, off the book (journaled)"
 
@@ -26,7 +27,8 @@ def run(args) -> int:
 
     book = load_book(args.book)
     called = tuple(c.strip() for c in args.called.split(",") if c.strip())
-    booked = roll_book(book, args.to, called)
+    with naming(book.files["holdings"]):
+        booked = roll_book(book, args.to, called)
     if args.format == "json":
         write_json({"to": args.to.isoformat(), "file": str(booked.path),
                     "entries": [e.to_json() for e in booked.entries]})
