@@ -50,6 +50,11 @@ def parse_policy(text: str, file: str = "policy.toml") -> Policy:
         line, column = (int(where.group(1)), int(where.group(2))) if where else (0, 0)
         problems.add(file, line, column, f"not valid TOML: {_TOML_POSITION.sub('', message)}")
         problems.raise_if_any()
+    except RecursionError:
+        problems = Problems()
+        problems.add(file, 0, 0, "not valid as a policy: tables or arrays are nested too deeply "
+                                 "(a policy needs at most four levels; see docs/policy.md)")
+        problems.raise_if_any()
     reader = _Reader(file, KeyLines(text))
     policy = reader.policy(data)
     reader.problems.raise_if_any()
