@@ -143,11 +143,11 @@ class _Reader:
         if isinstance(value, bool) or not isinstance(value, (int, float)):
             self.add(where, f"expected {'a whole number' if integer else 'a number'}{unit}, got {_kind_of(value)}")
             return None
-        if integer and value != int(value):
-            self.add(where, f"expected a whole number{unit}, got {value!r}")
-            return None
         if value != value or value in (float("inf"), float("-inf")):
             self.add(where, f"expected a finite number{unit}, got {value!r}")
+            return None
+        if integer and value != int(value):
+            self.add(where, f"expected a whole number{unit}, got {value!r}")
             return None
         if low is not None and (value <= low if low_open else value < low):
             self.add(where, f"must be {'above' if low_open else 'at least'} {low!r}{unit}, got {value!r}")

@@ -8,7 +8,7 @@ import hashlib
 from ladder.folder.book_file import load_book
 from ladder.demo import write_demo
 
-from tests.tui.conftest import drive
+from conftest import drive
 
 
 def _digest(folder):
