@@ -16,6 +16,7 @@ import sys
 
 from ladder import CAUTION, __version__
 from ladder.errors import FileFault, InputError, NothingToValue, describe_os_error
+from ladder.neutralize import safe_terminal
 
 # subcommand -> module in ladder/commands
 COMMANDS = {"value": "value", "shock": "shock", "check": "check", "plan": "plan", "build": "build",
@@ -48,7 +49,7 @@ def main(argv: list[str] | None = None) -> int:
         return args.run(args)
     except InputError as error:
         for problem in error.problems:
-            print(problem, file=sys.stderr)
+            print(safe_terminal(problem), file=sys.stderr)
         print(f"ladder: refused: {len(error.problems)} problem(s); nothing was computed or written.",
               file=sys.stderr)
         return EXIT_INPUT
@@ -64,10 +65,10 @@ def main(argv: list[str] | None = None) -> int:
         sys.stderr.close()
         return EXIT_OK
     except FileFault as fault:
-        print(f"ladder: {fault}", file=sys.stderr)
+        print(f"ladder: {safe_terminal(fault)}", file=sys.stderr)
         return EXIT_FILE
     except OSError as error:         # permission, no space, not a directory, is a directory ...
-        print(f"ladder: {describe_os_error(error)}", file=sys.stderr)
+        print(f"ladder: {safe_terminal(describe_os_error(error))}", file=sys.stderr)
         return EXIT_FILE
 
 

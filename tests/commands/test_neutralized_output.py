@@ -70,3 +70,13 @@ def test_escape_sequences_in_an_id_never_reach_the_terminal(tmp_path, capsys):
     out = capsys.readouterr().out
     assert "\x1b" not in out and "\x07" not in out
     assert "DEMO]0;owned" in out                  # the id is shown (rich may fold it), its brackets as text
+
+
+def test_problems_quoting_input_text_reach_the_terminal_without_control_characters(tmp_path, capsys):
+    book = write_demo(tmp_path / "book")
+    header, first = (book / "holdings.csv").read_text(encoding="utf-8").splitlines()[:2]
+    trades = tmp_path / "trades.csv"
+    trades.write_text(f"{header},action\nX\x1b[2J{first[first.index(','):]},sell\n", encoding="utf-8")
+    assert main(["check", str(book), "--trade", str(trades)]) == 2
+    err = capsys.readouterr().err
+    assert "X[2J is not in the book" in err and "\x1b" not in err
