@@ -146,7 +146,7 @@ def parse_cash(text) -> float:
         value = parse_number(str(text))
     except ValueError as why:
         value = None
-        problems.add("--cash", 0, 0, f"{why}: it is not an amount; write the cash to invest in currency units, "
+        problems.add("--cash", 0, 0, f"{why}; write the cash to invest in currency units, "
                                      "e.g. 25000000 or 25,000,000")
     if value is not None and value < 0:
         problems.add("--cash", 0, 0, f"{text!r} is negative; the cash to invest must be zero or more")
