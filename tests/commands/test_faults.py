@@ -6,15 +6,14 @@ from __future__ import annotations
 
 import csv
 import errno
-import hashlib
 import io
 import os
 import sqlite3
 import tempfile
 
 import pytest
+from cli_books import digest, run
 
-from ladder.cli import main
 from ladder.demo import write_demo
 from ladder.report.history import HISTORY_FILE, SCHEMA
 
@@ -24,18 +23,6 @@ CASH = "25000000"
 @pytest.fixture
 def book(tmp_path):
     return write_demo(tmp_path / "book")
-
-
-def digest(folder) -> dict[str, str]:
-    """SHA-256 of every file under ``folder`` (hidden temporary files included), by relative path."""
-    return {str(p.relative_to(folder)): hashlib.sha256(p.read_bytes()).hexdigest()
-            for p in sorted(folder.rglob("*")) if p.is_file()}
-
-
-def run(capsys, *argv) -> tuple[int, str, str]:
-    code = main([str(a) for a in argv])
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def set_cell(path, row: int, column: str, text: str) -> None:

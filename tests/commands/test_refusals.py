@@ -4,13 +4,12 @@ every command says there is nothing to value; a curve too short for a rotation l
 from __future__ import annotations
 
 import csv
-import hashlib
 import io
 import json
 
 import pytest
+from cli_books import digest, run
 
-from ladder.cli import main
 from ladder.demo import write_demo
 from ladder.folder.book_file import load_book
 
@@ -20,17 +19,6 @@ HOLDINGS = 69      # the demo book's holdings
 @pytest.fixture
 def book(tmp_path):
     return write_demo(tmp_path / "book")
-
-
-def digest(folder) -> dict[str, str]:
-    return {str(p.relative_to(folder)): hashlib.sha256(p.read_bytes()).hexdigest()
-            for p in sorted(folder.rglob("*")) if p.is_file()}
-
-
-def run(capsys, *argv):
-    code = main([str(a) for a in argv])
-    out, err = capsys.readouterr()
-    return code, out, err
 
 
 def custodian(book, tmp_path, keep: int):

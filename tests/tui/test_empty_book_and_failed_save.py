@@ -45,11 +45,9 @@ def test_a_save_that_fails_notifies_and_keeps_every_change(tmp_path, monkeypatch
     state = {}
 
     async def script(app, pilot):
-        await pilot.press("y")                      # Curve view
+        await pilot.press("y", "plus")              # Curve view, +1 bp on the first tenor: unsaved
         await pilot.pause()
-        await pilot.press("plus")                   # +1 bp on the first tenor: an unsaved change
-        await pilot.pause()
-        await pilot.press("ctrl+s")
+        await pilot.press("ctrl+s")                 # the write fails: the disk is full
         await pilot.pause()
         state["unsaved"] = dict(app.unsaved)
         state["running"] = app.is_running
