@@ -22,6 +22,7 @@ from ladder.analysis.check import BookCheck, TradeWhatIf, check_book, check_prop
 from ladder.analysis.records import clean_number
 from ladder.analysis.valuation import Valuation, settlement_date, value_book
 from ladder.folder.book_file import Book
+from ladder.book.cells import MAX_FACE, parse_number
 from ladder.book.holdings import Holdings
 from ladder.folder.save import holdings_rows
 from ladder.build.candidates import Candidates, eligible, fund_candidates, generic_candidates, read_offerings
@@ -142,14 +143,15 @@ def parse_cash(text) -> float:
     """Cash to invest from user text ("50,000,000" or 5e7); InputError unless a finite number >= 0."""
     problems = Problems()
     try:
-        value = float(str(text).replace(",", "").replace("_", ""))
-    except ValueError:
+        value = parse_number(str(text))
+    except ValueError as why:
         value = None
-    if value is None or not np.isfinite(value):
-        problems.add("--cash", 0, 0, f"{text!r} is not an amount; write the cash to invest in currency units, "
+        problems.add("--cash", 0, 0, f"{why}; write the cash to invest in currency units, "
                                      "e.g. 25000000 or 25,000,000")
-    elif value < 0:
+    if value is not None and value < 0:
         problems.add("--cash", 0, 0, f"{text!r} is negative; the cash to invest must be zero or more")
+    elif value is not None and value > MAX_FACE:
+        problems.add("--cash", 0, 0, f"{text!r} is out of range; the cash to invest is at most {MAX_FACE:,.0f}")
     problems.raise_if_any()
     return float(value)
 

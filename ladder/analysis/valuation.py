@@ -15,7 +15,7 @@ import numpy as np
 
 from ladder.folder.book_file import Book
 from ladder.book.holdings import QUOTE_NONE, Holdings
-from ladder.errors import Problems
+from ladder.errors import NothingToValue, Problems
 from ladder.market.dates import days_between
 from ladder.pricing.callable import (CallableBonds, HullWhiteParams, callable_prices, option_adjusted_spreads,
                                      workout_yields)
@@ -141,9 +141,12 @@ def _spread_problems(book: Book, rows: np.ndarray) -> None:
 
 
 def value_book(book: Book, at: dt.date | None = None) -> Valuation:
-    """Value every holding of ``book`` at ``at`` (default: the valuation date)."""
+    """Value every holding of ``book`` at ``at`` (default: the valuation date); ``NothingToValue``
+    for a book without holdings (every figure would be empty)."""
     settle = settlement_date(book, at)
     h = book.holdings
+    if not len(h):
+        raise NothingToValue(book.files["holdings"])
     curve = bootstrap(book.curve, np.datetime64(book.valuation_date))
     cf = cash_flows(h, np.datetime64(settle))
     discount = settle_discount(curve, cf)

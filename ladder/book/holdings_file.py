@@ -11,7 +11,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ladder.book.cells import CellReader
+from ladder.book.cells import MAX_FACE, RATE_RANGE_PCT, CellReader
 from ladder.book.holdings import (DAY_COUNTS, FREQUENCIES, KIND_DAY_COUNT, KINDS, SECTOR_DEFAULTS, SECTORS,
                                   Holdings, make_holdings)
 from ladder.book.table_file import Table, check_columns, read_table
@@ -83,7 +83,8 @@ def _parse_row(cells: CellReader, text: dict, at: dict, row: int, valuation: dt.
         SECTOR_DEFAULTS[sector][0] if sector else "fixed")
     if not text["issuer"]:
         cells.error(row, at["issuer"], "issuer is empty; issuer limits need the issuer's name")
-    face = cells.number(text["face"], row, at["face"], "face", low=0.0, what="the par amount must be positive")
+    face = cells.number(text["face"], row, at["face"], "face", low=0.0, high=MAX_FACE,
+                        what=f"the par amount must be positive and at most {MAX_FACE:,.0f}")
     if not text["face"]:
         cells.error(row, at["face"], "face is empty; give the par amount held")
     elif face == 0:
@@ -193,7 +194,9 @@ def _quote(cells, text, at, row, kind) -> tuple[str, float]:
         value = cells.number(text[name], row, at[name], "price", low=1.0, high=200.0,
                              what="a clean price per 100 face, e.g. 99.875")
         return ("price", value) if value is not None else ("", np.nan)
-    value = cells.number(text[name], row, at[name], name, low=-5.0, high=30.0, what="a rate in percent")
+    low, high = RATE_RANGE_PCT
+    value = cells.number(text[name], row, at[name], name, low=low, high=high,
+                         what=f"a rate in percent from {low:g} to {high:g}")
     return (QUOTE_COLUMNS[name], value / 100.0) if value is not None else ("", np.nan)
 
 

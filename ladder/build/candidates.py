@@ -29,6 +29,7 @@ import numpy as np
 
 from ladder.folder.book_file import Book
 from ladder.book.holdings import SECTORS, Holdings, make_holdings
+from ladder.book.cells import MAX_FACE, parse_number
 from ladder.book.holdings_file import read_holdings
 from ladder.book.table_file import read_table
 from ladder.build.rungs import Rungs
@@ -84,10 +85,10 @@ def _face_numbers(texts: list[str]) -> tuple[np.ndarray, list[int]]:
     values, bad = [], []
     for i, text in enumerate(texts):
         try:
-            value = float(text.replace(",", "")) if text.strip() else np.nan
+            value = parse_number(text) if text.strip() else np.nan
         except ValueError:
             value = np.nan
-        if not np.isfinite(value) or value <= 0:
+        if not np.isfinite(value) or not 0 < value <= MAX_FACE:
             bad.append(i)
         values.append(value)
     return np.array(values, dtype=np.float64), bad
@@ -111,7 +112,8 @@ def read_offerings(path, book: Book) -> Candidates:
     for name in OFFERING_COLUMNS:
         numbers[name], bad = _face_numbers(extras[name])
         for i in bad:
-            problems.add(label, int(h.row[i]), col[name], f"{name} {extras[name][i]!r} is not a positive face amount")
+            problems.add(label, int(h.row[i]), col[name], f"{name} {extras[name][i]!r} is not a positive face amount "
+                                                             f"of at most {MAX_FACE:,.0f}")
     held = set(book.holdings.id)
     for i in range(len(h)):
         row = int(h.row[i])

@@ -17,8 +17,9 @@ from ladder.book.holdings_file import COLUMNS
 from ladder.folder.save import write_atomic
 from ladder.build.program import RUNG_BAND
 from ladder.commands.common import add_book
-from ladder.commands.output import console, fmt, print_caution, write_json
-from ladder.errors import Problems
+from ladder.commands.output import console, fmt, print_caution, term, write_json
+from ladder.errors import Problems, naming
+from ladder.neutralize import safe_cell
 
 HELP = "design a policy-compliant ladder for cash to invest, at the best yield the policy allows"
 STEP_WORDS = {"pct": "1 percentage point", "years": "0.1 years", "days": "30 days",
@@ -51,7 +52,7 @@ def trades_csv(result: BuildResult) -> str:
     buffer = io.StringIO()
     writer = csv.DictWriter(buffer, fieldnames=list(COLUMNS) + ["action"], lineterminator="\n")
     writer.writeheader()
-    writer.writerows(trade_records(result.trades))
+    writer.writerows({k: safe_cell(v) for k, v in row.items()} for row in trade_records(result.trades))
     return buffer.getvalue()
 
 
@@ -77,8 +78,10 @@ def _refuse_early(args) -> None:
                                       "write it with --out and review it first")
     if args.apply and not args.yes and not sys.stdin.isatty():
         problems.add("--apply", 0, 0, "--apply asks for confirmation on a terminal; add --yes to apply from a script")
-    if args.out and not Path(args.out).parent.exists():
+    if args.out and not Path(args.out).parent.is_dir():
         problems.add(args.out, 0, 0, "the folder for --out does not exist")
+    elif args.out and Path(args.out).is_dir():
+        problems.add(args.out, 0, 0, "--out names a folder; name the trades file to write, e.g. trades.csv")
     problems.raise_if_any()
 
 
@@ -107,12 +110,14 @@ def run(args) -> int:
     if args.apply:
         apply_build(book, result)   # refuses a build that cannot be applied before anything is written
     if args.out:
-        write_atomic(Path(args.out), trades_csv(result))
+        with naming(args.out):
+            write_atomic(Path(args.out), trades_csv(result))
         if args.format == "table":
             console().print(f"Trades written to {args.out}.")
     if args.apply:
         if args.yes or _confirm(result, book.files["holdings"]):
-            path = save_build(book, result)
+            with naming(book.files["holdings"]):
+                path = save_build(book, result)
             print(f"Applied {len(result.trades)} trade(s) to {path} (previous file kept as {path.name}.bak).",
                   file=sys.stderr if args.format == "json" else sys.stdout)
         else:
@@ -130,12 +135,12 @@ def _print(result: BuildResult) -> None:
     con = console()
     c = result.candidates
     con.print(f"Ladder build at {result.as_of}: cash {fmt(result.cash, 2)}, rungs {result.rungs.spec} "
-              f"({', '.join(result.rungs.labels)}); {len(c)} candidates from {c.source}"
+              f"({', '.join(result.rungs.labels)}); {len(c)} candidates from {term(c.source)}"
               + (" [bold](generic: ids GENERIC-...)[/]" if c.generic.any() else "")
               + ("; fresh ladder (holdings ignored)" if result.fresh else "")
               + ("; sales allowed" if result.allow_sales else ""))
     for reason, count in c.left_out:
-        con.print(f"  left out {count}: {reason}")
+        con.print(f"  left out {count}: {term(reason)}")
     if result.status == "time_limit":
         con.print(f"[bold red]The solver found no ladder within its time limit[/] ({result.solution.seconds:.0f} s) "
                   "and could not prove that none exists; try fewer offerings or wider rungs.")
@@ -145,18 +150,18 @@ def _print(result: BuildResult) -> None:
         con.print("[bold red]No ladder satisfies every constraint.[/] The smallest relaxation that would admit one "
                   "(the budget and the candidates kept as given):")
         for conflict in result.conflicts:
-            con.print(f"  [bold]{conflict.group}[/]: {conflict.text}")
+            con.print(f"  [bold]{term(conflict.group)}[/]: {term(conflict.text)}")
             for label, limit, need in conflict.members:
                 unit = UNIT_WORDS.get(conflict.unit, "")
-                con.print(f"    {label or 'portfolio'}: limit {fmt(limit, 4)}, relax by {fmt(need, 4)} {unit}".rstrip())
+                con.print(f"    {term(label) or 'portfolio'}: limit {fmt(limit, 4)}, relax by {fmt(need, 4)} {unit}".rstrip())
         print_caution(con)
         return
     table = Table(title="Proposed trades", header_style="bold")
     for title in ("Action", "Id", "Sector", "Issuer", "Maturity", "Coupon %", "Rating", "Face", "Price"):
         table.add_column(title, justify="right" if title in ("Face", "Price", "Coupon %") else "left")
     for row in trade_records(result.trades):
-        table.add_row(row["action"], row["id"], row["sector"], row["issuer"], row["maturity_date"],
-                      row["coupon_pct"], "/".join(x for x in (row["rating"], row["short_rating"]) if x),
+        table.add_row(row["action"], term(row["id"]), row["sector"], term(row["issuer"]), row["maturity_date"],
+                      row["coupon_pct"], term("/".join(x for x in (row["rating"], row["short_rating"]) if x)),
                       fmt(float(row["face"]), 2), row["book_price"] or row["yield_pct"])
     con.print(table)
     con.print(f"Invested {fmt(result.invested, 2)} of {fmt(result.cash, 2)} (within one lot: largest lot "
@@ -184,7 +189,7 @@ def _print(result: BuildResult) -> None:
         for title in ("Rule", "Member", "Limit", "Relaxed by", "Income a year", "Yield bp"):
             bind.add_column(title, justify="left" if title in ("Rule", "Member") else "right")
         for item in result.binding[:15]:
-            bind.add_row(item.group, item.label, fmt(item.limit, 4), STEP_WORDS[item.unit],
+            bind.add_row(term(item.group), term(item.label), fmt(item.limit, 4), STEP_WORDS[item.unit],
                          fmt(item.income_per_step, 0), fmt(item.yield_bp_per_step, 3))
         con.print(bind)
     status = result.compliance_status

@@ -10,7 +10,7 @@ from ladder.analysis.check import check_book, check_trade_file
 from ladder.analysis.valuation import Totals
 from ladder.folder.book_file import load_book
 from ladder.commands.common import add_book
-from ladder.commands.output import console, fmt, print_caution, write_json
+from ladder.commands.output import console, fmt, print_caution, term, write_json
 
 HELP = "check the holdings (or the book after proposed trades) against the investment policy"
 STATUS_STYLE = {"pass": "green", "near": "yellow", "review": "magenta", "breach": "bold red"}
@@ -55,13 +55,13 @@ def _rules_table(result) -> None:
     from rich.table import Table
 
     con = console()
-    table = Table(title=f"Policy check at {result.as_of}: {result.policy_title}", header_style="bold")
+    table = Table(title=f"Policy check at {result.as_of}: {term(result.policy_title)}", header_style="bold")
     for title, justify in (("Rule", "left"), ("In words", "left"), ("Limit", "right"), ("Actual", "right"),
                            ("Headroom", "right"), ("Status", "left"), ("Holdings", "left")):
         table.add_column(title, justify=justify, overflow="fold")
     for r in result.rules:
-        table.add_row(r.rule, r.text, _value(r.limit), _value(r.actual), _value(r.headroom), _status(r.status),
-                      ", ".join(r.holdings[:6]) + (" …" if len(r.holdings) > 6 else ""))
+        table.add_row(term(r.rule), term(r.text), _value(r.limit), _value(r.actual), _value(r.headroom), _status(r.status),
+                      term(", ".join(r.holdings[:6])) + (" …" if len(r.holdings) > 6 else ""))
     con.print(table)
     counts = ", ".join(f"{n} {s}" for s, n in result.counts().items() if n)
     con.print(f"Overall: {_status(result.status)} ({counts}); percentages on {result.basis} value; "
@@ -80,13 +80,13 @@ def _trade_table(book, what_if) -> None:
 
     con = console()
     tc = what_if.check
-    table = Table(title=f"What-if for {len(what_if.trades)} proposed trade(s): {tc.after.policy_title}",
+    table = Table(title=f"What-if for {len(what_if.trades)} proposed trade(s): {term(tc.after.policy_title)}",
                   header_style="bold")
     for title in ("Rule", "Before", "Status before", "After", "Status after", "Caused by"):
         table.add_column(title, overflow="fold")
     for c in tc.changes:
-        cause = ", ".join(f"{t.action} {t.id}" for t in c.caused_by)
-        table.add_row(c.rule, _value(c.before.actual), _status(c.before.status), _value(c.after.actual),
+        cause = term(", ".join(f"{t.action} {t.id}" for t in c.caused_by))
+        table.add_row(term(c.rule), _value(c.before.actual), _status(c.before.status), _value(c.after.actual),
                       _status(c.after.status) + (" (new)" if c.new_breach else ""), cause)
     con.print(table)
     con.print(_risk_line("Before", what_if.before.totals))

@@ -10,7 +10,7 @@ from ladder.analysis.plan import (
 )
 from ladder.folder.book_file import REINVEST_RULES, load_book
 from ladder.commands.common import add_book
-from ladder.commands.output import console, emit, fmt, print_caution, print_whole
+from ladder.commands.output import console, emit, fmt, print_caution, print_whole, term
 from ladder.plan.periods import STEPS
 from ladder.plan.rates import RULES
 
@@ -69,7 +69,7 @@ def _table(plan) -> None:
     con = console()
     r = plan.reinvestment
     buy = "stays in the fund" if r.rule == "fund" else f"{r.tenor} {r.sector} at {r.spread_bp:+.1f} bp ({r.rule})"
-    con.print(f"[bold]{plan.book_name}[/bold]: cash plan from {plan.as_of}, scenario {plan.scenario}, "
+    con.print(f"[bold]{term(plan.book_name)}[/bold]: cash plan from {plan.as_of}, scenario {term(plan.scenario)}, "
               f"{len(plan.periods)} {plan.options.period}s; maturing money {buy}; cash buffer {fmt(r.buffer, 0)}; "
               f"rates {'stay as they are' if plan.options.rates == 'stay' else 'follow today' + chr(39) + 's forwards'}")
     table = Table(header_style="bold", show_lines=False)
@@ -99,7 +99,7 @@ def _table(plan) -> None:
         for title in ("Id", "Maturity", "Face", "Clean", "Proceeds", "Realized gain"):
             sales.add_column(title, justify="left" if title in ("Id", "Maturity") else "right")
         for s in sale_records(plan, first):
-            sales.add_row(s["id"], s["maturity_date"], fmt(s["face"], 0), fmt(s["clean_price"], 4),
+            sales.add_row(term(s["id"]), s["maturity_date"], fmt(s["face"], 0), fmt(s["clean_price"], 4),
                           fmt(s["proceeds"], 0), fmt(s["realized_gain"], 0))
         print_whole(con, sales)
         if pr.unfunded[first] > 0:
@@ -108,12 +108,12 @@ def _table(plan) -> None:
         if later:
             con.print(f"{later} later period(s) also need sales (shortfall column).")
     if plan.calls:
-        con.print("Expected calls: " + "; ".join(f"{c.id} on {c.date} at {c.price:g}" for c in plan.calls))
+        con.print("Expected calls: " + "; ".join(f"{term(c.id)} on {c.date} at {c.price:g}" for c in plan.calls))
     income = Table(title="Next 12 months: interest income (accrual) and total return", header_style="bold")
     for title in ("Scenario", "Income", "vs base", "Price change", "Total return", "Return %"):
         income.add_column(title, justify="left" if title == "Scenario" else "right")
     for x in income_records(plan):
-        income.add_row(x["scenario"], fmt(x["income_12m"], 0), fmt(x["income_change"], 0),
+        income.add_row(term(x["scenario"]), fmt(x["income_12m"], 0), fmt(x["income_change"], 0),
                        fmt(x["price_change_12m"], 0), fmt(x["total_return_12m"], 0), fmt(x["total_return_12m_pct"], 3))
     print_whole(con, income)
     for note in plan.notes:

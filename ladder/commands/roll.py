@@ -4,7 +4,8 @@ from __future__ import annotations
 
 
 from ladder.commands.common import iso_date
-from ladder.commands.output import console, fmt, print_caution, write_json
+from ladder.commands.output import console, fmt, print_caution, term, write_json
+from ladder.errors import naming
 
 HELP = "take holdings that matured by a date, and those the issuer called, off the book (journaled)"
 
@@ -26,14 +27,15 @@ def run(args) -> int:
 
     book = load_book(args.book)
     called = tuple(c.strip() for c in args.called.split(",") if c.strip())
-    booked = roll_book(book, args.to, called)
+    with naming(book.files["holdings"]):
+        booked = roll_book(book, args.to, called)
     if args.format == "json":
         write_json({"to": args.to.isoformat(), "file": str(booked.path),
                     "entries": [e.to_json() for e in booked.entries]})
         return 0
     con = console()
     for e in booked.entries:
-        con.print(f"{e.date}  {e.action:<7} {e.holding:<18} face {fmt(e.face, 0):>14}  cash {fmt(e.amount, 2):>16}")
+        con.print(f"{e.date}  {e.action:<7} {term(e.holding):<18} face {fmt(e.face, 0):>14}  cash {fmt(e.amount, 2):>16}")
     con.print(f"{len(booked.entries)} holding(s) taken off; {booked.path} written (previous kept as .bak) "
               "and the journal appended.")
     print_caution(con)

@@ -8,7 +8,7 @@ from pathlib import Path
 from ladder.analysis.shock import shock_book, shock_document, shock_rows, shock_scenarios, spread_duration_records
 from ladder.folder.book_file import load_book
 from ladder.commands.common import add_book
-from ladder.commands.output import console, emit, fmt, print_caution, print_whole
+from ladder.commands.output import console, emit, fmt, print_caution, print_whole, term
 from ladder.errors import InputError, Problems
 from ladder.risk.scenarios import parse_bp_list
 
@@ -66,7 +66,7 @@ def _tables(r) -> None:
     def show(t: Table) -> None:
         print_whole(con, t)
 
-    con.print(f"[bold]{r.book_name}[/bold]: rate shocks at {r.as_of}   base value {fmt(r.base_value, 0)}   "
+    con.print(f"[bold]{term(r.book_name)}[/bold]: rate shocks at {r.as_of}   base value {fmt(r.base_value, 0)}   "
               f"effective duration {fmt(r.effective_duration, 3)}   effective convexity {fmt(r.effective_convexity, 3)}")
     krd = r.portfolio_key_rate_durations
     t = Table(title="Key-rate durations (years, market-value weighted)", header_style="bold")
@@ -89,7 +89,7 @@ def _tables(r) -> None:
         t.add_column(title, justify="left" if title == "Scenario" else "right", no_wrap=True)
     for s, (scenario, bp) in enumerate(zip(r.scenarios, r.parallel_bp)):
         shift = fmt(bp, 0) if bp is not None else f"({fmt(r.equivalent_shift[s] * 1e4, 0)})"
-        t.add_row(scenario.name, shift, fmt(p.value[0, s], 0), fmt(p.change[0, s], 0),
+        t.add_row(term(scenario.name), shift, fmt(p.value[0, s], 0), fmt(p.change[0, s], 0),
                   fmt(100 * p.relative_change[0, s], 3), fmt(p.est_duration[0, s], 0), fmt(p.error_duration[0, s], 0),
                   fmt(p.est_duration_convexity[0, s], 0), fmt(p.error_duration_convexity[0, s], 0))
     show(t)
@@ -97,9 +97,9 @@ def _tables(r) -> None:
         t = Table(title=f"Change in value by {title} (exact); column heads show the base value", header_style="bold")
         t.add_column("Scenario", no_wrap=True)
         for group, base in zip(totals.groups, totals.base):
-            t.add_column(f"{group}\n{fmt(base, 0)}", justify="right", no_wrap=True)
+            t.add_column(f"{term(group)}\n{fmt(base, 0)}", justify="right", no_wrap=True)
         for s, scenario in enumerate(r.scenarios):
-            t.add_row(scenario.name, *[fmt(x, 0) for x in totals.change[:, s]])
+            t.add_row(term(scenario.name), *[fmt(x, 0) for x in totals.change[:, s]])
         show(t)
     _credit_tables(r, con, show)
     con.print("Estimates: parallel moves use the effective duration and convexity; other moves use the key-rate "

@@ -6,7 +6,7 @@ from ladder.analysis.records import holding_records, totals_record, valuation_do
 from ladder.analysis.valuation import value_book
 from ladder.folder.book_file import load_book
 from ladder.commands.common import add_book
-from ladder.commands.output import console, emit, fmt, print_caution
+from ladder.commands.output import console, emit, fmt, print_caution, term
 
 WIDE_TABLE = 190   # characters the full table needs; narrower terminals get the essential columns
 NARROW_COLUMNS = ("id", "maturity_date", "face", "clean_price", "ytm_pct", "effective_duration")
@@ -33,7 +33,7 @@ def _table(book, valuation) -> None:
     con = console()
     from rich import box
 
-    table = Table(title=f"{book.name}: valuation at {valuation.as_of}", header_style="bold", box=box.SIMPLE_HEAD,
+    table = Table(title=f"{term(book.name)}: valuation at {valuation.as_of}", header_style="bold", box=box.SIMPLE_HEAD,
                   pad_edge=False)
     columns = [("id", "Id", None), ("sector", "Sector", None), ("maturity_date", "Maturity", None),
                ("coupon_pct", "Cpn %", 3), ("face", "Face", 0), ("clean_price", "Clean", 4),
@@ -47,7 +47,7 @@ def _table(book, valuation) -> None:
         table.add_column(title, justify="left" if digits is None else "right", no_wrap=True)
     for record in holding_records(valuation):
         marks = ("*" if record["callable"] else "") + ("~" if record["priced_from"] == "curve" else "")
-        table.add_row(*[(str(record[key]) + (marks if key == "id" else "")) if digits is None
+        table.add_row(*[term(str(record[key]) + (marks if key == "id" else "")) if digits is None
                         else fmt(record[key], digits) for key, _, digits in columns])
     con.print(table)
     t = totals_record(valuation)

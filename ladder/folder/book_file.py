@@ -182,8 +182,8 @@ def _fit_sectors(s: _Settings, value) -> tuple[str, ...]:
 
 
 def _read_settings(path: Path, problems: Problems):
-    """(name, currency, valuation date, files, (spreads, sectors to fit), reinvest, model) from book.toml,
-    or None."""
+    """(name, currency, valuation date, files, holdings file to read, (spreads, sectors to fit), reinvest,
+    model) from book.toml, or None."""
     label = str(path)
     try:
         text = path.read_text(encoding="utf-8-sig")
@@ -193,6 +193,10 @@ def _read_settings(path: Path, problems: Problems):
         return None
     except (OSError, UnicodeDecodeError, tomllib.TOMLDecodeError) as exc:
         problems.add(label, 0, 0, f"cannot be read: {exc}")
+        return None
+    except RecursionError:
+        problems.add(label, 0, 0, "cannot be read: tables or arrays are nested too deeply; "
+                                  "book.toml needs at most three levels (see docs/formats.md)")
         return None
     s = _Settings(label, text, problems)
     for key in data:
@@ -207,7 +211,8 @@ def _read_settings(path: Path, problems: Problems):
         s.error(("valuation_date",), "must be a date written YYYY-MM-DD (no quotes), e.g. 2026-11-30")
         valuation = None
     files = {key: path.parent / DEFAULT_FILES[key] for key in DEFAULT_FILES}
-    for key, value in s.table(data, "files", DEFAULT_FILES).items():
+    named = s.table(data, "files", DEFAULT_FILES)
+    for key, value in named.items():
         if isinstance(value, str) and value:
             files[key] = path.parent / value
         else:
@@ -226,6 +231,7 @@ def _read_settings(path: Path, problems: Problems):
             if bucket not in SPREAD_BUCKETS:
                 _unknown(problems, label, s.lines, ("spreads", sector, bucket), bucket, SPREAD_BUCKETS)
         spreads[sector] = {b: _spread_curve(s, ("spreads", sector, b), v) for b, v in buckets.items()}
+    source = _holdings_source(label, files["holdings"], "holdings" in named, problems)
     r = s.table(data, "reinvest", ("rule", "target_tenor", "min_cash_buffer"))
     rule = r.get("rule", ReinvestSettings.rule)
     if rule not in REINVEST_RULES:
@@ -241,7 +247,7 @@ def _read_settings(path: Path, problems: Problems):
     model = ModelSettings(
         s.number(("model", "mean_reversion"), m.get("mean_reversion"), DEFAULT_MEAN_REVERSION, 1e-6, 5.0),
         s.number(("model", "volatility"), m.get("volatility"), DEFAULT_VOLATILITY, 0.0, 0.2))
-    return name, currency, valuation, files, (spreads, fit), ReinvestSettings(rule, tenor, buffer), model
+    return name, currency, valuation, files, source, (spreads, fit), ReinvestSettings(rule, tenor, buffer), model
 
 
 def _collect(problems: Problems, read, *args):
@@ -253,12 +259,16 @@ def _collect(problems: Problems, read, *args):
         return None
 
 
-def _holdings_path(files: dict[str, Path], named: bool) -> Path:
-    """holdings.csv, or holdings.xlsx when that is the only holdings file and none is named."""
-    path = files["holdings"]
-    if not named and not path.exists() and path.with_suffix(".xlsx").exists():
-        return path.with_suffix(".xlsx")
-    return path
+def _holdings_source(label: str, path: Path, named: bool, problems: Problems) -> Path:
+    """holdings.csv, or holdings.xlsx when that is the only holdings file and none is named; both
+    present and none named is a problem (which one is the book's is not ours to guess)."""
+    if named:
+        return path
+    workbook = path.with_suffix(".xlsx")
+    if workbook.exists() and path.exists():
+        problems.add(label, 0, 0, f"both {path.name} and {workbook.name} are here and [files] names neither; "
+                                  f'name the book\'s holdings file, e.g. [files] holdings = "{path.name}"')
+    return workbook if workbook.exists() and not path.exists() else path
 
 
 def load_book(folder) -> Book:
@@ -270,11 +280,10 @@ def load_book(folder) -> Book:
     settings = _read_settings(folder / BOOK_FILE, problems)
     if settings is None:
         problems.raise_if_any()
-    name, currency, valuation, files, (spreads, fit), reinvest, model = settings
-    named = "holdings" in (tomllib.loads((folder / BOOK_FILE).read_text(encoding="utf-8-sig")).get("files") or {})
+    name, currency, valuation, files, source, (spreads, fit), reinvest, model = settings
     holdings = None
     if valuation is not None:
-        holdings, _ = read_holdings(_holdings_path(files, named), valuation, problems)
+        holdings, _ = read_holdings(source, valuation, problems)
     for key in ("curve", "policy", "cash_needs"):
         if not files[key].exists():
             problems.add(str(files[key]), 0, 0, f"file not found; a book needs its {key} file (see docs/formats.md)")

@@ -18,6 +18,7 @@ import numpy as np
 
 from ladder.book.holdings import QUOTE_DISCOUNT, QUOTE_PRICE, QUOTE_YIELD, Holdings
 from ladder.book.holdings_file import COLUMNS
+from ladder.neutralize import safe_cell
 
 
 def _date(value) -> str:
@@ -77,7 +78,7 @@ def holdings_csv(h: Holdings) -> str:
     buffer = io.StringIO()
     writer = csv.DictWriter(buffer, fieldnames=list(COLUMNS), lineterminator="\n")
     writer.writeheader()
-    writer.writerows(holdings_rows(h))
+    writer.writerows({k: safe_cell(v) for k, v in row.items()} for row in holdings_rows(h))
     return buffer.getvalue()
 
 

@@ -50,6 +50,11 @@ def parse_policy(text: str, file: str = "policy.toml") -> Policy:
         line, column = (int(where.group(1)), int(where.group(2))) if where else (0, 0)
         problems.add(file, line, column, f"not valid TOML: {_TOML_POSITION.sub('', message)}")
         problems.raise_if_any()
+    except RecursionError:
+        problems = Problems()
+        problems.add(file, 0, 0, "not valid as a policy: tables or arrays are nested too deeply "
+                                 "(a policy needs at most four levels; see docs/policy.md)")
+        problems.raise_if_any()
     reader = _Reader(file, KeyLines(text))
     policy = reader.policy(data)
     reader.problems.raise_if_any()
@@ -138,11 +143,11 @@ class _Reader:
         if isinstance(value, bool) or not isinstance(value, (int, float)):
             self.add(where, f"expected {'a whole number' if integer else 'a number'}{unit}, got {_kind_of(value)}")
             return None
-        if integer and value != int(value):
-            self.add(where, f"expected a whole number{unit}, got {value!r}")
-            return None
         if value != value or value in (float("inf"), float("-inf")):
             self.add(where, f"expected a finite number{unit}, got {value!r}")
+            return None
+        if integer and value != int(value):
+            self.add(where, f"expected a whole number{unit}, got {value!r}")
             return None
         if low is not None and (value <= low if low_open else value < low):
             self.add(where, f"must be {'above' if low_open else 'at least'} {low!r}{unit}, got {value!r}")

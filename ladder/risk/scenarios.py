@@ -45,6 +45,7 @@ from ladder.errors import Problems
 from ladder.market.tenors import tenor_label, tenor_months
 from ladder.pricing.curve import ParCurve
 from ladder.pricing.spreads import RATING_BUCKETS, rating_buckets
+from ladder.book.cells import parse_number
 from ladder.book.table_file import read_rows
 
 DEFAULT_PARALLEL_BP = (-300.0, -200.0, -100.0, -50.0, -25.0, 0.0, 25.0, 50.0, 100.0, 200.0, 300.0)
@@ -180,11 +181,15 @@ def long_end_move(par_curve: ParCurve, bp: float, zero_to: str = LONG_END[0],
 def standard_non_parallel(par_curve: ParCurve) -> tuple[Scenario, ...]:
     """The default non-parallel set: steepener and flattener of 100 bp about 2Y, short-end and
     long-end moves of +/-100 bp, and a twist of +50 bp at the short end and -50 bp at the long end
-    about 5Y (where the curve has tenors on both sides of 5Y)."""
-    scenarios = [steepener(par_curve), flattener(par_curve),
-                 short_end_move(par_curve, 100.0), short_end_move(par_curve, -100.0),
-                 long_end_move(par_curve, 100.0), long_end_move(par_curve, -100.0)]
-    if par_curve.years[0] < 5.0 < par_curve.years[-1]:
+    about 5Y. A rotation is left out of the set where the curve has no tenor on one side of its
+    pivot (a curve of 3M and 1Y only has no steepener about 2Y): it could not turn about it."""
+    def inside(pivot: str) -> bool:
+        return par_curve.years[0] < _tenor_years(pivot) < par_curve.years[-1]
+
+    scenarios = [steepener(par_curve), flattener(par_curve)] if inside(DEFAULT_PIVOT) else []
+    scenarios += [short_end_move(par_curve, 100.0), short_end_move(par_curve, -100.0),
+                  long_end_move(par_curve, 100.0), long_end_move(par_curve, -100.0)]
+    if inside("5Y"):
         scenarios.append(twist(par_curve, 50.0, -50.0, "5Y"))
     return tuple(scenarios)
 
@@ -202,10 +207,9 @@ def shift_matrix(scenarios: Sequence[Scenario]) -> np.ndarray:
 
 def _shift(text: str) -> float | None:
     try:
-        value = float(text)
+        return parse_number(text)
     except ValueError:
         return None
-    return value if math.isfinite(value) else None
 
 
 def _checked_shift(name: str, r: int, c: int, text: str, problems: Problems) -> float | None:

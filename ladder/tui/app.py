@@ -11,6 +11,7 @@ import asyncio
 import dataclasses
 from pathlib import Path
 
+from rich.markup import escape
 from textual import work
 from textual.app import App, ComposeResult, SystemCommand
 from textual.binding import Binding
@@ -19,6 +20,8 @@ from textual.widgets import ContentSwitcher, Static
 from textual.worker import get_current_worker
 
 from ladder import CAUTION
+from ladder.errors import FileFault, describe_os_error, naming
+from ladder.neutralize import safe_terminal
 from ladder.folder.book_file import Book
 from ladder.tui import tasks
 from ladder.tui.executor import DaemonExecutor
@@ -121,7 +124,7 @@ class LadderApp(App[None]):
             state.append("not available: " + ", ".join(sorted(r.errors)))
         if self.unsaved:
             state.append("UNSAVED: " + "; ".join(self.unsaved.values()))
-        line = f"{book.name} ({book.folder})  ·  valuation date {book.valuation_date}  ·  {book.currency}"
+        line = f"{escape(safe_terminal(book.name))} ({escape(safe_terminal(book.folder))})  ·  valuation date {book.valuation_date}  ·  {book.currency}"
         bar = self.query_one("#book-line", Static)
         bar.update(line + ("  ·  " + "  ·  ".join(state) if state else "  ·  figures current"))
         bar.set_class(bool(self.unsaved), "-unsaved")
@@ -280,7 +283,12 @@ class LadderApp(App[None]):
     def action_save(self) -> None:
         if not self.unsaved:
             return
-        written = self.save()
+        try:
+            written = self.save()
+        except (OSError, FileFault) as error:   # read-only folder, full disk ...: keep every change unsaved
+            reason = describe_os_error(error) if isinstance(error, OSError) else str(error)
+            self.notify(f"{reason}. Nothing is lost: the changes stay unsaved.", title="Not saved", severity="error")
+            return
         self.notify("Saved " + ", ".join(p.name for p in written) + " (each previous file kept as .bak)",
                     title="Saved")
 
@@ -291,11 +299,13 @@ class LadderApp(App[None]):
 
         written = []
         if "holdings" in self.unsaved:
-            written.append(save_with_journal(self.book, self.book.holdings, self.pending_journal))
+            with naming(self.book.files["holdings"]):
+                written.append(save_with_journal(self.book, self.book.holdings, self.pending_journal))
             self.pending_journal.clear()
             self.saved_holdings = self.book.holdings
         if "curve" in self.unsaved:
-            written.append(save_curve(self.book, self.book.curve))
+            with naming(self.book.files["curve"]):
+                written.append(save_curve(self.book, self.book.curve))
             self.original_curve = self.book.curve
         self.unsaved.clear()
         self._show_bar()
@@ -309,8 +319,9 @@ class LadderApp(App[None]):
 
         def answered(choice: str | None) -> None:
             if choice == "save":
-                self.save()
-                self.exit()
+                self.action_save()
+                if not self.unsaved:     # a failed save keeps the workstation open with the changes
+                    self.exit()
             elif choice == "discard":
                 self.exit()
 

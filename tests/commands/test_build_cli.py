@@ -71,7 +71,8 @@ def test_apply_asks_for_confirmation(book):
 
 @pytest.mark.parametrize("args, words", [
     (("--cash", "-5"), "negative"),
-    (("--cash", "lots"), "is not an amount"),
+    (("--cash", "lots"), "'lots' is not a number"),
+    (("--cash", "25,000,00"), "comma out of place"),
     (("--cash", "1000000", "--rungs", "6x1Y"), "past the policy's maximum maturity"),
     (("--cash", "1000000", "--rungs", "3 months"), "not a tenor"),
     (("--cash", "1000000", "--rung-band", "2,1"), "0 <= LOW <= 1 <= HIGH"),

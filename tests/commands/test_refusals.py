@@ -1,0 +1,89 @@
+"""Refusals, not accidents: an import that would empty the book asks first; an empty book loads and
+every command says there is nothing to value; a curve too short for a rotation leaves it out."""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+
+import pytest
+from cli_books import digest, run
+
+from ladder.demo import write_demo
+from ladder.folder.book_file import load_book
+
+HOLDINGS = 69      # the demo book's holdings
+
+
+@pytest.fixture
+def book(tmp_path):
+    return write_demo(tmp_path / "book")
+
+
+def custodian(book, tmp_path, keep: int):
+    """A custodian file with the header and the book's first ``keep`` holdings."""
+    lines = (book / "holdings.csv").read_text(encoding="utf-8").splitlines(keepends=True)
+    path = tmp_path / "custodian.csv"
+    path.write_text("".join(lines[:1 + keep]), encoding="utf-8")
+    return path
+
+
+@pytest.mark.parametrize("keep, words", [(0, f"remove every holding ({HOLDINGS})"),
+                                         (50, f"remove 19 of the book's {HOLDINGS} holdings (more than 20%)")])
+def test_an_import_that_removes_too_much_is_refused_without_a_terminal(book, tmp_path, capsys, keep, words):
+    before = digest(book)
+    code, out, err = run(capsys, "import", book, custodian(book, tmp_path, keep), "--apply")
+    assert code == 2 and words in err and "add --yes" in err and out == ""
+    assert digest(book) == before
+
+
+def test_an_import_within_the_share_applies_and_yes_or_a_wider_share_lets_a_large_one_through(book, tmp_path,
+                                                                                                capsys):
+    # 56 of 69 kept: 13 removed = 18.8% <= 20%, applied without asking
+    assert run(capsys, "import", book, custodian(book, tmp_path, 56), "--apply")[0] == 0
+    assert len(load_book(book).holdings) == 56
+    # 40 kept: 16 of 56 = 28.6%: refused at the default, applied with --max-removed 30
+    assert run(capsys, "import", book, custodian(book, tmp_path, 40), "--apply")[0] == 2
+    assert run(capsys, "import", book, custodian(book, tmp_path, 40), "--apply", "--max-removed", "30")[0] == 0
+    assert len(load_book(book).holdings) == 40
+    # every holding: --yes, as a script says it means it
+    assert run(capsys, "import", book, custodian(book, tmp_path, 0), "--apply", "--yes")[0] == 0
+    assert len(load_book(book).holdings) == 0
+
+
+def test_an_import_asks_on_a_terminal_and_no_keeps_the_book(book, tmp_path, capsys, monkeypatch):
+    before = digest(book)
+    monkeypatch.setattr("sys.stdin.isatty", lambda: True)
+    monkeypatch.setattr("builtins.input", lambda prompt: "n")
+    code, _, err = run(capsys, "import", book, custodian(book, tmp_path, 0), "--apply")
+    assert code == 0 and "Not applied." in err and digest(book) == before
+
+
+EMPTY_COMMANDS = [["value"], ["value", "--format", "csv"], ["shock"], ["check"], ["plan"], ["report"],
+                  ["check", "--format", "json"], ["shock", "--format", "json"]]
+
+
+@pytest.mark.parametrize("command", EMPTY_COMMANDS, ids=[" ".join(c) for c in EMPTY_COMMANDS])
+def test_an_empty_book_says_there_is_nothing_to_value(book, capsys, command):
+    header = (book / "holdings.csv").read_text(encoding="utf-8").splitlines()[0]
+    (book / "holdings.csv").write_text(header + "\n", encoding="utf-8")
+    before = digest(book)
+    code, out, err = run(capsys, command[0], book, *command[1:])
+    assert code == 0 and "Traceback" not in err
+    if "json" in command:
+        assert json.loads(out)["holdings"] == 0 and "nothing to value" in json.loads(out)["nothing_to_value"]
+    elif "csv" in command:
+        assert out == "" and "nothing to value" in err
+    else:
+        assert out.count("\n") == 1 and "holdings.csv holds no holdings: there is nothing to value" in out
+    assert digest(book) == before                 # the report records nothing either
+
+
+def test_a_curve_too_short_for_the_rotations_still_shocks(book, capsys):
+    (book / "curve.csv").write_text("tenor,par_yield_pct\n3M,4.2\n1Y,4.0\n", encoding="utf-8")
+    (book / "scenarios.csv").unlink()
+    code, out, err = run(capsys, "shock", book, "--format", "csv")
+    names = {r["scenario"] for r in csv.DictReader(io.StringIO(out)) if r["level"] == "portfolio"}
+    assert code == 0 and "-300 bp" in names and "short end +100 bp" in names
+    assert not any("steepener" in n or "flattener" in n for n in names)       # no tenor beyond the 2Y pivot
