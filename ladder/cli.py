@@ -15,7 +15,8 @@ from ladder.errors import InputError
 
 # subcommand -> module in ladder/commands
 COMMANDS = {"value": "value", "shock": "shock", "check": "check", "plan": "plan", "build": "build",
-            "report": "report", "import": "custodian", "roll": "roll", "open": "open", "demo": "demo"}
+            "report": "report", "import": "custodian", "roll": "roll", "restore": "restore", "open": "open",
+            "demo": "demo"}
 EXIT_OK, EXIT_BREACH, EXIT_INPUT = 0, 1, 2
 
 

@@ -16,6 +16,8 @@ from ladder.book.cash_needs import CashNeeds, read_cash_needs
 from ladder.book.holdings import SECTORS, Holdings
 from ladder.book.holdings_file import read_holdings
 from ladder.errors import InputError, Problems
+from ladder.folder.transaction import recover
+from ladder.folder.versions import MAX_KEEP
 from ladder.market.tenors import tenor_months
 from ladder.policy.model import Policy
 from ladder.policy.policy_file import load_policy
@@ -29,7 +31,7 @@ DEFAULT_FILES = {"holdings": "holdings.csv", "curve": "curve.csv", "policy": "po
                  "cash_needs": "cash_needs.csv", "scenarios": "scenarios.csv"}
 OPTIONAL_FILES = ("scenarios",)
 REINVEST_RULES = ("longest_rung", "target_tenor", "fund")
-TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "reinvest", "model")
+TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "reinvest", "model", "history")
 SPREAD_BUCKETS = ("AAA", "AA", "A", "BBB", "A-1+", "A-1", "A-2", "A-3", "default")
 # Defaults of the callable model (Hull-White): see docs/methods.md for where they come from.
 DEFAULT_MEAN_REVERSION = 0.03
@@ -181,6 +183,9 @@ def _read_settings(path: Path, problems: Problems):
     except ValueError as exc:
         s.error(("reinvest", "target_tenor"), str(exc))
     buffer = s.number(("reinvest", "min_cash_buffer"), r.get("min_cash_buffer"), 0.0, 0.0, 1e15)
+    keep = s.table(data, "history", ("keep",)).get("keep")
+    if keep is not None and (isinstance(keep, bool) or not isinstance(keep, int) or not 1 <= keep <= MAX_KEEP):
+        s.error(("history", "keep"), f"must be a whole number of versions from 1 to {MAX_KEEP}, not {keep!r}")
     m = s.table(data, "model", ("mean_reversion", "volatility"))
     model = ModelSettings(
         s.number(("model", "mean_reversion"), m.get("mean_reversion"), DEFAULT_MEAN_REVERSION, 1e-6, 5.0),
@@ -206,19 +211,22 @@ def _holdings_path(files: dict[str, Path], named: bool) -> Path:
 
 
 def load_book(folder) -> Book:
-    """The book in ``folder`` (or a path to its book.toml); raises ``InputError`` with every problem."""
+    """The book in ``folder`` (or a path to its book.toml); raises ``InputError`` with every problem.
+    An interrupted change is first finished or undone (``ladder.folder.transaction.recover``)."""
     folder = Path(folder)
     if folder.is_file():
         folder = folder.parent
+    recover(folder)
     problems = Problems()
     settings = _read_settings(folder / BOOK_FILE, problems)
     if settings is None:
         problems.raise_if_any()
     name, currency, valuation, files, spreads, reinvest, model = settings
     named = "holdings" in (tomllib.loads((folder / BOOK_FILE).read_text(encoding="utf-8-sig")).get("files") or {})
+    files["holdings"] = _holdings_path(files, named)      # the file read is the file written
     holdings = None
     if valuation is not None:
-        holdings, _ = read_holdings(_holdings_path(files, named), valuation, problems)
+        holdings, _ = read_holdings(files["holdings"], valuation, problems)
     for key in ("curve", "policy", "cash_needs"):
         if not files[key].exists():
             problems.add(str(files[key]), 0, 0, f"file not found; a book needs its {key} file (see docs/formats.md)")

@@ -47,7 +47,7 @@ def write_report(report: Report, out: Path, fmt: str, folder_name: str) -> list[
     stem = report_stem(report, folder_name)
     if fmt == "html":
         path = out / f"{stem}.html"
-        write_atomic(path, report_html(report), backup=False)
+        write_atomic(path, report_html(report))
         return [path]
     if fmt == "xlsx":
         path = out / f"{stem}.xlsx"
@@ -63,5 +63,5 @@ def write_report(report: Report, out: Path, fmt: str, folder_name: str) -> list[
             names[(s.key, k)] = image.name
             written.append(image)
     path = out / f"{stem}.md"
-    write_atomic(path, report_md(report, names), backup=False)
+    write_atomic(path, report_md(report, names))
     return [path] + written
