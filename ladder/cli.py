@@ -1,7 +1,7 @@
 """The ``ladder`` command line: ``ladder`` alone opens the workstation on the demo book.
 
 Input problems are printed one per line as ``file:row:column: message`` and exit with status 2;
-``check`` exits 1 on a policy breach; 0 otherwise. The workstation is imported only when it opens,
+``check`` exits 1 on a policy breach; a failure to read or write exits 3; 0 otherwise. The workstation is imported only when it opens,
 so the reporting commands never load Textual.
 """
 
@@ -17,7 +17,7 @@ from ladder.errors import InputError
 COMMANDS = {"value": "value", "shock": "shock", "check": "check", "plan": "plan", "build": "build",
             "report": "report", "import": "custodian", "roll": "roll", "restore": "restore", "open": "open",
             "demo": "demo"}
-EXIT_OK, EXIT_BREACH, EXIT_INPUT = 0, 1, 2
+EXIT_OK, EXIT_BREACH, EXIT_INPUT, EXIT_IO = 0, 1, 2, 3
 
 
 def _parser(only: str | None = None) -> argparse.ArgumentParser:
@@ -54,6 +54,9 @@ def main(argv: list[str] | None = None) -> int:
     except BrokenPipeError:          # output piped into a program that stopped reading (e.g. head)
         sys.stderr.close()
         return EXIT_OK
+    except OSError as error:         # a book another program is changing, a read-only file, a full disk
+        print(f"ladder: {error}", file=sys.stderr)
+        return EXIT_IO
 
 
 if __name__ == "__main__":

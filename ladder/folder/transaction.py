@@ -9,8 +9,8 @@ API (the one way to change a book; booking, roll, import, build, the workstation
         ...                                         # ... decide the change ...
         commit(book, {book.files["holdings"]: data}, entries, reason="roll to 2026-12-31")
 
-- ``replacements``: target path (absolute, or relative to the book folder) -> the file's complete new
-  bytes. Write them with the file's own format (``ladder.folder.save``).
+- ``replacements``: target path (as ``book.files`` names it: absolute or relative to the current
+  directory) -> the file's complete new bytes. Write them with the file's own format (``ladder.folder.save``).
 - ``entries``: ``JournalEntry`` lines to append to ``journal.jsonl`` (validated; the UTC time of
   recording filled in). Either may be empty: a journal note alone, or a file with no journal line.
 - ``reason``: words for the version kept of each replaced file and for the lock's holder file.
@@ -209,7 +209,7 @@ def _prepare(folder: Path, replacements: dict, entries: tuple, reason: str):
     files, refused, data_of = [], [], []
     names: set[str] = set()
     for i, (target, data) in enumerate(replacements.items()):
-        target = folder / target
+        target = Path(target).absolute()
         real = Path(os.path.realpath(target))
         st, problem = _check_target(target, real)
         if problem:
@@ -231,19 +231,15 @@ def _prepare(folder: Path, replacements: dict, entries: tuple, reason: str):
     if lines and length and _last_byte(journal) != b"\n":
         lines = b"\n" + lines
     record = folder / RECORD
-    record.mkdir()
+    record.mkdir(mode=0o700)     # the files' contents wait here: readable by no one else meanwhile
     _step()
     try:
         for f, (real, data) in zip(files, data_of):
             _write(record / f["new"], data)
-            if f["uid"] is not None and hasattr(os, "chown"):
-                try:                     # can the owner be kept? (only root may give a file away)
-                    os.chown(record / f["new"], f["uid"], f["gid"])
-                except PermissionError:
-                    raise WriteRefused(f"{folder / f['target']}: owned by another user; replacing it would "
-                                       "change its owner, so nothing was changed") from None
-            if f["old"]:
+            if f["old"]:         # the version kept: same mode and owner as the file it was
                 _write(record / f["old"], real.read_bytes())
+                os.chmod(record / f["old"], f["mode"])
+                _keep_owner(record / f["old"], f, folder)
         if lines:
             _write(record / LINES, lines)
         kept = {f["keep_as"]: f["target"] for f in files if f["old"]}
@@ -262,6 +258,17 @@ def _prepare(folder: Path, replacements: dict, entries: tuple, reason: str):
     _fsync_dir(record)
     _step()                      # committed: from here on the change happens, now or at recovery
     return manifest, recorded
+
+
+def _keep_owner(path: Path, f: dict, folder: Path) -> None:
+    """Give ``path`` the owner recorded in ``f``; refused when only root could (and we are not)."""
+    if f["uid"] is None or not hasattr(os, "chown"):
+        return
+    try:
+        os.chown(path, f["uid"], f["gid"])
+    except PermissionError:
+        raise WriteRefused(f"{folder / f['target']}: owned by another user; replacing it would change its "
+                           "owner, so nothing was changed") from None
 
 
 def _last_byte(path: Path) -> bytes:
@@ -300,8 +307,7 @@ def _apply(folder: Path, manifest: dict) -> None:
         temporary = real.with_name(f".{real.name}.ladder-new")
         _write(temporary, (record / f["new"]).read_bytes())
         os.chmod(temporary, f["mode"])
-        if f["uid"] is not None and hasattr(os, "chown"):
-            os.chown(temporary, f["uid"], f["gid"])
+        _keep_owner(temporary, f, folder)
         os.replace(temporary, real)
         _fsync_dir(real.parent)
         _step()
