@@ -18,6 +18,7 @@ import pytest
 
 from ladder.cli import main
 from ladder.demo import write_demo
+from ladder.errors import InputError
 from ladder.folder.book_file import load_book
 from ladder.folder.journal import JournalEntry, append_journal, journal_path, read_journal
 from ladder.folder.lock import book_lock
@@ -189,3 +190,10 @@ def test_a_second_writer_waits_then_is_refused_naming_the_holder(folder, monkeyp
         os.kill(pid, signal.SIGKILL)
         os.waitpid(pid, 0)
     assert _run("roll", str(folder), "--to", ROLL_TO)[0] == 0          # the lock died with its holder
+
+
+@pytest.mark.parametrize("value", ["0", "2.5", '"all"'])
+def test_a_bad_history_setting_is_refused_with_its_line(folder, value):
+    (folder / "book.toml").write_text((folder / "book.toml").read_text() + f"\n[history]\nkeep = {value}\n")
+    with pytest.raises(InputError, match=r"history\.keep: must be a whole number of versions from 1 to 10000"):
+        load_book(folder)
