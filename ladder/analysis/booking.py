@@ -101,6 +101,8 @@ def roll_book(book: Book, to: dt.date, called: tuple[str, ...] = ()) -> Booked:
                                  float((sub.call_price[i] + accrued[i]) * sub.face[i] / 100.0),
                                  float(sub.call_price[i]), "called by the issuer")
                     for i in range(len(sub))]
+    if not entries:                  # nothing matured or was called: the book stays as it is
+        return Booked(book, book.files["holdings"], (), "")
     remaining = h.take(~(matured | is_called))
     done = commit(book, holdings_change(book, remaining), entries, f"roll to {to}")
     return Booked(book.with_holdings(remaining), book.files["holdings"], done.entries, done.version)

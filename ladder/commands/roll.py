@@ -34,7 +34,10 @@ def run(args) -> int:
     con = console()
     for e in booked.entries:
         con.print(f"{e.date}  {e.action:<7} {e.holding:<18} face {fmt(e.face, 0):>14}  cash {fmt(e.amount, 2):>16}")
-    kept = f" (previous kept as version {booked.version})" if booked.version else ""
-    con.print(f"{len(booked.entries)} holding(s) taken off; {booked.path} written{kept} and the journal appended.")
+    if booked.entries:
+        con.print(f"{len(booked.entries)} holding(s) taken off; {booked.path} written (previous kept as version "
+                  f"{booked.version}) and the journal appended.")
+    else:
+        con.print(f"No holding matured or was called by {args.to}; nothing was written.")
     print_caution(con)
     return 0

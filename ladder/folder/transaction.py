@@ -201,31 +201,39 @@ def _check_target(target: Path, real: Path) -> tuple[os.stat_result | None, str]
     return st, ""
 
 
-def _prepare(folder: Path, replacements: dict, entries: tuple, reason: str):
-    """Write the record and commit it (steps 1 and 2); returns the manifest and the recorded entries."""
-    now = dt.datetime.now(dt.timezone.utc)
-    while (folder / VERSIONS / version_name(now)).exists():
-        now += dt.timedelta(microseconds=1)
-    files, refused, data_of = [], [], []
+def _targets(folder: Path, replacements: dict, entries: tuple) -> tuple[list[dict], list[bytes]]:
+    """Each target as the manifest records it (paths relative to the book folder, the real file a
+    link points to, mode and owner to keep) and its new bytes; ``WriteRefused`` names every target
+    (and the journal, when lines are added) that may not be replaced."""
+    files, contents, refused = [], [], []
     names: set[str] = set()
     for i, (target, data) in enumerate(replacements.items()):
         target = Path(target).absolute()
         real = Path(os.path.realpath(target))
         st, problem = _check_target(target, real)
-        if problem:
-            refused.append(problem)
+        refused += [problem] if problem else []
         keep_as = real.name if real.name not in names else f"{i}-{real.name}"
         names.add(keep_as)
         files.append({"target": os.path.relpath(target, folder), "real": os.path.relpath(real, folder),
                       "new": f"new-{i}", "old": f"old-{i}" if st else None, "keep_as": keep_as,
                       "mode": stat.S_IMODE(st.st_mode) if st else _umask_mode(),
                       "uid": st.st_uid if st else None, "gid": st.st_gid if st else None})
-        data_of.append((real, bytes(data)))
-    journal = Path(os.path.realpath(journal_path(folder)))
+        contents.append(bytes(data))
     if entries:
-        refused += [p for p in [_check_target(journal_path(folder), journal)[1]] if p]
+        problem = _check_target(journal_path(folder), Path(os.path.realpath(journal_path(folder))))[1]
+        refused += [problem] if problem else []
     if refused:
         raise WriteRefused("\n".join(refused))
+    return files, contents
+
+
+def _prepare(folder: Path, replacements: dict, entries: tuple, reason: str):
+    """Write the record and commit it (steps 1 and 2); returns the manifest and the recorded entries."""
+    now = dt.datetime.now(dt.timezone.utc)
+    while (folder / VERSIONS / version_name(now)).exists():
+        now += dt.timedelta(microseconds=1)
+    files, contents = _targets(folder, replacements, entries)
+    journal = Path(os.path.realpath(journal_path(folder)))
     recorded, lines = journal_lines(entries)
     length = journal.stat().st_size if journal.exists() else 0
     if lines and length and _last_byte(journal) != b"\n":
@@ -234,10 +242,10 @@ def _prepare(folder: Path, replacements: dict, entries: tuple, reason: str):
     record.mkdir(mode=0o700)     # the files' contents wait here: readable by no one else meanwhile
     _step()
     try:
-        for f, (real, data) in zip(files, data_of):
+        for f, data in zip(files, contents):
             _write(record / f["new"], data)
             if f["old"]:         # the version kept: same mode and owner as the file it was
-                _write(record / f["old"], real.read_bytes())
+                _write(record / f["old"], (folder / f["real"]).read_bytes())
                 os.chmod(record / f["old"], f["mode"])
                 _keep_owner(record / f["old"], f, folder)
         if lines:
