@@ -292,6 +292,7 @@ class LadderApp(App[None]):
         from ladder.analysis.booking import BookChanged, loaded_state, save_edits
         from ladder.errors import InputError
         from ladder.tui.screens import ConfirmScreen
+        from ladder.tui.tasks import describe
 
         try:
             done = save_edits(self.book, self.loaded, self.pending_journal, "holdings" in self.unsaved,
@@ -306,7 +307,8 @@ class LadderApp(App[None]):
                 lambda yes: self.reload() if yes else None)
             return False
         except (OSError, InputError) as error:      # locked by another writer, a read-only file, ...
-            self.notify(str(error), title="Not saved", severity="error")
+            text = describe(error) if isinstance(error, InputError) else str(error)
+            self.notify(text, title="Not saved", severity="error")
             return False
         self.pending.clear()
         self.pending_journal.clear()
