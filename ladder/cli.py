@@ -3,9 +3,9 @@
 Input problems are printed one per line as ``file:row:column: message`` and exit with status 2;
 a book without holdings says there is nothing to value (status 0);
 a file that cannot be read or written (permission, no space, a folder where a file should be, a
-damaged history database) is one line naming it and what to do, exit status 3; ``check`` exits 1
-on a policy breach; 0 otherwise. The workstation is imported only when it opens, so the reporting
-commands never load Textual.
+damaged history database, a book another program is changing) is one line naming it and what to do,
+exit status 3; ``check`` exits 1 on a policy breach; 0 otherwise. The workstation is imported only
+when it opens, so the reporting commands never load Textual.
 """
 
 from __future__ import annotations
@@ -20,7 +20,8 @@ from ladder.neutralize import safe_terminal
 
 # subcommand -> module in ladder/commands
 COMMANDS = {"value": "value", "shock": "shock", "check": "check", "plan": "plan", "build": "build",
-            "report": "report", "import": "custodian", "roll": "roll", "open": "open", "demo": "demo"}
+            "report": "report", "import": "custodian", "roll": "roll", "restore": "restore", "open": "open",
+            "demo": "demo"}
 EXIT_OK, EXIT_BREACH, EXIT_INPUT, EXIT_FILE = 0, 1, 2, 3
 
 

@@ -81,7 +81,7 @@ def describe_os_error(error: OSError, path=None) -> str:
     if where is not None and _TEMPORARY.match(Path(where).name):
         where = f"{Path(where).parent}{os.sep}"
     advice = _ADVICE.get(error.errno, str(error.strerror or error))
-    return f"{where or 'ladder'}: {advice}"
+    return f"{where}: {advice}" if where is not None else advice
 
 
 @contextmanager
@@ -90,7 +90,7 @@ def naming(path):
     try:
         yield
     except OSError as error:
-        if error.filename is None:
+        if error.filename is None and error.errno is not None:   # not our own refusals (their text says it all)
             error.filename = str(path)
         raise
 

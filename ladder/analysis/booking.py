@@ -1,9 +1,11 @@
 """Booking trades into a book: the holdings file and the activity journal change together.
 
-Every change the tool makes to a book goes through here: ``book_trades`` for a builder's accepted
-ladder or a trade ticket, ``roll_book`` for maturities and calls rolled past. Each writes the
-holdings file atomically with a backup and appends one journal line a change (date, face, cash
-amount, price, reason); if the journal cannot be written the previous holdings are put back.
+Every trade-like change goes through here: ``book_trades`` for a builder's accepted ladder or a
+trade ticket, ``roll_book`` for maturities and calls rolled past, ``save_edits`` for the
+workstation's save. Each is one book transaction (``ladder.folder.transaction.commit``): the
+holdings file replaced (its previous version kept) and one journal line a change (date, face, cash
+amount, price, reason) appended, all or nothing. Callers hold the book's lock
+(``ladder.folder.lock.book_lock``) from loading the book to the commit.
 """
 
 from __future__ import annotations
@@ -14,20 +16,26 @@ from pathlib import Path
 
 import numpy as np
 
-
 from ladder.analysis.valuation import value_book
-from ladder.folder.book_file import Book
-from ladder.folder.journal import JournalEntry, save_with_journal
 from ladder.errors import Problems
+from ladder.folder.book_file import Book
+from ladder.folder.journal import JournalEntry, journal_path
+from ladder.folder.lock import book_lock
+from ladder.folder.save import curve_change, holdings_change
+from ladder.folder.transaction import Committed, commit, file_hashes
 from ladder.pricing.cashflows import cash_flows
 from ladder.policy.trades import Trades, apply_trades
 
 
 @dataclass(frozen=True, eq=False)
 class Booked:
+    """The book after the change, the holdings file written, the journal entries as recorded and the
+    version keeping the previous file ("" if none)."""
+
     book: Book
     path: Path
     entries: tuple[JournalEntry, ...]
+    version: str
 
 
 def trade_entries(book: Book, trades: Trades, reason: str, at: dt.date | None = None) -> list[JournalEntry]:
@@ -58,10 +66,8 @@ def book_trades(book: Book, trades: Trades, reason: str, at: dt.date | None = No
     """Apply ``trades`` to the book's holdings file and journal them; returns the new book."""
     entries = trade_entries(book, trades, reason, at)
     holdings = apply_trades(book.holdings, trades)
-    path = save_with_journal(book, holdings, entries)
-    return Booked(book.with_holdings(holdings), path, tuple(entries))
-
-
+    done = commit(book, holdings_change(book, holdings), entries, reason)
+    return Booked(book.with_holdings(holdings), book.files["holdings"], done.entries, done.version)
 
 
 def roll_book(book: Book, to: dt.date, called: tuple[str, ...] = ()) -> Booked:
@@ -95,6 +101,80 @@ def roll_book(book: Book, to: dt.date, called: tuple[str, ...] = ()) -> Booked:
                                  float((sub.call_price[i] + accrued[i]) * sub.face[i] / 100.0),
                                  float(sub.call_price[i]), "called by the issuer")
                     for i in range(len(sub))]
+    if not entries:                  # nothing matured or was called: the book stays as it is
+        return Booked(book, book.files["holdings"], (), "")
     remaining = h.take(~(matured | is_called))
-    path = save_with_journal(book, remaining, entries)
-    return Booked(book.with_holdings(remaining), path, tuple(entries))
+    done = commit(book, holdings_change(book, remaining), entries, f"roll to {to}")
+    return Booked(book.with_holdings(remaining), book.files["holdings"], done.entries, done.version)
+
+
+# ---- the workstation's save ------------------------------------------------------------------------
+@dataclass(frozen=True, eq=False)
+class Pending:
+    """Trades booked in the workstation and not yet saved, with the journal's reason for them."""
+
+    trades: Trades
+    reason: str
+
+
+class BookChanged(OSError):
+    """The book's files changed on disk since the workstation loaded them: nothing was saved."""
+
+    def __init__(self, files: list[str]):
+        super().__init__("changed on disk since the book was loaded: " + ", ".join(files) + "; nothing was saved")
+        self.files = files
+
+
+def watched_files(book: Book) -> list[Path]:
+    """The files a save replaces or appends to: holdings, curve and journal."""
+    return [Path(book.files["holdings"]), Path(book.files["curve"]), journal_path(book)]
+
+
+def loaded_state(book: Book) -> dict[str, str]:
+    """Hashes of the watched files as they are now (take them when the book is loaded)."""
+    return file_hashes(watched_files(book))
+
+
+def save_edits(book: Book, loaded: dict[str, str], entries, holdings: bool, curve: bool) -> Committed:
+    """Save the workstation's edited book: its holdings (with ``entries``, the journal lines of the
+    trades booked) and/or its curve, as one transaction under the lock. Refuses with ``BookChanged``
+    if any watched file differs from ``loaded`` (its hashes when the book was loaded)."""
+    with book_lock(book.folder, "workstation save"):
+        now = loaded_state(book)
+        changed = [Path(p).name for p in now if now[p] != loaded.get(p)]
+        if changed:
+            raise BookChanged(changed)
+        files = {**(holdings_change(book, book.holdings) if holdings else {}),
+                 **(curve_change(book, book.curve) if curve else {})}
+        return commit(book, files, entries if holdings else (), "workstation save")
+
+
+def trade_problems(holdings, trades: Trades) -> list[str]:
+    """Why ``trades`` cannot be applied to ``holdings`` as they are now (a buy's id already held, a
+    sale of a holding no longer held or of more face than is held); empty if they can."""
+    held = dict(zip(holdings.id, holdings.face))
+    problems = []
+    for action, hid, face in zip(trades.action, trades.holdings.id, trades.holdings.face):
+        if action == "buy" and hid in held:
+            problems.append(f"buy {hid}: the book already holds {hid}")
+        elif action == "sell" and hid not in held:
+            problems.append(f"sell {hid}: no longer in the book")
+        elif action == "sell" and face > held[hid] + 1e-6:
+            problems.append(f"sell {hid}: sells {face:,.2f} face but the book now holds {held[hid]:,.2f}")
+    return problems
+
+
+def reapply(book: Book, pending) -> tuple[Book, list[Pending], list[JournalEntry], list[str]]:
+    """``pending`` trades re-checked and re-applied, in order, to a reloaded ``book``: the book after
+    those that still apply, them, their journal lines (priced on the reloaded book) and why the
+    others were dropped."""
+    kept, entries, dropped = [], [], []
+    for p in pending:
+        problems = trade_problems(book.holdings, p.trades)
+        if problems:
+            dropped.append(f"{p.reason}: " + "; ".join(problems))
+            continue
+        entries += trade_entries(book, p.trades, p.reason)
+        book = book.with_holdings(apply_trades(book.holdings, p.trades))
+        kept.append(p)
+    return book, kept, entries, dropped

@@ -12,12 +12,11 @@ from __future__ import annotations
 import datetime as dt
 import time
 from dataclasses import dataclass, replace
-from pathlib import Path
 from typing import Callable
 
 import numpy as np
 
-from ladder.analysis.booking import book_trades
+from ladder.analysis.booking import Booked, book_trades
 from ladder.analysis.check import BookCheck, TradeWhatIf, check_book, check_proposed, coverage_months
 from ladder.analysis.records import clean_number
 from ladder.analysis.valuation import Valuation, settlement_date, value_book
@@ -319,8 +318,8 @@ def apply_build(book: Book, result: BuildResult) -> Book:
     return book.with_holdings(apply_trades(book.holdings, result.trades))
 
 
-def save_build(book: Book, result: BuildResult) -> Path:
-    """Apply the build: write the book's holdings file (atomic, the previous file kept as ``.bak``) and
-    journal every trade; returns the file written."""
+def save_build(book: Book, result: BuildResult) -> Booked:
+    """Apply the build: replace the book's holdings file and journal every trade, one transaction
+    (the previous file kept as a version); returns what was booked."""
     apply_build(book, result)            # refuses what cannot be booked
-    return book_trades(book, result.trades, f"ladder builder: {result.invested:,.2f} invested").path
+    return book_trades(book, result.trades, f"ladder builder: {result.invested:,.2f} invested")

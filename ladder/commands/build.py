@@ -16,7 +16,7 @@ from ladder.folder.book_file import load_book
 from ladder.book.holdings_file import COLUMNS
 from ladder.folder.save import write_atomic
 from ladder.build.program import RUNG_BAND
-from ladder.commands.common import add_book
+from ladder.commands.common import add_book, writing
 from ladder.commands.output import console, fmt, print_caution, term, write_json
 from ladder.errors import Problems, naming
 from ladder.neutralize import safe_cell
@@ -86,13 +86,20 @@ def _refuse_early(args) -> None:
 
 
 def _confirm(result: BuildResult, target) -> bool:
-    answer = input(f"Add {len(result.trades)} trade(s) to {target}? The old file is kept as a backup. [y/N] ")
+    answer = input(f"Add {len(result.trades)} trade(s) to {target}? The old file is kept as a version. [y/N] ")
     return answer.strip().lower() in ("y", "yes")
 
 
 def run(args) -> int:
     _refuse_early(args)
     band = parse_band(args.rung_band)
+    if args.apply:               # one writer at a time, from reading the book to writing it
+        with writing(args.book, f"ladder build --cash {args.cash} --apply"):
+            return _run(args, band)
+    return _run(args, band)
+
+
+def _run(args, band) -> int:
     book = load_book(args.book)
     progress = None
     if args.format == "table" and sys.stderr.isatty():
@@ -117,9 +124,9 @@ def run(args) -> int:
     if args.apply:
         if args.yes or _confirm(result, book.files["holdings"]):
             with naming(book.files["holdings"]):
-                path = save_build(book, result)
-            print(f"Applied {len(result.trades)} trade(s) to {path} (previous file kept as {path.name}.bak).",
-                  file=sys.stderr if args.format == "json" else sys.stdout)
+                booked = save_build(book, result)
+            print(f"Applied {len(result.trades)} trade(s) to {booked.path} (previous file kept as version "
+                  f"{booked.version}).", file=sys.stderr if args.format == "json" else sys.stdout)
         else:
             print("Not applied.", file=sys.stderr)
     return 0

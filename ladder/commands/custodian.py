@@ -10,6 +10,7 @@ from __future__ import annotations
 import sys
 from pathlib import Path
 
+from ladder.commands.common import writing
 from ladder.folder.book_file import load_book
 from ladder.commands.output import console, print_caution, term, write_csv, write_json
 from ladder.errors import InputError, Problem, naming
@@ -70,6 +71,13 @@ def _confirmed(args, why: str, target) -> bool:
 
 
 def run(args) -> int:
+    if args.apply:               # one writer at a time, from reading the book to writing it
+        with writing(args.book, f"ladder import {args.file.name} --apply"):
+            return _run(args)
+    return _run(args)
+
+
+def _run(args) -> int:
     book = load_book(args.book)
     new = read_custodian_file(book, args.file)
     changes = compare_holdings(book.holdings, new)
@@ -91,7 +99,8 @@ def run(args) -> int:
         with naming(book.files["holdings"]):
             path = replace_holdings(book, new, changes, Path(args.file).name, args.reason)
         if args.format == "table":
-            con.print(f"Replaced {path} (previous kept as {path.name}.bak); {len(changes)} journal entries added.")
+            con.print(f"Replaced {path} (previous kept as a version: ladder restore BOOK --list); "
+                      f"{len(changes)} journal entries added.")
     elif args.format == "table":
         con.print("Nothing replaced." if not args.apply else "No differences; nothing replaced.")
     if args.format == "table":

@@ -3,9 +3,8 @@
 from __future__ import annotations
 
 
-from ladder.commands.common import iso_date
+from ladder.commands.common import iso_date, writing
 from ladder.commands.output import console, fmt, print_caution, term, write_json
-from ladder.errors import naming
 
 HELP = "take holdings that matured by a date, and those the issuer called, off the book (journaled)"
 
@@ -25,10 +24,9 @@ def run(args) -> int:
     from ladder.analysis.booking import roll_book
     from ladder.folder.book_file import load_book
 
-    book = load_book(args.book)
     called = tuple(c.strip() for c in args.called.split(",") if c.strip())
-    with naming(book.files["holdings"]):
-        booked = roll_book(book, args.to, called)
+    with writing(args.book, f"ladder roll --to {args.to}"):
+        booked = roll_book(load_book(args.book), args.to, called)
     if args.format == "json":
         write_json({"to": args.to.isoformat(), "file": str(booked.path),
                     "entries": [e.to_json() for e in booked.entries]})
@@ -36,9 +34,10 @@ def run(args) -> int:
     con = console()
     for e in booked.entries:
         con.print(f"{e.date}  {e.action:<7} {term(e.holding):<18} face {fmt(e.face, 0):>14}  cash {fmt(e.amount, 2):>16}")
-    con.print(f"{len(booked.entries)} holding(s) taken off; {booked.path} written (previous kept as .bak) "
-              "and the journal appended.")
+    if booked.entries:
+        con.print(f"{len(booked.entries)} holding(s) taken off; {booked.path} written (previous kept as version "
+                  f"{booked.version}) and the journal appended.")
+    else:
+        con.print(f"No holding matured or was called by {args.to}; nothing was written.")
     print_caution(con)
     return 0
-
-

@@ -18,6 +18,8 @@ from ladder.book.cash_needs import CashNeeds, read_cash_needs
 from ladder.book.holdings import SECTORS, Holdings
 from ladder.book.holdings_file import read_holdings
 from ladder.errors import InputError, Problems
+from ladder.folder.transaction import recover
+from ladder.folder.versions import MAX_KEEP
 from ladder.market.tenors import tenor_months
 from ladder.policy.model import Policy
 from ladder.policy.policy_file import load_policy
@@ -33,7 +35,7 @@ DEFAULT_FILES = {"holdings": "holdings.csv", "curve": "curve.csv", "policy": "po
                  "cash_needs": "cash_needs.csv", "scenarios": "scenarios.csv"}
 OPTIONAL_FILES = ("scenarios",)
 REINVEST_RULES = ("longest_rung", "target_tenor", "fund")
-TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "reinvest", "model")
+TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "reinvest", "model", "history")
 SPREAD_BUCKETS = RATING_BUCKETS + ("default",)
 # Defaults of the callable model (Hull-White): see docs/methods.md for where they come from.
 DEFAULT_MEAN_REVERSION = 0.03
@@ -243,6 +245,9 @@ def _read_settings(path: Path, problems: Problems):
     except ValueError as exc:
         s.error(("reinvest", "target_tenor"), str(exc))
     buffer = s.number(("reinvest", "min_cash_buffer"), r.get("min_cash_buffer"), 0.0, 0.0, 1e15)
+    keep = s.table(data, "history", ("keep",)).get("keep")
+    if keep is not None and (isinstance(keep, bool) or not isinstance(keep, int) or not 1 <= keep <= MAX_KEEP):
+        s.error(("history", "keep"), f"must be a whole number of versions from 1 to {MAX_KEEP}, not {keep!r}")
     m = s.table(data, "model", ("mean_reversion", "volatility"))
     model = ModelSettings(
         s.number(("model", "mean_reversion"), m.get("mean_reversion"), DEFAULT_MEAN_REVERSION, 1e-6, 5.0),
@@ -272,15 +277,18 @@ def _holdings_source(label: str, path: Path, named: bool, problems: Problems) ->
 
 
 def load_book(folder) -> Book:
-    """The book in ``folder`` (or a path to its book.toml); raises ``InputError`` with every problem."""
+    """The book in ``folder`` (or a path to its book.toml); raises ``InputError`` with every problem.
+    An interrupted change is first finished or undone (``ladder.folder.transaction.recover``)."""
     folder = Path(folder)
     if folder.is_file():
         folder = folder.parent
+    recover(folder)
     problems = Problems()
     settings = _read_settings(folder / BOOK_FILE, problems)
     if settings is None:
         problems.raise_if_any()
     name, currency, valuation, files, source, (spreads, fit), reinvest, model = settings
+    files["holdings"] = source      # the file read is the file written
     holdings = None
     if valuation is not None:
         holdings, _ = read_holdings(source, valuation, problems)

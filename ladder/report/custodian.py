@@ -2,9 +2,9 @@
 replacement of the book's holdings with it (journaled), only when asked.
 
 Holdings are matched by id. A change is any difference in face, price (the quote and its kind) or
-book price, or in any other term (listed by field). Replacing writes the holdings atomically
-(``ladder.folder.save.save_holdings``, previous file kept as ``.bak``) and then appends one journal
-entry per difference; if the journal cannot be written the previous holdings file is put back.
+book price, or in any other term (listed by field). Replacing is one book transaction
+(``ladder.folder.transaction.commit``): the holdings file replaced in its own format (the previous
+file kept as a version) and one journal entry per difference appended, all or nothing.
 """
 
 from __future__ import annotations
@@ -20,7 +20,9 @@ from ladder.folder.book_file import Book
 from ladder.book.holdings import Holdings
 from ladder.book.holdings_file import read_holdings
 from ladder.errors import Problems
-from ladder.folder.journal import JournalEntry, save_with_journal
+from ladder.folder.journal import JournalEntry
+from ladder.folder.save import holdings_change
+from ladder.folder.transaction import commit
 
 COMPARED = ("face", "quote_type", "quote", "book_price")
 IGNORED = ("row",)
@@ -124,6 +126,7 @@ def _entry(change: Change, date: dt.date, reason: str, source: str) -> JournalEn
 def replace_holdings(book: Book, new: Holdings, changes: tuple[Change, ...], source: str, reason: str = "",
                      date: dt.date | None = None) -> Path:
     """Write ``new`` as the book's holdings and journal every change (dated ``date``, default the
-    book's valuation date). If the journal cannot be written, the previous holdings are restored."""
+    book's valuation date), one transaction; returns the holdings file."""
     date = date or book.valuation_date
-    return save_with_journal(book, new, [_entry(c, date, reason, source) for c in changes])
+    commit(book, holdings_change(book, new), [_entry(c, date, reason, source) for c in changes], f"import {source}")
+    return book.files["holdings"]

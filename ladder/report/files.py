@@ -45,7 +45,7 @@ def _put(path: Path, data: str | bytes) -> None:
     """One report file, atomically; an error of the operating system names ``path``."""
     with naming(path):
         if isinstance(data, str):
-            write_atomic(path, data, backup=False)
+            write_atomic(path, data)
         else:
             write_bytes_atomic(path, data)
 

@@ -54,7 +54,7 @@ def test_apply_adds_the_trades_with_a_backup_and_the_book_checks(book):
     run = ladder("build", book, "--cash", "25000000", "--apply", "--yes")
     assert run.returncode == 0, run.stderr
     assert "Proposed trades" in run.stdout and "Applied" in run.stdout
-    assert (book / "holdings.csv.bak").read_text() == original
+    assert [p.read_text() for p in (book / "versions").glob("*/holdings.csv")] == [original]
     rows = (book / "holdings.csv").read_text().splitlines()
     assert len(rows) > len(original.splitlines())
     assert any(r.startswith("GENERIC-") for r in rows)
@@ -66,7 +66,7 @@ def test_apply_asks_for_confirmation(book):
     original = (book / "holdings.csv").read_text()
     refused = ladder("build", book, "--cash", "25000000", "--apply")          # stdin is not a terminal
     assert refused.returncode == 2 and "add --yes" in refused.stderr
-    assert (book / "holdings.csv").read_text() == original and not (book / "holdings.csv.bak").exists()
+    assert (book / "holdings.csv").read_text() == original and not (book / "versions").exists()
 
 
 @pytest.mark.parametrize("args, words", [

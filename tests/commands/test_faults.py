@@ -15,6 +15,7 @@ import pytest
 from cli_books import digest, run
 
 from ladder.demo import write_demo
+from ladder.folder.lock import LOCK_FILE
 from ladder.report.history import HISTORY_FILE, SCHEMA
 
 CASH = "25000000"
@@ -149,10 +150,16 @@ def test_a_spoiled_input_is_one_message_and_nothing_changes(book, tmp_path, caps
     assert digest(book) == before
 
 
-def _denied(*args, dir=None, prefix="", suffix="", **kwargs):
-    """``tempfile.mkstemp`` in a folder the user may not write in (we may run as root, so chmod
-    would not stop us): the error the operating system gives, with the temporary file's name."""
-    raise PermissionError(errno.EACCES, "Permission denied", os.path.join(dir or ".", f"{prefix}x1y2{suffix}"))
+_OPEN = os.open
+
+
+def _denied(path, flags, *args, **kwargs):
+    """``os.open`` in a folder the user may not write in (we may run as root, so chmod would not stop
+    us): creating a file fails as the operating system says, naming it; the writers' lock file
+    (already there in a folder a writer used before) and reading are allowed."""
+    if flags & os.O_CREAT and os.path.basename(path) != LOCK_FILE:
+        raise PermissionError(errno.EACCES, "Permission denied", os.fspath(path))
+    return _OPEN(path, flags, *args, **kwargs)
 
 
 def _full_disk(fd):
@@ -168,7 +175,7 @@ WRITERS = [
 ]
 
 
-@pytest.mark.parametrize("fault, patch", [("read-only folder", ("tempfile.mkstemp", _denied)),
+@pytest.mark.parametrize("fault, patch", [("read-only folder", ("os.open", _denied)),
                                           ("full disk", ("os.fsync", _full_disk))], ids=["read-only", "full-disk"])
 @pytest.mark.parametrize("name, argv", WRITERS, ids=[w[0] for w in WRITERS])
 def test_a_write_that_fails_is_one_message_exit_3_and_nothing_changes(book, tmp_path, capsys, monkeypatch, fault,

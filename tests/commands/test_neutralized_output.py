@@ -15,7 +15,7 @@ from ladder.cli import main
 from ladder.commands.build import trades_csv
 from ladder.demo import write_demo
 from ladder.errors import Problems
-from ladder.folder.save import holdings_csv
+from ladder.folder.save import holdings_change
 from ladder.policy.trades import Trades
 from ladder.report.html import report_html
 from ladder.report.markdown import report_md
@@ -43,9 +43,10 @@ def test_report_markdown_and_html_escape_input_text():
 
 
 def test_saved_holdings_quote_formula_text_and_read_back_as_they_were(tmp_path):
-    text = holdings_csv(_holdings())
-    assert "'@SUM(A1)" in text and "'=HYPERLINK" in text
     path = tmp_path / "holdings.csv"
+    (_, data), = holdings_change(SimpleNamespace(files={"holdings": path}), _holdings()).items()
+    text = data.decode("utf-8")
+    assert "'@SUM(A1)" in text and "'=HYPERLINK" in text
     path.write_text(text, encoding="utf-8")
     problems = Problems()
     back, _ = read_holdings(path, dt.date(2026, 11, 30), problems)

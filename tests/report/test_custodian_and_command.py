@@ -61,7 +61,7 @@ def test_custodian_differences_then_apply(demo_copy, tmp_path):
     after = load_book(demo_copy)
     assert compare_holdings(after.holdings, read_custodian_file(book, path)) == ()      # the file is the book now
     assert len(after.holdings) == len(book.holdings)
-    assert (demo_copy / "holdings.csv.bak").read_bytes() == original
+    assert [p.read_bytes() for p in (demo_copy / "versions").glob("*/holdings.csv")] == [original]
     journal = read_journal(demo_copy)
     assert sorted((e.action, e.holding) for e in journal) == sorted(
         [("change", "DEMO-TSY-0101"), ("change", "DEMO-TSY-0202"), ("add", "=DEMO-NEW-1"), ("remove", removed)])

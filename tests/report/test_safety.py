@@ -7,8 +7,7 @@ import sqlite3
 
 import pytest
 
-import ladder.folder.save as save
-import ladder.folder.journal as journal
+import ladder.folder.transaction as transaction
 import ladder.report.custodian as custodian
 from ladder.folder.book_file import load_book
 from ladder.errors import InputError
@@ -56,32 +55,23 @@ def test_history_keeps_input_bytes_and_replaces_a_month(demo_copy):
     assert history.previous_snapshot(demo_copy, dt.date(2026, 12, 31)).as_of == dt.date(2026, 11, 30)
 
 
-def test_holdings_save_failing_midway_keeps_the_old_file(demo_copy, monkeypatch):
-    book = load_book(demo_copy)
-    original = (demo_copy / "holdings.csv").read_bytes()
-
-    def fail(*args):
-        raise OSError("disk full (simulated)")
-    monkeypatch.setattr(save.os, "replace", fail)
-    with pytest.raises(OSError):
-        save.save_holdings(book, book.holdings.take(slice(0, 3)))
-    assert (demo_copy / "holdings.csv").read_bytes() == original
-    assert not list(demo_copy.glob(".holdings.csv.*.tmp"))
-
-
-def test_import_whose_journal_fails_puts_the_holdings_back(demo_copy, monkeypatch):
+def test_import_failing_before_its_commit_point_keeps_holdings_and_journal(demo_copy, monkeypatch):
     book = load_book(demo_copy)
     original = (demo_copy / "holdings.csv").read_bytes()
     new = book.holdings.take(slice(1, None))
     changes = custodian.compare_holdings(book.holdings, new)
+    real_write = transaction._write
 
-    def fail(*args):
-        raise OSError("journal not writable (simulated)")
-    monkeypatch.setattr(journal, "append_journal", fail)
+    def fail(path, data, mode=0o666):
+        if path.name.startswith(transaction.MANIFEST):
+            raise OSError("disk full (simulated)")
+        real_write(path, data, mode)
+    monkeypatch.setattr(transaction, "_write", fail)
     with pytest.raises(OSError):
         custodian.replace_holdings(book, new, changes, "custodian.csv")
     assert (demo_copy / "holdings.csv").read_bytes() == original
     assert not journal_path(demo_copy).exists()
+    assert not (demo_copy / transaction.RECORD).exists() and not (demo_copy / "versions").exists()
 
 
 def test_journal_is_append_only(demo_copy):

@@ -289,7 +289,9 @@ def test_builder_accept_adds_the_proposed_holdings_and_save_writes_them(book_cop
     assert seen["unsaved"] == {}
     reread = load_book(book_copy.folder)
     assert list(reread.holdings.id) == seen["after"]
-    assert (book_copy.folder / "holdings.csv.bak").exists()
+    from ladder.demo import demo_source
+    kept = list((book_copy.folder / "versions").glob("*/holdings.csv"))      # the previous file, kept
+    assert [k.read_bytes() for k in kept] == [(demo_source() / "holdings.csv").read_bytes()]
     # issue 9: every change made through the tool is journaled with the save
     from ladder.folder.journal import read_journal
     journal = read_journal(book_copy.folder)
