@@ -1,7 +1,7 @@
 """The activity journal of a book: every change made through the tool, appended, never edited.
 
 ``journal.jsonl`` in the book folder holds one JSON object a line (date, action, holding id, face,
-amount, price, reason, recorded). Lines are only ever added, by a book transaction
+amount, price, reason, recorded, book value). Lines are only ever added, by a book transaction
 (``ladder.folder.transaction.commit``) together with the files they explain: the new lines are
 appended after the previous bytes, never rewriting them. Money in currency units, prices clean per
 100 face.
@@ -18,14 +18,18 @@ from pathlib import Path
 from ladder.errors import Problems
 
 JOURNAL_FILE = "journal.jsonl"
-ACTIONS = ("buy", "sell", "mature", "call", "add", "remove", "change", "note", "restore")
+ACTIONS = ("buy", "sell", "mature", "call", "coupon", "dividend", "deposit", "withdraw", "add", "remove", "change",
+           "note", "restore")
 
 
 @dataclass(frozen=True)
 class JournalEntry:
-    """One change: ``date`` it took effect, ``action`` (one of ACTIONS), the holding it touched,
-    ``face`` (currency units, NaN if none), ``amount`` (cash in (+) or out (-), currency units, NaN if
-    none), ``price`` (clean per 100, NaN if none), ``reason`` in words and when it was ``recorded``."""
+    """One change: ``date`` it took effect (settlement), ``action`` (one of ACTIONS), the holding it
+    touched, ``face`` (currency units, NaN if none), ``amount`` (cash into (+) or out of (-) the book's
+    cash account, currency units, NaN if none), ``price`` (clean per 100, NaN if none), ``reason`` in words,
+    when it was ``recorded``, and ``book_value`` (amortized cost of what left or arrived on ``date``,
+    currency units: for a sale, maturity or call the realized gain is ``amount`` less accrued less
+    ``book_value``; NaN if none)."""
 
     date: dt.date
     action: str
@@ -35,11 +39,12 @@ class JournalEntry:
     price: float = math.nan
     reason: str = ""
     recorded: str = ""
+    book_value: float = math.nan
 
     def to_json(self) -> dict:
         out = asdict(self)
         out["date"] = self.date.isoformat()
-        for key in ("face", "amount", "price"):
+        for key in ("face", "amount", "price", "book_value"):
             out[key] = None if not math.isfinite(out[key]) else out[key]
         return out
 
@@ -67,7 +72,8 @@ def read_journal(book_or_folder) -> tuple[JournalEntry, ...]:
             entries.append(JournalEntry(dt.date.fromisoformat(data["date"]), str(data["action"]),
                                         str(data.get("holding", "")), _number(data.get("face")),
                                         _number(data.get("amount")), _number(data.get("price")),
-                                        str(data.get("reason", "")), str(data.get("recorded", ""))))
+                                        str(data.get("reason", "")), str(data.get("recorded", "")),
+                                        _number(data.get("book_value"))))
         except (ValueError, KeyError, TypeError) as error:
             problems.add(str(path), line_no, 1, f"not a journal entry: {error}")
     problems.raise_if_any()
