@@ -30,8 +30,10 @@ FRACTION_LOOKING_COUPON_PCT = 0.1
 
 
 def read_holdings(path: Path, valuation_date: dt.date, problems: Problems, label: str | None = None,
-                  extra_columns: tuple[str, ...] = ()) -> tuple[Holdings | None, dict[str, list[str]]]:
-    """Holdings in ``path`` (CSV or .xlsx), checked against ``valuation_date``.
+                  extra_columns: tuple[str, ...] = (), cash_account: str = "",
+                  ) -> tuple[Holdings | None, dict[str, list[str]]]:
+    """Holdings in ``path`` (CSV or .xlsx), checked against ``valuation_date``. The ``cash_account``
+    holding (a fund whose face is the book's cash balance) may hold 0 or be overdrawn (negative face).
 
     Returns (holdings, extras), extras holding the raw text of ``extra_columns`` by row; holdings is
     None if the file has any problem (all of them are in ``problems``).
@@ -43,14 +45,14 @@ def read_holdings(path: Path, valuation_date: dt.date, problems: Problems, label
     check_columns(table, COLUMNS + extra_columns, REQUIRED, problems)
     if len(problems.items) > before:
         return None, {}
-    columns = _parse_rows(table, valuation_date, problems)
+    columns = _parse_rows(table, valuation_date, problems, cash_account)
     extras = {name: [table.cell(i, name) for i in range(len(table.rows))] for name in extra_columns}
     if len(problems.items) > before:
         return None, extras
     return make_holdings(**columns), extras
 
 
-def _parse_rows(table: Table, valuation: dt.date, problems: Problems) -> dict[str, list]:
+def _parse_rows(table: Table, valuation: dt.date, problems: Problems, cash_account: str = "") -> dict[str, list]:
     cells = CellReader(table.path, problems)
     col = table.column
     out: dict[str, list] = {name: [] for name in (
@@ -62,7 +64,7 @@ def _parse_rows(table: Table, valuation: dt.date, problems: Problems) -> dict[st
         row = index + 2
         text = {name: table.cell(index, name) for name in COLUMNS}
         at = {name: col.get(name, 0) for name in COLUMNS}
-        record = _parse_row(cells, text, at, row, valuation)
+        record = _parse_row(cells, text, at, row, valuation, bool(cash_account) and text["id"] == cash_account)
         hid = text["id"]
         if not hid:
             cells.error(row, at["id"], "id is empty; every holding needs a unique id")
@@ -75,7 +77,7 @@ def _parse_rows(table: Table, valuation: dt.date, problems: Problems) -> dict[st
     return out
 
 
-def _parse_row(cells: CellReader, text: dict, at: dict, row: int, valuation: dt.date) -> dict:
+def _parse_row(cells: CellReader, text: dict, at: dict, row: int, valuation: dt.date, balance: bool = False) -> dict:
     sector = cells.choice(text["sector"], row, at["sector"], "sector", SECTORS)
     if not text["sector"]:
         cells.error(row, at["sector"], f"sector is empty; one of {', '.join(SECTORS)}")
@@ -83,11 +85,11 @@ def _parse_row(cells: CellReader, text: dict, at: dict, row: int, valuation: dt.
         SECTOR_DEFAULTS[sector][0] if sector else "fixed")
     if not text["issuer"]:
         cells.error(row, at["issuer"], "issuer is empty; issuer limits need the issuer's name")
-    face = cells.number(text["face"], row, at["face"], "face", low=0.0, high=MAX_FACE,
+    face = cells.number(text["face"], row, at["face"], "face", low=-MAX_FACE if balance else 0.0, high=MAX_FACE,
                         what=f"the par amount must be positive and at most {MAX_FACE:,.0f}")
     if not text["face"]:
         cells.error(row, at["face"], "face is empty; give the par amount held")
-    elif face == 0:
+    elif face == 0 and not balance:
         cells.error(row, at["face"], "face is 0; the par amount must be positive")
     maturity = cells.date(text["maturity_date"], row, at["maturity_date"], "maturity_date")
     if not text["maturity_date"]:
@@ -124,7 +126,7 @@ def _parse_row(cells: CellReader, text: dict, at: dict, row: int, valuation: dt.
         cells.error(row, at["purchase_date"] or at["book_price"], "book_price needs a purchase_date")
     first_call, call_frequency, call_price = _call(cells, text, at, row, kind, maturity)
     return dict(
-        id=text["id"], sector=sector or "", issuer=text["issuer"], kind=kind, face=face if face else np.nan,
+        id=text["id"], sector=sector or "", issuer=text["issuer"], kind=kind, face=face if face or (balance and face is not None) else np.nan,
         maturity=maturity, coupon=coupon, frequency=frequency, day_count=day_count or default_dc,
         issue_date=issue, first_coupon=first, quote_type=quote_type, quote=quote,
         book_price=np.nan if book_price is None else book_price, purchase_date=purchase,

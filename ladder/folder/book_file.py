@@ -35,7 +35,7 @@ DEFAULT_FILES = {"holdings": "holdings.csv", "curve": "curve.csv", "policy": "po
                  "cash_needs": "cash_needs.csv", "scenarios": "scenarios.csv"}
 OPTIONAL_FILES = ("scenarios",)
 REINVEST_RULES = ("longest_rung", "target_tenor", "fund")
-TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "reinvest", "model", "history")
+TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "reinvest", "model", "history", "cash")
 SPREAD_BUCKETS = RATING_BUCKETS + ("default",)
 # Defaults of the callable model (Hull-White): see docs/methods.md for where they come from.
 DEFAULT_MEAN_REVERSION = 0.03
@@ -108,6 +108,7 @@ class Book:
     spreads: SpreadTable = field(default_factory=dict)   # sector -> bucket -> SpreadCurve (bp by tenor)
     reinvest: ReinvestSettings = ReinvestSettings()
     model: ModelSettings = ModelSettings()
+    cash_account: str = ""    # id of the fund holding that settles every trade, maturity and transfer
 
     def with_holdings(self, holdings: Holdings) -> "Book":
         """The same book with other holdings (a what-if or an applied trade)."""
@@ -252,7 +253,12 @@ def _read_settings(path: Path, problems: Problems):
     model = ModelSettings(
         s.number(("model", "mean_reversion"), m.get("mean_reversion"), DEFAULT_MEAN_REVERSION, 1e-6, 5.0),
         s.number(("model", "volatility"), m.get("volatility"), DEFAULT_VOLATILITY, 0.0, 0.2))
-    return name, currency, valuation, files, source, (spreads, fit), ReinvestSettings(rule, tenor, buffer), model
+    account = s.table(data, "cash", ("account",)).get("account", "")
+    if not isinstance(account, str):
+        s.error(("cash", "account"), "must be a holding id in quotes, e.g. \"MMF-01\"")
+        account = ""
+    return (name, currency, valuation, files, source, (spreads, fit), ReinvestSettings(rule, tenor, buffer), model,
+            (account, s.lines.find(("cash", "account"))))
 
 
 def _collect(problems: Problems, read, *args):
@@ -287,11 +293,19 @@ def load_book(folder) -> Book:
     settings = _read_settings(folder / BOOK_FILE, problems)
     if settings is None:
         problems.raise_if_any()
-    name, currency, valuation, files, source, (spreads, fit), reinvest, model = settings
+    name, currency, valuation, files, source, (spreads, fit), reinvest, model, (account, at) = settings
     files["holdings"] = source      # the file read is the file written
     holdings = None
     if valuation is not None:
-        holdings, _ = read_holdings(source, valuation, problems)
+        holdings, _ = read_holdings(source, valuation, problems, cash_account=account)
+    if account and holdings is not None:
+        where = np.flatnonzero(holdings.id == account)
+        if not len(where):
+            problems.add(str(folder / BOOK_FILE), at[0], at[1], f"cash.account: {account!r} is not a holding of "
+                         f"the book ({source.name}); name the sweep or money-market fund that settles trades")
+        elif holdings.kind[where[0]] != "fund":
+            problems.add(str(folder / BOOK_FILE), at[0], at[1], f"cash.account: {account!r} is a "
+                         f"{holdings.kind[where[0]]} holding; the cash account must be a fund (kind fund)")
     for key in ("curve", "policy", "cash_needs"):
         if not files[key].exists():
             problems.add(str(files[key]), 0, 0, f"file not found; a book needs its {key} file (see docs/formats.md)")
@@ -301,11 +315,6 @@ def load_book(folder) -> Book:
     scenarios: tuple[Scenario, ...] = ()
     if curve is not None and files["scenarios"].exists():
         scenarios = _collect(problems, read_scenarios, files["scenarios"], curve) or ()
-    if needs is not None and valuation is not None:
-        for row, date in zip(needs.row, needs.date):
-            if date < valuation:
-                problems.add(str(files["cash_needs"]), int(row), 1,
-                             f"cash need dated {date} is before the valuation date {valuation}")
     problems.raise_if_any()
     if fit:
         z_bp = quoted_z_spreads_bp(holdings, bootstrap(curve, np.datetime64(valuation)), valuation)
