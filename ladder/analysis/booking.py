@@ -11,12 +11,11 @@ amount, price, reason) appended, all or nothing. Callers hold the book's lock
 from __future__ import annotations
 
 import datetime as dt
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from pathlib import Path
 
 import numpy as np
 
-from ladder.analysis.valuation import value_book
 from ladder.errors import Problems
 from ladder.folder.book_file import Book
 from ladder.folder.journal import JournalEntry, journal_path
@@ -24,7 +23,8 @@ from ladder.folder.lock import book_lock
 from ladder.folder.save import curve_change, holdings_change
 from ladder.folder.transaction import Committed, commit, file_hashes
 from ladder.pricing.cashflows import cash_flows
-from ladder.policy.trades import Trades, apply_trades
+from ladder.analysis.settlement import Settlement, settle_trades
+from ladder.policy.trades import Trades
 
 
 @dataclass(frozen=True, eq=False)
@@ -39,35 +39,29 @@ class Booked:
 
 
 def trade_entries(book: Book, trades: Trades, reason: str, at: dt.date | None = None) -> list[JournalEntry]:
-    """One journal entry a trade, priced at the trade's own valuation (clean price per 100; cash amount
-    paid (-) for a buy or received (+) for a sale, dirty)."""
-    date = at or book.valuation_date
-    buys = trades.action == "buy"
-    values = value_book(book.with_holdings(trades.holdings.take(buys)), date) if buys.any() else None
-    # A sale is priced as the book's own holding is valued today.
-    sold = np.isin(book.holdings.id, trades.holdings.id[~buys])
-    held = value_book(book.with_holdings(book.holdings.take(sold)), date) if sold.any() else None
-    index = {hid: i for i, hid in enumerate(held.holdings.id)} if held else {}
-    bought = np.cumsum(buys) - 1
-    entries = []
-    for i, hid in enumerate(trades.holdings.id):
-        face = float(trades.holdings.face[i])
-        if buys[i]:
-            clean, dirty, sign = values.clean[bought[i]], values.dirty[bought[i]], -1.0
-        else:
-            j = index[hid]
-            clean, dirty, sign = held.clean[j], held.dirty[j], 1.0
-        entries.append(JournalEntry(date, str(trades.action[i]), str(hid), face,
-                                    float(sign * dirty * face / 100.0), float(clean), reason))
-    return entries
+    """The journal lines of ``trades`` settled through the book's cash account
+    (``ladder.analysis.settlement``); ``at`` is the settlement date of trades that give none."""
+    return list(settle_trades(_dated(book, trades, at), trades, reason).entries)
 
 
-def book_trades(book: Book, trades: Trades, reason: str, at: dt.date | None = None) -> Booked:
-    """Apply ``trades`` to the book's holdings file and journal them; returns the new book."""
-    entries = trade_entries(book, trades, reason, at)
-    holdings = apply_trades(book.holdings, trades)
-    done = commit(book, holdings_change(book, holdings), entries, reason)
-    return Booked(book.with_holdings(holdings), book.files["holdings"], done.entries, done.version)
+def _dated(book: Book, trades: Trades, at: dt.date | None) -> Book:
+    return book if at is None or at == book.valuation_date else replace(book, valuation_date=at)
+
+
+def settled_holdings(book: Book, trades: Trades, reason: str = "", where: str = "") -> Settlement:
+    """``trades`` settled on ``book``; raises InputError (naming ``where``, default the trades file) when
+    the account cannot pay a buy."""
+    settled = settle_trades(book, trades, reason)
+    settled.refuse_shortfalls(where or trades.file)
+    return settled
+
+
+def book_trades(book: Book, trades: Trades, reason: str, at: dt.date | None = None, where: str = "") -> Booked:
+    """Settle ``trades`` through the cash account, write the holdings file and journal them; returns the
+    new book. Refused (InputError, nothing written) when the account cannot pay a buy."""
+    settled = settled_holdings(_dated(book, trades, at), trades, reason, where)
+    done = commit(book, holdings_change(book, settled.holdings), settled.entries, reason)
+    return Booked(book.with_holdings(settled.holdings), book.files["holdings"], done.entries, done.version)
 
 
 def roll_book(book: Book, to: dt.date, called: tuple[str, ...] = ()) -> Booked:
@@ -174,7 +168,11 @@ def reapply(book: Book, pending) -> tuple[Book, list[Pending], list[JournalEntry
         if problems:
             dropped.append(f"{p.reason}: " + "; ".join(problems))
             continue
-        entries += trade_entries(book, p.trades, p.reason)
-        book = book.with_holdings(apply_trades(book.holdings, p.trades))
+        settled = settle_trades(book, p.trades, p.reason)
+        if settled.shortfalls:
+            dropped.append(f"{p.reason}: the cash account cannot pay it")
+            continue
+        entries += settled.entries
+        book = book.with_holdings(settled.holdings)
         kept.append(p)
     return book, kept, entries, dropped

@@ -16,7 +16,7 @@ from typing import Callable
 
 import numpy as np
 
-from ladder.analysis.booking import Booked, book_trades
+from ladder.analysis.booking import Booked, book_trades, settled_holdings
 from ladder.analysis.check import BookCheck, TradeWhatIf, check_book, check_proposed, coverage_months
 from ladder.analysis.records import clean_number
 from ladder.analysis.valuation import Valuation, settlement_date, value_book
@@ -32,7 +32,7 @@ from ladder.build.rungs import Rungs, make_rungs
 from ladder.build.solve import Binding, Conflict, Relaxation, Solution, binding, diagnose, relaxation, solve
 from ladder.errors import Problems
 from ladder.policy.measures import cash_by_month
-from ladder.policy.trades import Trades, apply_trades
+from ladder.policy.trades import NEW_MONEY, Trades
 
 VALUATION_FACE = 1_000_000.0   # face the candidates are valued at (results are per unit face)
 Progress = Callable[[float, str], None]
@@ -132,10 +132,12 @@ class BuildResult:
 
 
 def trade_records(trades: Trades | None) -> list[dict]:
-    """The trades as rows of the trades file: the holdings columns plus ``action``."""
+    """The trades as rows of the trades file: the holdings columns plus ``action`` and ``funded_from``."""
     if trades is None:
         return []
-    return [{**row, "action": a} for row, a in zip(holdings_rows(trades.holdings), trades.action)]
+    funded = trades.funded_from if trades.funded_from is not None else [""] * len(trades)
+    return [{**row, "action": a, "funded_from": f} for row, a, f in zip(holdings_rows(trades.holdings), trades.action,
+                                                                         funded)]
 
 
 def parse_cash(text) -> float:
@@ -196,7 +198,9 @@ def _trades(p: Program, x: np.ndarray, at: dt.date) -> Trades:
                 book_price=np.where(buy & (h.kind != "fund"), np.round(clean, 6), np.where(buy, np.nan, clean)),
                 purchase_date=np.where(buy & (h.kind != "fund"), np.datetime64(at, "D"), h.purchase_date),
                 rating_at_purchase=np.where(buy, rating_now, h.rating_at_purchase))
-    return Trades(h, np.where(buy, "buy", "sell").astype(object), "build")
+    # The builder invests the new cash it was given (--cash): buys are new money, sales credit the cash account.
+    return Trades(h, np.where(buy, "buy", "sell").astype(object), "build",
+                  funded_from=np.where(buy, NEW_MONEY, "").astype(object))
 
 
 def _summary(holdings: Holdings, v: Valuation, pos: Positions, faces: np.ndarray, rungs: Rungs) -> LadderSummary:
@@ -315,11 +319,11 @@ def apply_build(book: Book, result: BuildResult) -> Book:
         problems.add("--at", 0, 0, f"the build settles {result.as_of}, after the book's valuation date "
                                    f"{book.valuation_date}; its purchases cannot be booked yet")
     problems.raise_if_any()
-    return book.with_holdings(apply_trades(book.holdings, result.trades))
+    return book.with_holdings(settled_holdings(book, result.trades, where="--apply").holdings)
 
 
 def save_build(book: Book, result: BuildResult) -> Booked:
     """Apply the build: replace the book's holdings file and journal every trade, one transaction
     (the previous file kept as a version); returns what was booked."""
     apply_build(book, result)            # refuses what cannot be booked
-    return book_trades(book, result.trades, f"ladder builder: {result.invested:,.2f} invested")
+    return book_trades(book, result.trades, f"ladder builder: {result.invested:,.2f} invested", where="--apply")

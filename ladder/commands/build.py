@@ -50,7 +50,7 @@ def add_parser(subparsers) -> None:
 
 def trades_csv(result: BuildResult) -> str:
     buffer = io.StringIO()
-    writer = csv.DictWriter(buffer, fieldnames=list(COLUMNS) + ["action"], lineterminator="\n")
+    writer = csv.DictWriter(buffer, fieldnames=list(COLUMNS) + ["action", "funded_from"], lineterminator="\n")
     writer.writeheader()
     writer.writerows({k: safe_cell(v) for k, v in row.items()} for row in trade_records(result.trades))
     return buffer.getvalue()

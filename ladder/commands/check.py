@@ -36,9 +36,9 @@ def run(args) -> int:
     book = load_book(args.book)
     if args.trade:
         what_if = check_trade_file(book, args.trade, args.at)
-        status = what_if.check.status
+        status = what_if.status
         if args.format == "json":
-            write_json(what_if.check.to_json())
+            write_json(what_if.to_json())
         else:
             _trade_table(book, what_if)
     else:
@@ -80,6 +80,7 @@ def _trade_table(book, what_if) -> None:
 
     con = console()
     tc = what_if.check
+    _economics_table(con, what_if.settlement)
     table = Table(title=f"What-if for {len(what_if.trades)} proposed trade(s): {term(tc.after.policy_title)}",
                   header_style="bold")
     for title in ("Rule", "Before", "Status before", "After", "Status after", "Caused by"):
@@ -91,5 +92,28 @@ def _trade_table(book, what_if) -> None:
     con.print(table)
     con.print(_risk_line("Before", what_if.before.totals))
     con.print(_risk_line("After ", what_if.after.totals))
-    con.print(f"Overall after the trades: {_status(tc.status)} (before: {tc.before.status}).")
+    for t in what_if.settlement.shortfalls:
+        con.print(f"Rule cash_account: {_status('breach')} {term(t.action)} {term(t.id)} costs {fmt(-t.amount, 2)} but "
+                  f"{term(t.account)} holds {fmt(t.cash_before, 2)}: short by {fmt(t.shortfall, 2)}.")
+    con.print(f"Overall after the trades: {_status(what_if.status)} (before: {tc.before.status}).")
     print_caution(con)
+
+
+def _money(value, digits: int = 2) -> str:
+    return "—" if value != value else fmt(value, digits)      # NaN: not applicable
+
+
+def _economics_table(con, settlement) -> None:
+    """Each trade as it settles: price, yield, accrued, cost or proceeds, realized gain, cash."""
+    from rich.table import Table
+
+    table = Table(title="Trades as they settle (cash account " + term(settlement.account or "none: new money") + ")",
+                  header_style="bold")
+    for title in ("Trade", "Settles", "Face", "Price", "Yield %", "Accrued", "Cost (-) / proceeds (+)",
+                  "Realized gain", "Paid from / to", "Cash before", "Cash after"):
+        table.add_column(title, justify="left" if title in ("Trade", "Settles", "Paid from / to") else "right")
+    for t in settlement.trades:
+        table.add_row(term(f"{t.action} {t.id}"), str(t.settle_date), fmt(t.face, 0), fmt(t.price, 4),
+                      fmt(100 * t.ytm, 3), fmt(t.accrued, 2), fmt(t.amount, 2), _money(t.realized_gain),
+                      term(t.account), _money(t.cash_before), _money(t.cash_after))
+    con.print(table)

@@ -320,4 +320,4 @@ def load_book(folder) -> Book:
         z_bp = quoted_z_spreads_bp(holdings, bootstrap(curve, np.datetime64(valuation)), valuation)
         spreads, _ = fit_levels(spreads, holdings, valuation, z_bp, fit)
     return Book(folder, name, currency, valuation, files, holdings, curve, policy, needs, scenarios,
-                spreads, reinvest, model)
+                spreads, reinvest, model, account)

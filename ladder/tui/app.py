@@ -213,18 +213,19 @@ class LadderApp(App[None]):
         self.recompute_task("shock")
 
     def on_trade_view_trade_booked(self, message: TradeView.TradeBooked) -> None:
-        from ladder.policy.trades import apply_trades
+        from ladder.analysis.booking import Pending
+        from ladder.analysis.settlement import settle_trades
 
-        self._journal(message.trades, f"trade ticket: {message.label}")
-        holdings = apply_trades(self.book.holdings, message.trades)
-        self.change_book(self.book.with_holdings(holdings), "holdings", self._holdings_change(message.label))
-
-    def _journal(self, trades, reason: str) -> None:
-        """Keep booked trades and their journal lines until the holdings are saved with them."""
-        from ladder.analysis.booking import Pending, trade_entries
-
-        self.pending.append(Pending(trades, reason))
-        self.pending_journal.extend(trade_entries(self.book, trades, reason))
+        reason = f"trade ticket: {message.label}"
+        settled = settle_trades(self.book, message.trades, reason)
+        if settled.shortfalls:
+            t = settled.shortfalls[0]
+            self.notify(f"{t.account} is short by {t.shortfall:,.2f}; fund the trade or deposit first",
+                        title="Not booked", severity="error")
+            return
+        self.pending.append(Pending(message.trades, reason))
+        self.pending_journal.extend(settled.entries)
+        self.change_book(self.book.with_holdings(settled.holdings), "holdings", self._holdings_change(message.label))
 
     def _holdings_change(self, label: str) -> str:
         previous = self.unsaved.get("holdings")
