@@ -20,7 +20,7 @@ from ladder.neutralize import safe_terminal
 
 # subcommand -> module in ladder/commands
 COMMANDS = {"value": "value", "shock": "shock", "check": "check", "plan": "plan", "build": "build",
-            "report": "report", "import": "custodian", "roll": "roll", "restore": "restore", "open": "open",
+            "report": "report", "import": "custodian", "roll": "roll", "cash": "cash", "restore": "restore", "open": "open",
             "demo": "demo"}
 EXIT_OK, EXIT_BREACH, EXIT_INPUT, EXIT_FILE = 0, 1, 2, 3
 

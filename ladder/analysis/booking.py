@@ -14,15 +14,12 @@ import datetime as dt
 from dataclasses import dataclass, replace
 from pathlib import Path
 
-import numpy as np
 
-from ladder.errors import Problems
 from ladder.folder.book_file import Book
 from ladder.folder.journal import JournalEntry, journal_path
 from ladder.folder.lock import book_lock
 from ladder.folder.save import curve_change, holdings_change
 from ladder.folder.transaction import Committed, commit, file_hashes
-from ladder.pricing.cashflows import cash_flows
 from ladder.analysis.settlement import Settlement, settle_trades
 from ladder.policy.trades import Trades
 
@@ -62,44 +59,6 @@ def book_trades(book: Book, trades: Trades, reason: str, at: dt.date | None = No
     settled = settled_holdings(_dated(book, trades, at), trades, reason, where)
     done = commit(book, holdings_change(book, settled.holdings), settled.entries, reason)
     return Booked(book.with_holdings(settled.holdings), book.files["holdings"], done.entries, done.version)
-
-
-def roll_book(book: Book, to: dt.date, called: tuple[str, ...] = ()) -> Booked:
-    """Take off the book every holding that matured on or before ``to`` and each ``called`` one,
-    journaling each ("mature" at its final payment, "call" at its call price plus accrued interest
-    on ``to``); funds never mature. Raises InputError for a called id that is not a callable holding."""
-    h = book.holdings
-    problems = Problems()
-    if to < book.valuation_date:
-        problems.add("--to", 0, 0, f"{to} is before the book's valuation date {book.valuation_date}")
-    held = dict(zip(h.id, range(len(h))))
-    for hid in called:
-        if hid not in held or not h.callable[held[hid]]:
-            problems.add("--called", 0, 0, f"{hid} is not a callable holding of the book")
-    problems.raise_if_any()
-    matured = (h.maturity <= np.datetime64(to)) & (h.kind != "fund")
-    is_called = np.isin(h.id, list(called)) & ~matured
-    entries = []
-    if matured.any():
-        sub = h.take(matured)
-        flows = cash_flows(sub, book.valuation_date)
-        last = flows.mask.sum(axis=1) - 1
-        final = flows.amount[np.arange(len(sub)), last] * sub.face / 100.0
-        entries += [JournalEntry(dt.date.fromisoformat(str(sub.maturity[i])), "mature", str(sub.id[i]),
-                                 float(sub.face[i]), float(final[i]), 100.0, "matured")
-                    for i in range(len(sub))]
-    if is_called.any():
-        sub = h.take(is_called)
-        accrued = cash_flows(sub, np.datetime64(to)).accrued
-        entries += [JournalEntry(to, "call", str(sub.id[i]), float(sub.face[i]),
-                                 float((sub.call_price[i] + accrued[i]) * sub.face[i] / 100.0),
-                                 float(sub.call_price[i]), "called by the issuer")
-                    for i in range(len(sub))]
-    if not entries:                  # nothing matured or was called: the book stays as it is
-        return Booked(book, book.files["holdings"], (), "")
-    remaining = h.take(~(matured | is_called))
-    done = commit(book, holdings_change(book, remaining), entries, f"roll to {to}")
-    return Booked(book.with_holdings(remaining), book.files["holdings"], done.entries, done.version)
 
 
 # ---- the workstation's save ------------------------------------------------------------------------
