@@ -22,9 +22,18 @@ def add_parser(subparsers) -> None:
 def run(args) -> int:
     book = load_book(args.book)
     valuation = value_book(book, args.at)
-    emit(args.format, lambda: valuation_document(valuation), lambda: holding_records(valuation),
+    emit(args.format, lambda: _with_cash(book, valuation_document(valuation)), lambda: holding_records(valuation),
          lambda: _table(book, valuation))
     return 0
+
+
+def _with_cash(book, document: dict) -> dict:
+    """The document with ``totals.cash``: the cash account's balance (null when the book names none)."""
+    from ladder.analysis.settlement import cash_balance
+
+    cash = cash_balance(book)
+    document["totals"]["cash"] = None if cash != cash else round(cash, 2)
+    return document
 
 
 def _table(book, valuation) -> None:
