@@ -12,7 +12,8 @@ holding (journaled as a sale or purchase of that fund at 100, through the cash a
 ``new_money`` (journaled as a deposit or withdrawal). Every journal ``amount`` is cash into (+) or out
 of (-) the cash account, so the account's balance is its opening balance plus every amount. A book
 with no cash account treats every trade as new money. A buy the paying account cannot pay leaves a
-``shortfall``: a breach in the what-if, a refusal when booking.
+``shortfall``: a breach in the what-if, a refusal when booking. Cash moves in cents: every amount is
+rounded to the cent (common practice), so the balance is the opening balance plus the amounts exactly.
 """
 
 from __future__ import annotations
@@ -136,7 +137,8 @@ def settle_trades(book: Book, trades: Trades, reason: str = "") -> Settlement:
             clean[rows], accrued[rows], ytm[rows] = _priced(book, sold, date)
             book_value[rows] = _amortized(sold, date, clean[rows]) * trades.holdings.face[rows] / 100.0
     face = trades.holdings.face
-    amount = np.where(buys, -1.0, 1.0) * (clean + accrued) * face / 100.0
+    amount = np.round(np.where(buys, -1.0, 1.0) * (clean + accrued) * face / 100.0, 2)   # cash moves in cents
+    book_value = np.round(book_value, 2)
     balances = {hid: float(f) for hid, f, k in zip(h.id, h.face, h.kind) if k == "fund"}
     account = book.cash_account
     entries, economics = [], []

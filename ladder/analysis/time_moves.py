@@ -7,9 +7,10 @@ credited to the cash account (``[cash] account``; a book without one journals th
 Matured and called holdings leave the book; funds stay (their next-day ``maturity_date`` moves to the
 day after ``to``); book.toml's ``valuation_date`` becomes ``to``. ``transfer`` records a deposit or
 withdrawal. Each is one book transaction: the files and the journal lines together.
-Money in currency units; a fund's dividend is its yield x balance x days / 365 (ACT/365F, the fund
-day count of ``ladder.book.holdings.SECTOR_DEFAULTS``); ``book_value`` of a maturity is the face (the
-amortized cost reaches par), of a call the amortized cost on the call date, of income 0.
+Money in currency units, every amount rounded to the cent (cash moves in cents); a fund's dividend
+is its yield x balance x days / 365 (ACT/365F, the fund day count of
+``ladder.book.holdings.SECTOR_DEFAULTS``); ``book_value`` of a maturity is the face (the amortized
+cost reaches par), of a call the amortized cost on the call date, of income 0.
 """
 
 from __future__ import annotations
@@ -97,7 +98,7 @@ def roll_entries(book: Book, to: dt.date, called: dict[str, dt.date]) -> tuple[l
         due = cf.mask & (cf.dates > start) & (cf.dates <= last[rows][:, None]) & (cf.coupon > 0)
         for r, k in zip(*np.nonzero(due)):
             i = rows[r]
-            money = float(cf.coupon[r, k] * h.face[i] / 100.0)
+            money = round(float(cf.coupon[r, k] * h.face[i] / 100.0), 2)
             entries.append(JournalEntry(cf.dates[r, k].astype(dt.date), "coupon", str(h.id[i]), float(h.face[i]),
                                         money, math.nan, "interest paid", book_value=0.0))
     for i in np.flatnonzero(matured):
@@ -115,11 +116,12 @@ def roll_entries(book: Book, to: dt.date, called: dict[str, dt.date]) -> tuple[l
         cost = np.where(np.isnan(cost), sub.call_price, cost)
         for j, i in enumerate(rows):
             entries.append(JournalEntry(call_on[i].astype(dt.date), "call", str(h.id[i]), float(h.face[i]),
-                                        float((h.call_price[i] + accrued[j]) * h.face[i] / 100.0), float(h.call_price[i]),
-                                        "called by the issuer", book_value=float(cost[j] * h.face[i] / 100.0)))
+                                        round(float((h.call_price[i] + accrued[j]) * h.face[i] / 100.0), 2),
+                                        float(h.call_price[i]), "called by the issuer",
+                                        book_value=round(float(cost[j] * h.face[i] / 100.0), 2)))
     days = float((end - start).astype(np.int64))
     for i in np.flatnonzero(fund & (days > 0)):
-        money = float(h.face[i] * np.nan_to_num(h.quote[i]) * days / FUND_YEAR_DAYS)
+        money = round(float(h.face[i] * np.nan_to_num(h.quote[i]) * days / FUND_YEAR_DAYS), 2)
         if money:
             entries.append(JournalEntry(to, "dividend", str(h.id[i]), math.nan, money, math.nan,
                                         f"fund income {book.valuation_date} to {to}", book_value=0.0))
@@ -154,6 +156,7 @@ def transfer(book: Book, amount: float, date: dt.date | None = None, memo: str =
     larger than the balance without ``allow_overdraft``."""
     problems = Problems()
     date = date or book.valuation_date
+    amount = round(amount, 2)
     option = "--deposit" if amount > 0 else "--withdraw"
     if not book.cash_account:
         problems.add(str(Path(book.folder) / BOOK_FILE), 0, 0, "the book names no cash account; add "

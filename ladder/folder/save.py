@@ -36,6 +36,12 @@ def _number(value, scale: float = 1.0) -> str:
     return "" if not np.isfinite(value) else f"{value * scale:.10g}"
 
 
+def _face(value) -> str:
+    """A face (currency units) to the cent: ten significant digits would drop the cents of a balance of
+    100 million or more."""
+    return "" if not np.isfinite(value) else f"{value:.2f}".rstrip("0").rstrip(".")
+
+
 def holdings_rows(h: Holdings) -> list[dict[str, str]]:
     """The holdings as ``holdings.csv`` rows (percent in files, as the reader expects)."""
     rows = []
@@ -45,7 +51,7 @@ def holdings_rows(h: Holdings) -> list[dict[str, str]]:
         callable_ = not np.isnat(h.first_call[i])
         row = {
             "id": h.id[i], "sector": h.sector[i], "issuer": h.issuer[i], "kind": h.kind[i],
-            "face": _number(h.face[i]), "maturity_date": _date(h.maturity[i]),
+            "face": _face(h.face[i]), "maturity_date": _date(h.maturity[i]),
             "coupon_pct": _number(h.coupon[i], 100.0) if h.kind[i] in ("fixed", "at_maturity") else "",
             "frequency": str(h.frequency[i]) if h.kind[i] == "fixed" else "",
             "day_count": h.day_count[i], "issue_date": _date(h.issue_date[i]),
