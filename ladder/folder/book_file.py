@@ -298,7 +298,7 @@ def load_book(folder) -> Book:
     holdings = None
     if valuation is not None:
         holdings, _ = read_holdings(source, valuation, problems, cash_account=account)
-    if account and holdings is not None:
+    if account and holdings is not None and len(holdings):     # an empty book has nothing to value
         where = np.flatnonzero(holdings.id == account)
         if not len(where):
             problems.add(str(folder / BOOK_FILE), at[0], at[1], f"cash.account: {account!r} is not a holding of "
