@@ -172,6 +172,20 @@ def reinvestment_move_bp(book: Book, scenario: Scenario, sector: str) -> float:
     return moves.get((sector, bucket), moves.get((sector, ""), 0.0))
 
 
+def _actual_transfers(book: Book, as_of: np.datetime64, dates: np.ndarray) -> tuple[np.datetime64, int]:
+    """Actual transfers for dates passed, the forecast after: the date up to which forecast needs are
+    replaced by the journal's transfers (``ladder cash``: deposits and withdrawals dated on or after
+    ``as_of`` are already in the cash account's balance; the day before ``as_of`` when there are none),
+    and how many forecast rows from ``as_of`` on that replaces."""
+    from ladder.analysis.settlement import FUNDING_REASON
+    from ladder.folder.journal import read_journal
+
+    moved = [np.datetime64(e.date, "D") for e in read_journal(book) if e.action in ("deposit", "withdraw")
+             and not e.reason.startswith(FUNDING_REASON) and np.datetime64(e.date, "D") >= as_of]
+    until = max(moved) if moved else as_of - 1
+    return until, int(((dates >= as_of) & (dates <= until)).sum())
+
+
 class _Planner:
     """The book-level pieces every scenario's projection shares; ``run`` does one scenario."""
 
@@ -199,7 +213,8 @@ class _Planner:
         self._cash: dict[tuple, HoldingCash] = {}
         dates = to_days(book.cash_needs.date)
         self.past_needs = int((dates < self.as_of).sum())
-        keep = dates >= self.as_of
+        self.actual_until, self.replaced_needs = _actual_transfers(book, self.as_of, dates)
+        keep = dates > self.actual_until
         self.need_dates = np.maximum(dates[keep], self.as_of + 1)
         self.need_amounts = book.cash_needs.amount[keep]
 
@@ -339,6 +354,9 @@ def plan_book(book: Book, at: dt.date | None = None, *, scenario: str | None = N
                      "their income is amortized from the plan date at today's price")
     if planner.past_needs:
         notes.append(f"{planner.past_needs} cash need(s) dated before {valuation.as_of} are past and left out")
+    if planner.replaced_needs:
+        notes.append(f"{planner.replaced_needs} forecast cash need(s) up to {planner.actual_until} are replaced by "
+                     "the transfers journaled (ladder cash), already in the cash account")
     last_need = planner.need_dates.max() if len(planner.need_dates) else None
     if last_need is None or last_need < projection.periods.boundaries[-1] - 31:
         notes.append("the cash-needs forecast ends before the horizon; later months show no needs")

@@ -32,6 +32,7 @@ from ladder.book.holdings import Holdings
 from ladder.policy.trades import NEW_MONEY, Trades, apply_trades
 from ladder.pricing.amortization import amortize
 
+FUNDING_REASON = "new money for"   # how a trade's new-money deposit or withdrawal line begins its reason
 CENT = 0.005   # currency units: a balance within half a cent of covering a payment covers it
 
 
@@ -150,7 +151,7 @@ def settle_trades(book: Book, trades: Trades, reason: str = "") -> Settlement:
         money = float(amount[i])
         if source == NEW_MONEY and account:
             entries.append(JournalEntry(date, "deposit" if money < 0 else "withdraw", account, -money, -money, 100.0,
-                                        f"new money for {action} {hid}", book_value=-money))
+                                        f"{FUNDING_REASON} {action} {hid}", book_value=-money))
         elif source != account and account:      # another fund pays or receives through the cash account
             entries.append(JournalEntry(date, "sell" if money < 0 else "buy", source, abs(money), -money, 100.0,
                                         f"{'funds' if money < 0 else 'receives'} {action} {hid}",

@@ -141,3 +141,17 @@ def test_build_out_is_accepted_by_check_as_it_is(folder, tmp_path, capsys):
     assert "new_money" in out.read_text()
     code, _, err = run(capsys, "check", folder, "--trade", out, "--format", "json")
     assert code in (0, 1) and err == ""
+
+
+def test_the_plan_uses_actual_transfers_for_dates_passed_and_the_forecast_after(folder, capsys):
+    # Demo forecast: 2026-12-15 8,900,000 and 6,000,000, 2026-12-22 3,000,000, 2026-12-31 -7,500,000
+    # (net 10,400,000 in December), 2027-01 net 1,800,000.
+    import json
+
+    assert run(capsys, "cash", folder, "--withdraw", "10400000", "--date", "2026-12-31", "--memo", "December")[0] == 0
+    code, out, _ = run(capsys, "plan", folder, "--format", "json", "--months", "3")
+    doc = json.loads(out)
+    months = {p["start"][:7]: p["needs"] for p in doc["periods"]}
+    assert code == 0 and months["2026-12"] == 0.0
+    assert months["2027-01"] == pytest.approx(1_800_000.0, rel=0, abs=CENT)
+    assert any("4 forecast cash need(s) up to 2026-12-31 are replaced" in n for n in doc["notes"])
