@@ -198,9 +198,10 @@ def _trades(p: Program, x: np.ndarray, at: dt.date) -> Trades:
                 book_price=np.where(buy & (h.kind != "fund"), np.round(clean, 6), np.where(buy, np.nan, clean)),
                 purchase_date=np.where(buy & (h.kind != "fund"), np.datetime64(at, "D"), h.purchase_date),
                 rating_at_purchase=np.where(buy, rating_now, h.rating_at_purchase))
-    # The builder invests the new cash it was given (--cash): buys are new money, sales credit the cash account.
+    # The builder invests the new cash it was given (--cash) and, with sales, their proceeds: every trade is
+    # new money (a sale's proceeds go back out to pay the buys), so the cash account is left as it is.
     return Trades(h, np.where(buy, "buy", "sell").astype(object), "build",
-                  funded_from=np.where(buy, NEW_MONEY, "").astype(object))
+                  funded_from=np.full(len(h), NEW_MONEY, dtype=object))
 
 
 def _summary(holdings: Holdings, v: Valuation, pos: Positions, faces: np.ndarray, rungs: Rungs) -> LadderSummary:

@@ -168,8 +168,12 @@ def settle_trades(book: Book, trades: Trades, reason: str = "") -> Settlement:
                                         float(book_value[i]), gain, paying if source != NEW_MONEY else NEW_MONEY,
                                         before if source != NEW_MONEY else math.nan,
                                         after if source != NEW_MONEY else math.nan, shortfall))
+    opening = {hid: float(f) for hid, f, k in zip(h.id, h.face, h.kind) if k == "fund"}
     new = _bought_at_cost(apply_trades(h, trades), trades, clean, dates, default)
-    faces = np.array([balances.get(hid, f) for hid, f in zip(new.id, new.face)], dtype=np.float64)
+    if account and account in opening and account not in set(new.id):    # sold in full: the account stays, empty
+        new = Holdings.concat([new, replace(h.take(h.id == account), face=np.zeros(1))])
+    faces = np.array([f + balances.get(hid, 0.0) - opening.get(hid, 0.0) for hid, f in zip(new.id, new.face)],
+                     dtype=np.float64)    # the accounts' moves on top of the trades' own
     new = replace(new, face=faces)
     return Settlement(new, tuple(entries), tuple(economics), account, cash_balance(book), cash_balance(book, new))
 
