@@ -155,3 +155,26 @@ def test_the_plan_uses_actual_transfers_for_dates_passed_and_the_forecast_after(
     assert code == 0 and months["2026-12"] == 0.0
     assert months["2027-01"] == pytest.approx(1_800_000.0, rel=0, abs=CENT)
     assert any("4 forecast cash need(s) up to 2026-12-31 are replaced" in n for n in doc["notes"])
+
+
+NORTH_ATLANTIC = """id,sector,issuer,face,maturity_date,coupon_pct,rating,action{extra}
+NEW-1,supranational,North Atlantic Development Bank,3800000,2028-06-15,4.2,AAA,buy{v}
+NEW-2,supranational,North Atlantic Development Bank,3800000,2029-06-15,4.3,AAA,buy{v}
+"""
+
+
+def test_funded_buys_show_the_issuer_and_liquidity_breaches_that_new_money_hides(folder, tmp_path):
+    # The demo holds 9,259,436 of North Atlantic Development Bank (market value) in a book of 333,892,957;
+    # 7.6 million more of it: as new money (9.26 + 7.6) / (333.9 + 7.6) = 4.94% < 5% (the policy's issuer
+    # cap); paid from the money fund (9.26 + 7.6) / 333.9 = 5.05% > 5%, and the fund's 15 million falls to
+    # about 7.4 million, below the 7-day liquidity floor. Hand arithmetic at par (prices near 100).
+    book = load_book(folder)
+    funded, new = tmp_path / "funded.csv", tmp_path / "new.csv"
+    funded.write_text(NORTH_ATLANTIC.format(extra="", v=""))
+    new.write_text(NORTH_ATLANTIC.format(extra=",funded_from", v=",new_money"))
+    grown = {c.rule: c for c in check_trade_file(book, new).check.changes}
+    paid = {c.rule: c for c in check_trade_file(book, funded).check.changes}
+    for rule in ("portfolio.issuer_max_pct", "portfolio.liquidity[0].min_pct"):
+        assert paid[rule].new_breach and not grown[rule].new_breach
+    assert grown["portfolio.issuer_max_pct"].after.status == "near"
+    assert grown["portfolio.issuer_max_pct"].after.actual < 5.0 < paid["portfolio.issuer_max_pct"].after.actual
