@@ -244,7 +244,11 @@ class LadderApp(App[None]):
         except Exception as error:   # an InputError explains why it cannot be applied
             self.notify(describe(error), title="Not applied", severity="error")
             return
-        self._journal(message.result.trades, f"ladder builder: {message.result.invested:,.2f} invested")
+        from ladder.analysis.booking import Pending, trade_entries
+
+        reason = f"ladder builder: {message.result.invested:,.2f} invested"
+        self.pending.append(Pending(message.result.trades, reason))
+        self.pending_journal.extend(trade_entries(self.book, message.result.trades, reason))
         self.change_book(book, "holdings", self._holdings_change(f"builder: {len(message.result.trades)} trade(s)"))
 
     def on_holdings_view_sell_wanted(self, message: HoldingsView.SellWanted) -> None:
