@@ -248,7 +248,7 @@ def build_ladder(book: Book, cash, rungs: str | None = None, offerings=None, all
     existing = _positions(v_before, months, purchase=False) if v_before is not None else cand_pos.take([])
     report(0.35, "building the program")
     program = build_program(book.policy, book.cash_needs, settle, spec, existing, cands, cand_pos, cash,
-                            allow_sales=allow_sales, fresh=fresh, rung_band=rung_band)
+                            allow_sales=allow_sales, fresh=fresh, rung_band=rung_band, families=book.families)
     report(0.45, "solving")
     relaxed = relaxation(program)
     solution = solve(program) if relaxed.status == "optimal" else Solution(

@@ -60,12 +60,14 @@ def _rules_table(result) -> None:
                            ("Headroom", "right"), ("Status", "left"), ("Holdings", "left")):
         table.add_column(title, justify=justify, overflow="fold")
     for r in result.rules:
-        table.add_row(r.rule, r.text, _value(r.limit), _value(r.actual), _value(r.headroom), _status(r.status),
+        text = f"{r.text}; largest: {r.worst_group}" if r.per else r.text
+        table.add_row(r.rule, text, _value(r.limit), _value(r.actual), _value(r.headroom), _status(r.status),
                       ", ".join(r.holdings[:6]) + (" …" if len(r.holdings) > 6 else ""))
     con.print(table)
     counts = ", ".join(f"{n} {s}" for s, n in result.counts().items() if n)
     con.print(f"Overall: {_status(result.status)} ({counts}); percentages on {result.basis} value; "
-              f"limits tested {result.testing.replace('_', ' ')}.")
+              f"share limits tested {result.testing.replace('_', ' ')} unless a rule says otherwise "
+              "(json: each rule's testing).")
     print_caution(con)
 
 

@@ -122,7 +122,7 @@ def test_json_has_the_contract_fields():
     assert set(data) >= {"as_of", "status", "rules"}
     assert data["as_of"] == "2025-01-31"
     assert data["policy"] == {"name": "Test policy", "version": "1", "adopted": "2024-01-01", "basis": "market",
-                              "testing": "at_all_times"}
+                              "testing": "continuous"}
     for rule in data["rules"]:
         assert set(rule) >= {"rule", "text", "limit", "actual", "headroom", "status", "holdings"}
 
