@@ -166,8 +166,7 @@ def _print(result: BuildResult) -> None:
     for title in ("Before", "After"):
         summary.add_column(title, justify="right")
     b, a = result.before, result.after
-    rows = [("Market value", lambda s: fmt(s.market_value, 0)), ("Expected yield %", lambda s: _pct(s.expected_yield)),
-            ("Yield to maturity %", lambda s: _pct(s.ytm)),
+    rows = [("Market value", lambda s: fmt(s.market_value, 0)), ("Yield to worst %", lambda s: _pct(s.yield_to_worst)),
             ("Effective duration", lambda s: fmt(s.effective_duration, 3)),
             ("Effective convexity", lambda s: fmt(s.effective_convexity, 3)), ("WAM days", lambda s: fmt(s.wam_days, 0))]
     rows += [(f"Rung {label} %", (lambda s, i=i: fmt(s.rung_shares[i][1], 2))) for i, (label, _) in
@@ -176,9 +175,9 @@ def _print(result: BuildResult) -> None:
         summary.add_row(name, get(b) if b else "—", get(a))
     con.print(summary)
     if result.naive_yield is not None:
-        con.print(f"Naive even ladder from the same candidates: expected yield {_pct(result.naive_yield)}% "
+        con.print(f"Naive even ladder from the same candidates: yield to worst {_pct(result.naive_yield)}% "
                   f"({'meets' if result.naive_feasible else 'does not meet'} every rule); this build "
-                  f"{_pct(a.expected_yield)}%.")
+                  f"{_pct(a.yield_to_worst)}%.")
     if result.binding:
         bind = Table(title="Binding limits (linear relaxation; approximate)", header_style="bold")
         for title in ("Rule", "Member", "Limit", "Relaxed by", "Income a year", "Yield bp"):

@@ -72,7 +72,7 @@ def _rules_table(result) -> None:
 
 
 def _risk_line(label: str, t: Totals) -> str:
-    return (f"{label}: market value {fmt(t.market_value, 0)}  yield {fmt(100 * t.ytm, 3)}%  "
+    return (f"{label}: market value {fmt(t.market_value, 0)}  yield to worst {fmt(100 * t.yield_to_worst, 3)}%  "
             f"effective duration {fmt(t.effective_duration, 3)}  convexity {fmt(t.effective_convexity, 3)}  "
             f"DV01 {fmt(t.dv01, 0)}  WAM {fmt(t.wam_days, 0)} days")
 

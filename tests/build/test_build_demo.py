@@ -39,7 +39,7 @@ def test_every_build_passes_the_what_if_and_covers_the_needs(demo, builds, name)
     assert what_if.check.after.rule(COVERAGE).status in ("pass", "near")
     spent = float(what_if.after.market_value.sum() - what_if.before.market_value.sum())
     assert spent == pytest.approx(r.cash, abs=r.largest_lot)  # the cash invested to within one lot
-    assert r.after.expected_yield >= r.naive_yield and r.naive_feasible
+    assert r.after.yield_to_worst >= r.naive_yield and r.naive_feasible
     assert r.after.market_value == pytest.approx(r.before.market_value + r.cash, rel=1e-9)
     json.dumps(r.to_json(), allow_nan=False)
 

@@ -42,7 +42,7 @@ def _summary_line(name: str, s) -> str:
     if s is None:
         return f"{name:<7} {fmt.NA_TEXT}"
     shares = "  ".join(f"{k} {v:.1f}%" for k, v in s.rung_shares if v)
-    return (f"{name:<7} value {fmt.money(s.market_value):>14}   expected yield {fmt.percent(s.expected_yield)}%   "
+    return (f"{name:<7} value {fmt.money(s.market_value):>14}   yield to worst {fmt.percent(s.yield_to_worst)}%   "
             f"eff dur {fmt.number(s.effective_duration, 3)}   WAM {fmt.number(s.wam_days, 0)} d   {shares}")
 
 
