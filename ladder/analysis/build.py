@@ -24,7 +24,8 @@ from ladder.analysis.valuation import Valuation, settlement_date, value_book
 from ladder.folder.book_file import Book
 from ladder.book.holdings import Holdings
 from ladder.folder.save import holdings_rows
-from ladder.build.candidates import Candidates, eligible, fund_candidates, generic_candidates, read_offerings
+from ladder.build.candidates import (Candidates, eligible, fund_candidates, generic_candidates, read_offerings,
+                                    with_tickets)
 from ladder.build.naive import feasible, naive_ladder
 from ladder.build.positions import Positions
 from ladder.build.program import RUNG_BAND, Program, build_program
@@ -176,7 +177,7 @@ def candidates_for(book: Book, rungs: Rungs, at: dt.date, offerings=None) -> Can
     base = read_offerings(offerings, book) if offerings is not None else generic_candidates(book, rungs, at)
     if not base.fund.any():
         base = Candidates.concat([base, fund_candidates(book, at)])
-    return eligible(book.policy, base, rungs, at)
+    return eligible(book.policy, with_tickets(base, book.build), rungs, at)
 
 
 def _trades(p: Program, x: np.ndarray, at: dt.date) -> Trades:

@@ -33,7 +33,7 @@ REINVEST_RULES = ("longest_rung", "target_tenor", "fund")
 TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "reinvest", "model", "build")
 # The builder's generic purchases (common practice for institutional lots: a 1,000,000 face ticket in
 # 100,000 steps; a fund purchase of at least 100,000). MAX_TICKET refuses a figure typed with too many zeros.
-DEFAULT_MIN_TICKET, DEFAULT_LOT, DEFAULT_FUND_MIN = 1_000_000.0, 100_000.0, 100_000.0
+DEFAULT_MIN_TICKET, DEFAULT_LOT, DEFAULT_FUND_MIN = 1_000_000.0, 1_000_000.0, 100_000.0
 MAX_TICKET = 1e10
 SPREAD_BUCKETS = ("AAA", "AA", "A", "BBB", "A-1+", "A-1", "A-2", "A-3", "default")
 # Defaults of the callable model (Hull-White): see docs/methods.md for where they come from.
