@@ -36,6 +36,8 @@ from ladder.policy.measures import cash_by_month
 from ladder.policy.trades import Trades, apply_trades
 
 VALUATION_FACE = 1_000_000.0   # face the candidates are valued at (results are per unit face)
+GENERIC_NOTE = ("generic: a stand-in for a security of that sector, rating and maturity from the curve and spread "
+                "table, not an offering; source a real issue (and issuer) before trading")
 Progress = Callable[[float, str], None]
 
 
@@ -92,6 +94,13 @@ class BuildResult:
         return self.compliance.check.status if isinstance(self.compliance, TradeWhatIf) else self.compliance.result.status
 
     @property
+    def generic_trades(self) -> np.ndarray:
+        """(t,) bool: which trades buy a generic candidate (a stand-in, see ``GENERIC_NOTE``)."""
+        if self.trades is None:
+            return np.zeros(0, bool)
+        return np.isin(self.trades.holdings.id, self.candidates.holdings.id[self.candidates.generic])
+
+    @property
     def largest_lot(self) -> float:
         """Market value of the largest single lot among the candidates bought (currency)."""
         p, x = self.program, self.solution.x
@@ -118,7 +127,9 @@ class BuildResult:
                                 for c in self.conflicts]
             return doc
         doc.update({
-            "invested": clean_number(self.invested, 2), "trades": trade_records(self.trades),
+            "invested": clean_number(self.invested, 2),
+            "trades": [{**row, "generic": bool(g)} for row, g in zip(trade_records(self.trades), self.generic_trades)],
+            "generic_note": GENERIC_NOTE if self.generic_trades.any() else None,
             "before": self.before.to_json() if self.before else None, "after": self.after.to_json(),
             "naive_even_ladder": {"yield_to_worst_pct": clean_number(100 * self.naive_yield, 8)
                                   if self.naive_yield is not None else None, "meets_every_rule": self.naive_feasible},

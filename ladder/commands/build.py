@@ -11,7 +11,7 @@ import io
 import sys
 from pathlib import Path
 
-from ladder.analysis.build import BuildResult, apply_build, build_ladder, save_build, trade_records
+from ladder.analysis.build import GENERIC_NOTE, BuildResult, apply_build, build_ladder, save_build, trade_records
 from ladder.folder.book_file import load_book
 from ladder.book.holdings_file import COLUMNS
 from ladder.folder.save import write_atomic
@@ -151,14 +151,19 @@ def _print(result: BuildResult) -> None:
                 con.print(f"    {label or 'portfolio'}: limit {fmt(limit, 4)}, relax by {fmt(need, 4)} {unit}".rstrip())
         print_caution(con)
         return
-    table = Table(title="Proposed trades", header_style="bold")
+    generic = result.generic_trades
+    table = Table(title="Proposed trades" + (" (* generic stand-ins, not offerings)" if generic.any() else ""),
+                  header_style="bold")
     for title in ("Action", "Id", "Sector", "Issuer", "Maturity", "Coupon %", "Rating", "Face", "Price"):
         table.add_column(title, justify="right" if title in ("Face", "Price", "Coupon %") else "left")
-    for row in trade_records(result.trades):
-        table.add_row(row["action"], row["id"], row["sector"], row["issuer"], row["maturity_date"],
+    for row, stand_in in zip(trade_records(result.trades), generic):
+        table.add_row(row["action"], row["id"] + (" *" if stand_in else ""), row["sector"], row["issuer"],
+                      row["maturity_date"],
                       row["coupon_pct"], "/".join(x for x in (row["rating"], row["short_rating"]) if x),
                       fmt(float(row["face"]), 2), row["book_price"] or row["yield_pct"])
     con.print(table)
+    if generic.any():
+        con.print(f"[bold]* {GENERIC_NOTE}.[/]")
     con.print(f"Invested {fmt(result.invested, 2)} of {fmt(result.cash, 2)} (within one lot: largest lot "
               f"{fmt(result.largest_lot, 2)}).")
     summary = Table(title="Ladder before and after", header_style="bold")
