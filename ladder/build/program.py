@@ -43,7 +43,7 @@ from ladder.policy.rules import compile_rules
 
 SELL_UNIT = 1_000.0          # face: sales in whole thousands (common practice: minimum denomination)
 RUNG_BAND = (0.5, 1.5)       # each rung between half and one and a half times the even share
-MARGIN = {"pct": 1e-7, "years": 1e-8, "days": 1e-6, "currency": 0.01, "buys_pct": 1e-7}
+MARGIN = {"pct": 1e-5, "years": 1e-8, "days": 1e-6, "currency": 0.01, "buys_pct": 1e-7}
 # How a row's right-hand side moves when its limit moves by one unit (for the cost of a limit):
 SENS_TOTAL, SENS_BUYS, SENS_ONE = "total", "buys", "one"
 BUDGET = "budget"
