@@ -17,7 +17,7 @@ Their ids start ``GENERIC-`` and their issuer names with ``generic``: every matu
 rating has one generic issuer (``generic agency AA+ issuer``), so issuer and family limits hold for
 it as for one real issuer (the treasurer then sources real issuers). A purchase is at least the book's
 minimum ticket, in its lots (``[build]`` of book.toml); an offering is bought in at least the minimum
-ticket too (rounded up to its own increments), and a fund in at least ``fund_min_ticket``.
+ticket too (rounded up to its own increments). Funds are bought in any amount.
 
 The residual cash goes to a fund: the offerings' fund rows, else the book's own funds offered again,
 else a generic government fund at the curve's one-month rate.
@@ -228,12 +228,12 @@ def generic_candidates(book: Book, rungs: Rungs, settle: dt.date) -> Candidates:
 
 
 def with_tickets(c: Candidates, ticket: BuildSettings) -> Candidates:
-    """``c`` with every purchase at least the minimum ticket: a security's ``min_lot`` raised to the
-    ticket rounded up to its own increments, a fund's to ``fund_min_ticket``."""
+    """``c`` with every security bought in at least the minimum ticket: its ``min_lot`` raised to the
+    ticket rounded up to its own increments (funds unchanged)."""
     fund = c.fund
     steps = np.where(fund, 1.0, c.lot)
-    security_min = np.maximum(c.min_lot, np.ceil(ticket.min_ticket / steps - 1e-9) * steps)
-    return replace(c, min_lot=np.where(fund, np.maximum(c.min_lot, ticket.fund_min_ticket), security_min))
+    raised = np.maximum(c.min_lot, np.ceil(ticket.min_ticket / steps - 1e-9) * steps)
+    return replace(c, min_lot=np.where(fund, c.min_lot, raised))
 
 
 def fund_candidates(book: Book, settle: dt.date) -> Candidates:

@@ -31,9 +31,9 @@ DEFAULT_FILES = {"holdings": "holdings.csv", "curve": "curve.csv", "policy": "po
 OPTIONAL_FILES = ("scenarios", "issuers")
 REINVEST_RULES = ("longest_rung", "target_tenor", "fund")
 TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "reinvest", "model", "build")
-# The builder's generic purchases (common practice for institutional lots: a 1,000,000 face ticket in
-# 100,000 steps; a fund purchase of at least 100,000). MAX_TICKET refuses a figure typed with too many zeros.
-DEFAULT_MIN_TICKET, DEFAULT_LOT, DEFAULT_FUND_MIN = 1_000_000.0, 1_000_000.0, 100_000.0
+# The builder's purchases (common practice: the institutional round lot is 1,000,000 face).
+# MAX_TICKET refuses a figure typed with too many zeros.
+DEFAULT_MIN_TICKET, DEFAULT_LOT = 1_000_000.0, 1_000_000.0
 MAX_TICKET = 1e10
 SPREAD_BUCKETS = ("AAA", "AA", "A", "BBB", "A-1+", "A-1", "A-2", "A-3", "default")
 # Defaults of the callable model (Hull-White): see docs/methods.md for where they come from.
@@ -75,12 +75,11 @@ class ModelSettings:
 
 @dataclass(frozen=True)
 class BuildSettings:
-    """Generic purchases of the builder (``[build]`` of book.toml), face in currency units: at least
-    ``min_ticket``, in steps of ``lot``; a fund purchase at least ``fund_min_ticket``."""
+    """Purchases of the builder (``[build]`` of book.toml), face in currency units: a security at least
+    ``min_ticket``, a generic one in steps of ``lot``."""
 
     min_ticket: float = DEFAULT_MIN_TICKET
     lot: float = DEFAULT_LOT
-    fund_min_ticket: float = DEFAULT_FUND_MIN
 
 
 @dataclass(frozen=True, eq=False)
@@ -207,9 +206,9 @@ def _read_settings(path: Path, problems: Problems):
 
 def _build(s: _Settings, data: dict) -> BuildSettings:
     """``[build]``: tickets and lot, positive face amounts up to ``MAX_TICKET``; the ticket a whole number of lots."""
-    b = s.table(data, "build", ("min_ticket", "lot", "fund_min_ticket"))
+    b = s.table(data, "build", ("min_ticket", "lot"))
     got = {}
-    for key, default in (("min_ticket", DEFAULT_MIN_TICKET), ("lot", DEFAULT_LOT), ("fund_min_ticket", DEFAULT_FUND_MIN)):
+    for key, default in (("min_ticket", DEFAULT_MIN_TICKET), ("lot", DEFAULT_LOT)):
         value = b.get(key, default)
         if isinstance(value, bool) or not isinstance(value, (int, float)) or not 0 < value <= MAX_TICKET:
             s.error(("build", key), f"{value!r} is not a face amount; expected a number above 0 and at most "
