@@ -88,7 +88,8 @@ def _trade_table(book, what_if) -> None:
         table.add_column(title, overflow="fold")
     for c in tc.changes:
         cause = ", ".join(f"{t.action} {t.id}" for t in c.caused_by)
-        table.add_row(c.rule, _value(c.before.actual), _status(c.before.status), _value(c.after.actual),
+        rule = f"{c.rule} (largest: {c.after.worst_group})" if c.after.per else c.rule
+        table.add_row(rule, _value(c.before.actual), _status(c.before.status), _value(c.after.actual),
                       _status(c.after.status) + (" (new)" if c.new_breach else ""), cause)
     con.print(table)
     con.print(_risk_line("Before", what_if.before.totals))

@@ -8,16 +8,17 @@ measures (all percentages of the whole portfolio on the policy's basis):
 - portfolio.max_wam_days: basis-weighted average days to final maturity.
 - portfolio.max_maturity_days|years, sectors.X.max_maturity_days|years: each holding's days to final
   maturity (years are counted on the calendar from the check date).
-- portfolio.issuer_max_pct: each issuer's share, leaving out holdings in sectors with
-  ``issuer_cap_exempt`` and issuers named under [issuers]; issuers."N".max_pct: N's share in every sector.
+- portfolio.issuer_max_pct: each issuer family's share (``PositionMeasures.family``; each issuer's
+  with ``per = "issuer"``), leaving out holdings in sectors with ``issuer_cap_exempt`` and the
+  families of issuers named under [issuers]; issuers."N".max_pct: N's family's share in every sector.
 - portfolio.callable_max_pct, sectors.X.callable_max_pct: share of callable holdings.
 - portfolio.liquidity[i].min_pct: share maturing within ``within_days`` days.
 - portfolio.cash_needs_horizon_months: for each month of the horizon, fund balances plus cumulative
   principal and coupons against cumulative net cash needs.
 - sectors: share of each sector the policy does not name (only when it names any); sectors.X.allowed:
   share of a sector the policy forbids (limit 0).
-- sectors.X.max_pct / min_pct: the sector's share; sectors.X.issuer_max_pct: each issuer's share
-  within the sector.
+- sectors.X.max_pct / min_pct: the sector's share; sectors.X.issuer_max_pct: each issuer family's
+  (or issuer's) share within the sector.
 - sectors.X.min_long_rating / min_short_rating: each holding's notch after the split-rating rule
   (unrated fails); a holding whose ``rating_at_purchase`` met the minimum is excused to ``review``.
 """
@@ -145,8 +146,9 @@ class Measured:
 class Rule:
     """One limit of the policy. ``upper``: the value must not exceed the limit (else not fall below).
     ``drifts``: a share or average that moves after purchase (at_purchase testing reviews it).
-    ``warns``: has a ``near`` band. ``testing``: "at_purchase" | "continuous" (``TESTING_DEFAULTS``,
-    the policy's [rules] table). ``per``: "family" | "issuer" for an issuer limit, else None."""
+    ``warns``: has a ``near`` band. ``testing``: "at_purchase" | "continuous" (the policy's [rules]
+    entry, else the kind's default given to ``_Builder.add``, else the policy's ``testing``).
+    ``per``: "family" | "issuer" for an issuer limit, else None."""
 
     key: str
     text: str

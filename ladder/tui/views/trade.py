@@ -42,7 +42,8 @@ def changes_frame(check) -> Frame:
     before = [x.before for x in c]
     text = {"after": np.array([status_word(a.status) for a in after], dtype=object),
             "before": np.array([status_word(b.status) for b in before], dtype=object),
-            "rule": np.array([x.rule for x in c], dtype=object),
+            "rule": np.array([f"{x.rule} (largest: {x.after.worst_group})" if x.after.per else x.rule for x in c],
+                             dtype=object),
             "limit": np.array([value_text(a.limit, a.unit) for a in after], dtype=object),
             "actual_before": np.array([value_text(b.actual, b.unit) for b in before], dtype=object),
             "actual_after": np.array([value_text(a.actual, a.unit) for a in after], dtype=object),
