@@ -18,7 +18,7 @@ HOLDING_COLUMNS = (
     Column("coupon", "Coupon", "pct"), Column("maturity", "Maturity", "date"), Column("next_call", "Next call", "date"),
     Column("face", "Face", "money"), Column("amortized_cost", "Amortized cost", "money"),
     Column("market_value", "Market value", "money"), Column("unrealized_gain", "Unrealized gain/loss", "money"),
-    Column("book_yield", "Book yield", "pct"), Column("market_yield", "Market yield", "pct"),
+    Column("book_yield", "Book yield", "pct"), Column("market_yield", "Yield to worst", "pct"),
     Column("rating", "Ratings"), Column("share", "Share of portfolio", "pct"),
 )
 
@@ -59,7 +59,7 @@ def holdings_table(v: Valuation, a: Accounting, source: str) -> Table:
     h = v.holdings
     total_mv = float(v.market_value.sum())
     calls = next_calls(v, source)
-    market_yield = v.measures.bey
+    market_yield = v.yield_to_worst
     rows = []
     for i in range(len(h)):
         coupon = float(h.coupon[i]) if h.kind[i] in ("fixed", "at_maturity") else None
@@ -69,7 +69,7 @@ def holdings_table(v: Valuation, a: Accounting, source: str) -> Table:
                      ratings_text(h, i), float(v.market_value[i]) / total_mv))
     total = ("Total", f"{len(h)} holdings", None, None, None, None, float(h.face.sum()),
              _number(np.nansum(a.amortized_cost)), total_mv, _number(np.nansum(a.unrealized_gain)),
-             _weighted(a.book_yield, a.amortized_cost), _number(v.totals.ytm), None, 1.0)
+             _weighted(a.book_yield, a.amortized_cost), _number(v.totals.yield_to_worst), None, 1.0)
     return Table("Holdings", HOLDING_COLUMNS, tuple(rows), total)
 
 
