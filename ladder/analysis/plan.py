@@ -31,9 +31,13 @@ from ladder.market.dates import NAT, to_days
 from ladder.plan.calls import expected_calls
 from ladder.plan.holding_flows import HoldingCash, holding_cash
 from ladder.plan.periods import STEPS, Periods, horizon_end, make_periods
-from ladder.plan.projection import PlanSetup, Projection, project
+from ladder.plan.crossings import Crossing, projected_crossings
+from ladder.plan.menu import make_menu
+from ladder.plan.prices import later_values
+from ladder.plan.projection import PlanSetup, PolicyLimits, Projection, project
 from ladder.plan.rates import RULES, RatePath
 from ladder.plan.reinvestment import Reinvestment, resolve_reinvestment, with_spread
+from ladder.policy.liquidity import NeedsCoverage, needs_coverage
 from ladder.plan.returns import HorizonReturn, holdings_value, modified_dietz
 from ladder.pricing.amortization import Amortization, CallSchedule, amortize
 from ladder.pricing.quotes import cf_rows
@@ -94,6 +98,14 @@ class CashPlan:
     calls: tuple[ExpectedCall, ...]
     income_at_risk: tuple[ScenarioIncome, ...]
     notes: tuple[str, ...]
+    crossings: tuple[Crossing, ...] = ()
+
+    @property
+    def coverage(self) -> NeedsCoverage:
+        """The plan's needs coverage by period (``ladder.policy.liquidity``): opening cash, then what
+        comes in each period less the reinvestment and plus the sales of the period before (so that
+        the cumulative cash is the cash before each period's sales), and what could be sold."""
+        return plan_coverage(self.projection)
 
     @property
     def periods(self) -> Periods:
@@ -218,24 +230,41 @@ class _Planner:
             self._cash[key] = holding_cash(self.h, self.cf, periods, self.amortization(redeemed))
         return self._cash[key]
 
-    def sale_clean(self, scenario: Scenario, path: RatePath) -> np.ndarray:
-        """Valuation prices under the scenario: today's clean prices on the moved curve."""
-        if not np.any(scenario.shift_bp_by_tenor):
-            return self.valuation.clean[self.rows]
-        return self.valuation.pricer.dirty(path.curve)[self.rows] - self.cf.accrued
+    @cached_property
+    def limits(self) -> PolicyLimits:
+        """The policy's purchase-time limits the plan keeps (``ladder.plan.projection``)."""
+        policy, pf = self.book.policy, self.book.policy.portfolio
+        bought, fund = policy.sector(self.reinvestment.sector), policy.sector("fund")
+        return PolicyLimits(floors=tuple((f.within_days, f.min_pct) for f in pf.liquidity),
+                            sector_cap_pct=bought.max_pct if bought is not None else None,
+                            wam_days=pf.max_wam_days, duration_years=pf.max_effective_duration,
+                            fund_cap_pct=fund.max_pct if fund is not None else None)
 
-    def run(self, scenario: Scenario, months: int) -> tuple[Projection, RatePath, np.ndarray]:
+    def setup(self, scenario: Scenario, months: int, reinvestment: Reinvestment | None = None):
+        """(the projection's setup, the scenario's rate path, expected call dates)."""
         periods = make_periods(self.as_of, months, self.options.period)
         path = self.path(scenario)
         redeemed = self.redeemed_on(path)
         cash = self.holding_cash(periods, redeemed)
-        r = self.reinvestment
-        purchases = None if r.rule == "fund" else path.purchase_terms(periods.end, r.months, r.spread_bp / 1e4)
+        r = reinvestment or self.reinvestment
+        menu = None if r.rule == "fund" else make_menu(path, periods, r.menu, r.sector, r.spread_bp / 1e4)
+        long_end = -1 if menu is None else int(np.searchsorted(menu.months, r.months))
         shift = path.short_rate(periods.boundaries[:-1]) - self.base_short
-        setup = PlanSetup(periods, self.h, cash, self.sale_clean(scenario, path), self.opening_cash,
-                          periods.total(self.need_dates, self.need_amounts),
-                          np.maximum(self.fund_yield + shift, 0.0), purchases, r.buffer)
+        dirty, duration = later_values(cash.flows, self.spread, path, periods.boundaries)
+        setup = PlanSetup(periods, self.h, cash, dirty, duration, self.opening_cash,
+                          periods.total(self.need_dates, self.need_amounts), np.maximum(self.fund_yield + shift, 0.0),
+                          menu, r.rule, long_end, r.buffer, self.limits)
+        return setup, path, redeemed
+
+    def run(self, scenario: Scenario, months: int, reinvestment: Reinvestment | None = None):
+        setup, path, redeemed = self.setup(scenario, months, reinvestment)
         return project(setup), path, redeemed
+
+    def crossings(self, scenario: Scenario, months: int, reinvestment: Reinvestment | None = None):
+        """(projection, the limits it crosses by period)."""
+        setup, _, _ = self.setup(scenario, months, reinvestment)
+        projection = project(setup)
+        return projection, projected_crossings(self.book.policy, self.book.holdings, setup, projection)
 
     def income(self, scenario: Scenario) -> ScenarioIncome:
         projection, path, redeemed = self.run(scenario, INCOME_MONTHS)
@@ -245,8 +274,8 @@ class _Planner:
         held = holdings_value(self.h, projection.face_left, cash.end_date, self.spread, path, end, params,
                               str(self.book.files["holdings"]))
         bought = 0.0
-        if projection.purchases is not None:
-            bought = float((projection.purchases.value(path, end) * projection.reinvested / 100.0).sum())
+        if projection.menu is not None:
+            bought = float((projection.lot_path[-1] * projection.menu.dirty[:, :, -1]).sum() / 100.0)
         start_value = float(self.valuation.market_value[self.rows].sum()) + self.opening_cash
         end_value = held + bought + float(projection.closing_cash[-1])
         horizon = modified_dietz(start_value, end_value, self.as_of, end, self.need_dates, -self.need_amounts,
@@ -292,9 +321,15 @@ def plan_book(book: Book, at: dt.date | None = None, *, scenario: str | None = N
         problems.extend(error)
     problems.raise_if_any()
     valuation = value_book(book, at)
+    whole = float(valuation.market_value.sum())
+    if reinvestment.buffer > whole:
+        problems.add("--buffer", 0, 0, f"the minimum cash buffer {reinvestment.buffer:,.0f} is more than the whole "
+                                       f"book ({whole:,.0f})")
+        problems.raise_if_any()
     reinvestment = with_spread(reinvestment, book, valuation.spread)
     planner = _Planner(book, valuation, options, reinvestment)
-    projection, _, redeemed = planner.run(chosen, options.months)
+    projection, crossings = planner.crossings(chosen, options.months)
+    redeemed = planner.redeemed_on(planner.path(chosen))
     scenarios = income_scenarios(book, chosen) if with_income else ()
     income = []
     for done, s in enumerate(scenarios, start=1):
@@ -315,7 +350,15 @@ def plan_book(book: Book, at: dt.date | None = None, *, scenario: str | None = N
         notes.append("the cash-needs forecast ends before the horizon; later months show no needs")
     end = projection.periods.boundaries[-1]
     return CashPlan(book.name, valuation.as_of, chosen.name if chosen.parallel_bp != 0 else BASE, options,
-                    reinvestment, planner.h, projection, planner.expected(redeemed, end), tuple(income), tuple(notes))
+                    reinvestment, planner.h, projection, planner.expected(redeemed, end), tuple(income), tuple(notes),
+                    crossings)
+
+
+def plan_coverage(pr: Projection) -> NeedsCoverage:
+    """See ``CashPlan.coverage``."""
+    carried = np.concatenate([[0.0], (pr.sales - pr.reinvested)[:-1]])
+    return needs_coverage(pr.opening_cash[0], pr.fund_income + pr.coupons + pr.principal + carried, pr.needs,
+                          pr.sellable)
 
 
 # ---- records for json and csv --------------------------------------------------------------------
@@ -326,9 +369,11 @@ def _money(value) -> float | None:
 
 def period_records(plan: CashPlan) -> list[dict]:
     """One record a period: dates, every cash column (currency units), the reinvestment yield in
-    percent, the period's accrual income, and whether cash fell below the buffer (``tight``)."""
+    percent, the period's accrual income, whether cash fell below the buffer (``tight``), the cash
+    kept (buffer or liquidity floors) and the needs coverage (``covered``, ``by selling``, ``short``)."""
     pr = plan.projection
     buffer = plan.reinvestment.buffer
+    status = plan.coverage.status
     records = []
     for p in range(len(pr.periods)):
         records.append({
@@ -341,14 +386,15 @@ def period_records(plan: CashPlan) -> list[dict]:
             "cash_before_sales": _money(pr.available[p]), "income": _money(pr.income[p]),
             "reinvest_yield_pct": clean_number(100 * pr.reinvest_yield[p], 6),
             "tight": bool(pr.available[p] < buffer),
+            "cash_kept": _money(pr.floor[p]), "needs_status": str(status[p]),
         })
     return records
 
 
 def sale_records(plan: CashPlan, period: int | None = None) -> list[dict]:
     """The sales (of one period, or all), in selling order; money in currency units, prices per 100."""
-    h, pr = plan.holdings, plan.projection
-    return [{"period_end": str(pr.periods.end[s.period]), "id": h.id[s.row], "maturity_date": str(h.maturity[s.row]),
+    pr = plan.projection
+    return [{"period_end": str(pr.periods.end[s.period]), "id": s.id, "maturity_date": str(s.maturity),
              "face": _money(s.face), "clean_price": clean_number(s.clean_price, 6),
              "accrued": clean_number(s.accrued, 6), "proceeds": _money(s.proceeds),
              "realized_gain": _money(s.realized_gain)}
@@ -387,5 +433,13 @@ def plan_document(plan: CashPlan) -> dict:
                          "period": plan.options.period},
         "expected_calls": [{"id": c.id, "date": str(c.date), "call_price": clean_number(c.price, 6)} for c in plan.calls],
         "income_at_risk": income_records(plan),
+        "policy_crossings": crossing_records(plan.crossings),
         "notes": list(plan.notes),
     }
+
+
+def crossing_records(crossings) -> list[dict]:
+    """The limits a projection crosses, by period end."""
+    value = lambda x: clean_number(x, 6) if isinstance(x, float) else x  # noqa: E731
+    return [{"period_end": str(c.period_end), "rule": c.rule, "group": c.group, "actual": value(c.actual),
+             "limit": value(c.limit), "status": c.status} for c in crossings]

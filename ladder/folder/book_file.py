@@ -28,7 +28,7 @@ BOOK_FILE = "book.toml"
 DEFAULT_FILES = {"holdings": "holdings.csv", "curve": "curve.csv", "policy": "policy.toml",
                  "cash_needs": "cash_needs.csv", "scenarios": "scenarios.csv"}
 OPTIONAL_FILES = ("scenarios",)
-REINVEST_RULES = ("longest_rung", "target_tenor", "fund")
+REINVEST_RULES = ("match_needs", "longest_rung", "target_tenor", "fund")
 TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "reinvest", "model")
 SPREAD_BUCKETS = ("AAA", "AA", "A", "BBB", "A-1+", "A-1", "A-2", "A-3", "default")
 # Defaults of the callable model (Hull-White): see docs/methods.md for where they come from.
@@ -55,7 +55,7 @@ DEFAULT_SPREADS_BP: dict[str, dict[str, float]] = {
 class ReinvestSettings:
     """Where maturing money goes in the cash plan (``[reinvest]`` of book.toml)."""
 
-    rule: str = "longest_rung"
+    rule: str = "match_needs"
     target_tenor: str = "2Y"
     min_cash_buffer: float = 0.0
 
