@@ -25,6 +25,8 @@ def later_values(flows: CashFlows, spread, path: RatePath, dates) -> tuple[np.nd
     """(dirty value per 100, effective duration in years) of each holding on each of ``dates`` (m,):
     two (n, m) arrays; 0 once every flow is paid."""
     d = to_days(dates)
+    if not flows.mask.size:
+        return np.zeros((len(flows.mask), len(d))), np.zeros((len(flows.mask), len(d)))
     tau = days_between(d[None, None, :], flows.dates[:, :, None]) / 365.0          # (n, k, m)
     later = flows.mask[:, :, None] & (tau > 0)
     tau = np.where(later, tau, 0.0)

@@ -285,7 +285,8 @@ def _match(setup: PlanSetup, book: _Book, p: int, cash: float, held) -> np.ndarr
     ends, cum = now + to_maturity[order].astype("timedelta64[D]"), np.concatenate([[0.0], np.cumsum(value[order])])
     edge = lambda dates: cum[np.searchsorted(ends, dates, side="right")]  # noqa: E731
     q_dates = now + elapsed.astype("timedelta64[D]")
-    maturing = np.array([edge(q_dates + d) - edge(q_dates) for d, _ in lim.floors]).reshape(len(lim.floors), -1)
+    maturing = np.array([edge(q_dates + d) - edge(q_dates) for d, _ in lim.floors]).reshape(len(lim.floors),
+                                                                                          len(q_dates))
     outlook = Outlook(base=np.concatenate([[0.0], np.cumsum(inflow - needs)]), total=total, elapsed=elapsed,
                       maturing=maturing,
                       wam=(value[None, :] * np.maximum(to_maturity[None, :] - elapsed[:, None], 0.0)).sum(axis=1),
