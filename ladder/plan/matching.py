@@ -11,7 +11,8 @@ is the book's value then (price moves left out). Rows (all linear in x):
 - budget: sum x <= C - buffer (hard);
 - purchase-time limits at p, as in the ladder builder (``ladder.build.program``): the bought
   sector's share, sum x + S <= cap T (hard);
-- coverage, each q: cash_q >= buffer (soft, ``PENALTY``): the needs the ladder does not cover;
+- coverage, each q: cash_q >= buffer + ``COVER_MARGIN`` (soft, ``PENALTY``): the needs the ladder
+  does not cover;
 - the policy's limits on the book at each q (soft, ``LIMIT_PENALTY``): each liquidity floor
   (pct % within d days) cash_q + sum of x_j repaid within (q, q + d] + M_qd >= pct T_q, with M_qd what
   the book already has maturing then; the weighted average maturity
@@ -40,6 +41,7 @@ LONG_BONUS = 1.0
 PENALTY = 1000.0
 LIMIT_PENALTY = 100.0
 MARGIN = 1e-5           # limits kept this share of the book inside (the checker grades the same book)
+COVER_MARGIN = 1.0      # currency: needs covered with this to spare (the solver's tolerances are ~0.1 of it)
 
 
 @dataclass(frozen=True, eq=False)
@@ -98,7 +100,7 @@ def place(cash: float, buffer: float, fund_rate: float, menu: Tenors, book: Outl
     # cash_q = C + B_q + sum_j x_j (a_jq - 1): the coefficients of x in cash_q, (H, J)
     in_cash = (menu.back - 1.0).T
     cash_q = cash + book.base
-    soft(-in_cash, cash_q - buffer, PENALTY)                          # cash_q >= buffer
+    soft(-in_cash, cash_q - buffer - COVER_MARGIN, PENALTY)           # cash_q >= buffer
     hard_a.append(np.ones((1, J)))
     hard_b.append([spare])
     if policy.sector_room is not None:
