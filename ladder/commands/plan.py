@@ -6,7 +6,8 @@ from __future__ import annotations
 import argparse
 
 from ladder.analysis.plan import (
-    PLAN_MONTHS, PlanOptions, income_records, period_records, plan_book, plan_document, sale_records,
+    PLAN_MONTHS, PlanOptions, crossing_records, income_records, period_records, plan_book, plan_document,
+    sale_records,
 )
 from ladder.folder.book_file import REINVEST_RULES, load_book
 from ladder.commands.common import add_book
@@ -63,12 +64,19 @@ def _with_progress(work):
         return work(lambda done, total: bar.update(task, completed=done, total=total))
 
 
+def _value(x) -> str:
+    return fmt(x, 2) if isinstance(x, float) else str(x)
+
+
 def _table(plan) -> None:
     from rich.table import Table
 
     con = console()
     r = plan.reinvestment
     buy = "stays in the fund" if r.rule == "fund" else f"{r.tenor} {r.sector} at {r.spread_bp:+.1f} bp ({r.rule})"
+    if r.rule == "match_needs":
+        buy = (f"{r.sector} at {r.spread_bp:+.1f} bp placed to mature by the needs the ladder does not cover, "
+               f"the rest at {r.tenor} (match_needs)")
     con.print(f"[bold]{plan.book_name}[/bold]: cash plan from {plan.as_of}, scenario {plan.scenario}, "
               f"{len(plan.periods)} {plan.options.period}s; maturing money {buy}; cash buffer {fmt(r.buffer, 0)}; "
               f"rates {'stay as they are' if plan.options.rates == 'stay' else 'follow today' + chr(39) + 's forwards'}")
@@ -90,11 +98,15 @@ def _table(plan) -> None:
     if pr.net_flow[t] < 0:
         con.print(f"[bold]Tight period: {pr.periods.start[t]} to {pr.periods.end[t]}[/bold]: needs exceed what comes "
                   f"in by {fmt(-pr.net_flow[t], 0)}; cash before any sale {fmt(pr.available[t], 0)}.")
+    short = [x for x in period_records(plan) if x["needs_status"] != "covered"]
+    if short:
+        con.print("Needs not covered by cash and maturities: " + "; ".join(
+            f"{x['end'][:7]} {x['needs_status']}" for x in short))
     if first is None:
         con.print("No shortfall: cash and maturities meet every need without a sale.")
     else:
         con.print(f"[bold red]First shortfall: {pr.periods.start[first]} to {pr.periods.end[first]}: "
-                  f"{fmt(pr.shortfall[first], 0)} short without a sale.[/bold red] Sell (shortest, least loss first):")
+                  f"{fmt(pr.shortfall[first], 0)} short without a sale.[/bold red] Sell (least loss per unit of cash raised first, then the shortest):")
         sales = Table(header_style="bold")
         for title in ("Id", "Maturity", "Face", "Clean", "Proceeds", "Realized gain"):
             sales.add_column(title, justify="left" if title in ("Id", "Maturity") else "right")
@@ -107,6 +119,18 @@ def _table(plan) -> None:
         later = int((pr.shortfall > 0).sum()) - 1
         if later:
             con.print(f"{later} later period(s) also need sales (shortfall column).")
+    crossings = crossing_records(plan.crossings)
+    if crossings:
+        con.print(f"[bold red]The projected book crosses {len(crossings)} policy limit(s)[/bold red] "
+                  "(checked at each period's end by the same rules as 'ladder check'):")
+        cross = Table(header_style="bold")
+        for title in ("Period end", "Rule", "Group", "Actual", "Limit", "Status"):
+            cross.add_column(title, justify="right" if title in ("Actual", "Limit") else "left")
+        for c in crossings:
+            cross.add_row(c["period_end"], c["rule"], c["group"], _value(c["actual"]), _value(c["limit"]), c["status"])
+        print_whole(con, cross)
+    else:
+        con.print("The projected book stays within every policy limit at every period's end.")
     if plan.calls:
         con.print("Expected calls: " + "; ".join(f"{c.id} on {c.date} at {c.price:g}" for c in plan.calls))
     income = Table(title="Next 12 months: interest income (accrual) and total return", header_style="bold")
