@@ -24,7 +24,7 @@ import numpy as np
 
 from ladder.analysis.records import clean_number
 from ladder.analysis.valuation import Valuation, value_book
-from ladder.folder.book_file import Book
+from ladder.folder.book_file import REINVEST_RULES, Book
 from ladder.book.holdings import Holdings
 from ladder.errors import InputError, Problems
 from ladder.market.dates import NAT, to_days
@@ -359,6 +359,65 @@ def plan_coverage(pr: Projection) -> NeedsCoverage:
     carried = np.concatenate([[0.0], (pr.sales - pr.reinvested)[:-1]])
     return needs_coverage(pr.opening_cash[0], pr.fund_income + pr.coupons + pr.principal + carried, pr.needs,
                           pr.sellable)
+
+
+COMPARE_MONTHS = 24
+
+
+@dataclass(frozen=True)
+class RuleOutcome:
+    """One reinvestment rule under one scenario: accrual income over 12 and 24 months, forced sales
+    (proceeds) and their realized gain, and the number of policy limits the projection crosses."""
+
+    scenario: str
+    rule: str
+    income_12m: float
+    income_24m: float
+    forced_sales: float
+    realized_gain: float
+    crossings: int
+
+
+def compare_rules(book: Book, at: dt.date | None = None, *, options: PlanOptions = PlanOptions(),
+                  progress: Callable[[int, int], None] | None = None) -> tuple[RuleOutcome, ...]:
+    """Every reinvestment rule (``REINVEST_RULES``; ``target_tenor`` at book.toml's tenor) under the
+    base case and every scenario of ``scenario_choices``, over at least ``COMPARE_MONTHS`` months;
+    the options' sector and buffer apply to every rule. Scenario by scenario, rules in their order."""
+    problems = _option_problems(options)
+    rules = []
+    for rule in REINVEST_RULES:
+        try:
+            rules.append(resolve_reinvestment(book, at or book.valuation_date, rule, None, options.sector,
+                                              options.buffer))
+        except InputError as error:
+            problems.extend(error)
+    problems.raise_if_any()
+    valuation = value_book(book, at)
+    rules = [with_spread(r, book, valuation.spread) for r in rules]
+    months = max(options.months, COMPARE_MONTHS)
+    planner = _Planner(book, valuation, options, rules[0])
+    scenarios = list(scenario_choices(book).values())
+    out = []
+    for done, scenario in enumerate(scenarios, start=1):
+        for r in rules:
+            pr, crossings = planner.crossings(scenario, months, r)
+            name = scenario.name if scenario.parallel_bp != 0 else BASE
+            out.append(RuleOutcome(name, r.rule, float(pr.income[:INCOME_MONTHS].sum()),
+                                   float(pr.income[:COMPARE_MONTHS].sum()), float(pr.sales.sum()),
+                                   pr.realized_gain, len(crossings)))
+        if progress is not None:
+            progress(done, len(scenarios))
+    return tuple(out)
+
+
+def compare_records(outcomes) -> list[dict]:
+    """One record a scenario and rule, with the 24-month income against ``longest_rung``'s."""
+    reference = {o.scenario: o.income_24m for o in outcomes if o.rule == "longest_rung"}
+    return [{"scenario": o.scenario, "rule": o.rule, "income_12m": _money(o.income_12m),
+             "income_24m": _money(o.income_24m),
+             "income_24m_vs_longest_rung": _money(o.income_24m - reference.get(o.scenario, float("nan"))),
+             "forced_sales": _money(o.forced_sales), "realized_gain": _money(o.realized_gain),
+             "policy_crossings": o.crossings} for o in outcomes]
 
 
 # ---- records for json and csv --------------------------------------------------------------------

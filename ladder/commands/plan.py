@@ -6,7 +6,7 @@ from __future__ import annotations
 import argparse
 
 from ladder.analysis.plan import (
-    PLAN_MONTHS, PlanOptions, crossing_records, income_records, period_records, plan_book, plan_document,
+    PLAN_MONTHS, PlanOptions, compare_records, compare_rules, crossing_records, income_records, period_records, plan_book, plan_document,
     sale_records,
 )
 from ladder.folder.book_file import REINVEST_RULES, load_book
@@ -39,6 +39,8 @@ def add_parser(subparsers) -> None:
     parser.add_argument("--tenor", metavar="TENOR", help="tenor bought by the target_tenor rule, e.g. 6M or 2Y")
     parser.add_argument("--sector", metavar="SECTOR", help="sector bought when reinvesting (default: treasury)")
     parser.add_argument("--buffer", type=float, metavar="AMOUNT", help="minimum cash kept before reinvesting")
+    parser.add_argument("--compare", action="store_true",
+                        help="every reinvestment rule side by side under the base case and every scenario")
     parser.add_argument("--rates", choices=RULES, default="stay",
                         help="the curve after today: stays as it is (default) or follows today's forwards")
     parser.set_defaults(run=run)
@@ -48,20 +50,48 @@ def run(args) -> int:
     book = load_book(args.book)
     options = PlanOptions(months=args.months, period=args.period, rule=args.reinvest, tenor=args.tenor,
                           sector=args.sector, buffer=args.buffer, rates=args.rates)
+    if args.compare:
+        outcomes = _with_progress(lambda progress: compare_rules(book, args.at, options=options, progress=progress),
+                                  "rules side by side: scenarios")
+        records = compare_records(outcomes)
+        emit(args.format, lambda: {"as_of": str(args.at or book.valuation_date), "compare": records},
+             lambda: records, lambda: _compare_table(book, records))
+        return 0
     plan = _with_progress(lambda progress: plan_book(book, args.at, scenario=args.scenario, bp=args.bp,
                                                       options=options, progress=progress))
     emit(args.format, lambda: plan_document(plan), lambda: period_records(plan), lambda: _table(plan))
     return 0
 
 
-def _with_progress(work):
-    """Run ``work(progress)`` with a transient progress bar on stderr (the income-at-risk scenarios)."""
+def _with_progress(work, what: str = "income at risk: scenarios"):
+    """Run ``work(progress)`` with a transient progress bar on stderr (scenarios done)."""
     from rich.console import Console
     from rich.progress import Progress
 
     with Progress(console=Console(stderr=True), transient=True) as bar:
-        task = bar.add_task("income at risk: scenarios", total=None)
+        task = bar.add_task(what, total=None)
         return work(lambda done, total: bar.update(task, completed=done, total=total))
+
+
+def _compare_table(book, records) -> None:
+    from rich.table import Table
+
+    con = console()
+    table = Table(title=f"{book.name}: reinvestment rules side by side (accrual income; forced sales are "
+                        "proceeds of sales to cover shortfalls)", header_style="bold")
+    columns = [("scenario", "Scenario", None), ("rule", "Rule", None), ("income_12m", "Income 12m", 0),
+               ("income_24m", "Income 24m", 0), ("income_24m_vs_longest_rung", "vs longest_rung", 0),
+               ("forced_sales", "Forced sales", 0), ("realized_gain", "Realized gain", 0),
+               ("policy_crossings", "Policy crossings", None)]
+    for _, title, digits in columns:
+        table.add_column(title, justify="left" if title in ("Scenario", "Rule") else "right")
+    previous = None
+    for r in records:
+        table.add_row(*[("" if k == "scenario" and r[k] == previous else str(r[k])) if d is None else fmt(r[k], d, "")
+                        for k, _, d in columns], end_section=False)
+        previous = r["scenario"]
+    print_whole(con, table)
+    print_caution(con)
 
 
 def _value(x) -> str:
