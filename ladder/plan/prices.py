@@ -9,14 +9,15 @@ from b to the flow's accrual date (the measure ``ladder.pricing.cashflows`` uses
 clean(b) = dirty(b) less the interest accrued on b. As b nears maturity the clean price goes to the
 redemption price. Alongside, the effective duration on that curve: for flows fixed in amount,
 -dV/dz / V = sum tau x PV / sum PV (a parallel move of continuously compounded zero rates).
-All holdings and dates at once: (n, dates).
+All holdings at once for each date; the curve is evaluated once per whole day
+up to the last flow, from each date, and looked up.
 """
 
 from __future__ import annotations
 
 import numpy as np
 
-from ladder.market.dates import days_between, to_days
+from ladder.market.dates import to_days
 from ladder.plan.rates import RatePath
 from ladder.pricing.cashflows import CashFlows
 
@@ -27,11 +28,17 @@ def later_values(flows: CashFlows, spread, path: RatePath, dates) -> tuple[np.nd
     d = to_days(dates)
     if not flows.mask.size:
         return np.zeros((len(flows.mask), len(d))), np.zeros((len(flows.mask), len(d)))
-    tau = days_between(d[None, None, :], flows.dates[:, :, None]) / 365.0          # (n, k, m)
-    later = flows.mask[:, :, None] & (tau > 0)
-    tau = np.where(later, tau, 0.0)
+    flow_day = np.where(flows.mask, flows.dates, d[0]).astype(np.int64)
+    days = flow_day[:, :, None] - d.astype(np.int64)[None, None, :]                   # (n, k, m)
+    later = flows.mask[:, :, None] & (days > 0)
+    days = np.where(later, days, 0)
+    tau = days / 365.0
     z = np.asarray(spread, dtype=np.float64)[:, None, None]
-    df = path.discount(np.broadcast_to(d[None, None, :], tau.shape), tau) * np.exp(-z * tau)
+    df = np.empty(days.shape)
+    every = np.arange(int(days.max()) + 1)
+    for j, on in enumerate(d):            # the curve once per whole day seen from each date, then looked up
+        df[:, :, j] = path.discount(np.full(every.shape, on), every / 365.0)[days[:, :, j]]
+    df *= np.exp(-z * tau)
     pv = np.where(later, flows.amount[:, :, None] * df, 0.0)
     dirty = pv.sum(axis=1)
     duration = np.divide((pv * tau).sum(axis=1), dirty, out=np.zeros_like(dirty), where=dirty > 0)
