@@ -17,7 +17,7 @@ from __future__ import annotations
 import datetime as dt
 import difflib
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import cached_property
 
 import numpy as np
@@ -40,6 +40,7 @@ from ladder.plan.reinvestment import Reinvestment, resolve_reinvestment, with_sp
 from ladder.policy.liquidity import NeedsCoverage, needs_coverage
 from ladder.plan.returns import HorizonReturn, holdings_value, modified_dietz
 from ladder.pricing.amortization import Amortization, CallSchedule, amortize
+from ladder.pricing.cashflows import cash_flows
 from ladder.pricing.quotes import cf_rows
 from ladder.risk.scenarios import (
     DEFAULT_PARALLEL_BP, MAX_SHIFT_BP, Scenario, parallel, parallel_set, standard_non_parallel,
@@ -225,10 +226,27 @@ class _Planner:
         return self._amortizations[key]
 
     def holding_cash(self, periods: Periods, redeemed: np.ndarray) -> HoldingCash:
+        """The holdings' cash by period; a plan whose periods begin another's (12 months of a
+        24-month plan) takes its first columns."""
         key = (redeemed.tobytes(), periods.boundaries.tobytes())
         if key not in self._cash:
-            self._cash[key] = holding_cash(self.h, self.cf, periods, self.amortization(redeemed))
+            b = periods.boundaries
+            for (red, bounds), cash in self._cash.items():
+                longer = np.frombuffer(bounds, dtype=b.dtype)
+                if red == key[0] and len(longer) >= len(b) and (longer[:len(b)] == b).all():
+                    P = len(periods)
+                    self._cash[key] = replace(cash, coupon=cash.coupon[:, :P], principal=cash.principal[:, :P],
+                                              called=cash.called[:, :P], income=cash.income[:, :P],
+                                              cost=cash.cost[:, :P + 1], accrued=cash.accrued[:, :P + 1])
+                    break
+            else:
+                self._cash[key] = holding_cash(self.h, self.cf, periods, self.amortization(redeemed))
         return self._cash[key]
+
+    @cached_property
+    def flows_at_income_end(self):
+        """The cash-flow matrix of the holdings settled on the income horizon's last day."""
+        return cash_flows(self.h, horizon_end(self.as_of, INCOME_MONTHS))
 
     @cached_property
     def limits(self) -> PolicyLimits:
@@ -272,7 +290,7 @@ class _Planner:
         cash = self.holding_cash(projection.periods, redeemed)
         params = self.valuation.pricer.params
         held = holdings_value(self.h, projection.face_left, cash.end_date, self.spread, path, end, params,
-                              str(self.book.files["holdings"]))
+                              str(self.book.files["holdings"]), self.flows_at_income_end)
         bought = 0.0
         if projection.menu is not None:
             bought = float((projection.lot_path[-1] * projection.menu.dirty[:, :, -1]).sum() / 100.0)
