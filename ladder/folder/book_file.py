@@ -35,7 +35,7 @@ BOOK_FILE = "book.toml"
 DEFAULT_FILES = {"holdings": "holdings.csv", "curve": "curve.csv", "policy": "policy.toml",
                  "cash_needs": "cash_needs.csv", "scenarios": "scenarios.csv", "issuers": "issuers.csv"}
 OPTIONAL_FILES = ("scenarios", "issuers")
-REINVEST_RULES = ("longest_rung", "target_tenor", "fund")
+REINVEST_RULES = ("match_needs", "longest_rung", "target_tenor", "fund")
 TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "reinvest", "model", "history", "build")
 # The builder's purchases (common practice: the institutional round lot is 1,000,000 face).
 # MAX_TICKET refuses a figure typed with too many zeros.
@@ -83,7 +83,7 @@ DEFAULT_SPREADS_BP: dict[str, dict[str, float | dict[str, float]]] = {
 class ReinvestSettings:
     """Where maturing money goes in the cash plan (``[reinvest]`` of book.toml)."""
 
-    rule: str = "longest_rung"
+    rule: str = "match_needs"
     target_tenor: str = "2Y"
     min_cash_buffer: float = 0.0
 

@@ -14,7 +14,7 @@ measures (all percentages of the whole portfolio on the policy's basis):
 - portfolio.callable_max_pct, sectors.X.callable_max_pct: share of callable holdings.
 - portfolio.liquidity[i].min_pct: share maturing within ``within_days`` days.
 - portfolio.cash_needs_horizon_months: for each month of the horizon, fund balances plus cumulative
-  principal and coupons against cumulative net cash needs.
+  principal and coupons against cumulative net cash needs (``ladder.policy.liquidity``).
 - sectors: share of each sector the policy does not name (only when it names any); sectors.X.allowed:
   share of a sector the policy forbids (limit 0).
 - sectors.X.max_pct / min_pct: the sector's share; sectors.X.issuer_max_pct: each issuer family's
@@ -33,6 +33,7 @@ import numpy as np
 from ladder.book.cash_needs import CashNeeds
 from ladder.errors import Problems
 from ladder.market import ratings
+from ladder.policy.liquidity import needs_coverage
 from ladder.policy.measures import PositionMeasures, coverage_start
 from ladder.policy.model import MaturityLimit, Policy, issuer_key
 
@@ -319,11 +320,10 @@ class _Builder:
     def coverage(self, horizon: int):
         def measure(v: BookView) -> Measured:
             start = coverage_start(v.as_of)
-            flows = v.cash_by_month[~v.fund, :horizon].sum(axis=0)
-            available = v.market_value[v.fund].sum() + np.cumsum(flows)
-            need = np.cumsum(v.cash_needs.by_month(start, horizon))
+            cover = needs_coverage(v.market_value[v.fund].sum(), v.cash_by_month[~v.fund, :horizon].sum(axis=0),
+                                   v.cash_needs.by_month(start, horizon))
             months = start.astype("datetime64[M]") + np.arange(horizon)
-            return _measured(v.n, months.astype(str).astype(object), available, need)
+            return _measured(v.n, months.astype(str).astype(object), cover.cash, cover.needs)
         self.add("portfolio.cash_needs_horizon_months",
                  f"in each of the next {horizon} months, fund balances plus maturities and coupons received so far "
                  "cover the cash needs so far", "currency", 0.0, measure, upper=False, uses_basis=False,

@@ -1,5 +1,5 @@
 """The compliance certificate: the policy, every rule with its basis and timing, the exceptions and
-their cause, the six-month liquidity statement, where the prices came from, and signature lines."""
+their cause, the liquidity statement, where the prices came from, and signature lines."""
 
 from __future__ import annotations
 

@@ -78,7 +78,10 @@ def test_certificate_names_the_policy_the_exceptions_and_the_liquidity(first_mon
     assert {r[0] for r in exceptions.rows} == {r.rule for r in m.check.rules if r.status != "pass"}
     mun = exceptions.row("sectors.municipal.min_long_rating")
     assert "DEMO-MUN-0504" in mun[3] and "downgraded" in mun[3] and "cure by 2026-12-30" in mun[3]
-    assert len(liquidity.rows) == 6 and "six months" in notes
+    # the demo policy's cash-needs horizon is 12 months; the statement covers all of it, so it reaches
+    # the 2027-09 debt repayment the cash plan and the checker's rule read from the same coverage
+    assert len(liquidity.rows) == 12 and "12 months" in notes
+    assert {r[4] for r in liquidity.rows} == {"covered"}
     funds = m.valuation.market_value[book.holdings.kind == "fund"].sum()
     first = liquidity.rows[0]
     assert first[3] == pytest.approx(funds + first[1] - first[2], rel=1e-12, abs=0)
