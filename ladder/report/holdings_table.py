@@ -77,13 +77,22 @@ ACTIVITY_COLUMNS = (
     Column("date", "Date", "date"), Column("action", "Action"), Column("holding", "Holding"),
     Column("face", "Face", "money"), Column("amount", "Cash amount", "money"), Column("price", "Price", "price"),
     Column("reason", "Reason"), Column("recorded", "Recorded (UTC)"),
+    Column("book_value", "Book value (amortized cost)", "money"), Column("source", "Source"),
 )
+FROM_HOLDINGS = "taken from the holdings: purchase date in the period, no journal line"
 
 
-def activity_table(entries: tuple[JournalEntry, ...]) -> Table:
-    """The journal's entries of the period, in the order they were recorded."""
+def activity_table(entries: tuple[JournalEntry, ...], purchases=(), unexplained=()) -> Table:
+    """The journal's entries of the period, in the order they were recorded (those in ``unexplained``
+    marked), then ``purchases`` (``ladder.report.roll_forward.Purchase``) taken from the holdings."""
+    short = {id(e) for e in unexplained}
     rows = tuple((e.date, e.action, e.holding, _number(e.face), _number(e.amount), _number(e.price), e.reason,
-                  e.recorded) for e in entries)
+                  e.recorded, _number(e.book_value),
+                  "journal (unexplained: lacks amount or book value)" if id(e) in short else "journal")
+                 for e in entries)
+    rows += tuple((p.date, "buy", p.holding, p.face, None, None, FROM_HOLDINGS, "", _number(p.cost), "holdings")
+                  for p in purchases if p.source == "holdings")
     amounts = [r[4] for r in rows if r[4] is not None]
-    total = ("Total", f"{len(rows)} entries", None, None, float(sum(amounts)) if amounts else None, None, None, None)
+    total = ("Total", f"{len(rows)} entries", None, None, float(sum(amounts)) if amounts else None, None,
+             f"{len(short)} unexplained", None, None, None)
     return Table("Activity recorded in the journal", ACTIVITY_COLUMNS, rows, total)

@@ -33,6 +33,7 @@ from ladder.report.holdings_table import activity_table, holdings_table
 from ladder.report.income import income_projection, liquidity_statement
 from ladder.folder.journal import entries_between, journal_path, read_journal
 from ladder.report.model import Report, Section
+from ladder.report.roll_forward import RollForward, realized_table, roll_forward, roll_forward_notes, roll_forward_table
 from ladder.report.shock_table import shock_section
 from ladder.report.summary import summary_figures, summary_table
 from ladder.risk.scenarios import parallel_set
@@ -58,6 +59,7 @@ class MonthEnd:
     valuation: Valuation
     accounting: Accounting
     check: CheckResult
+    roll_forward: RollForward
 
 
 def previous_month_end(day: dt.date) -> dt.date:
@@ -104,9 +106,10 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
     a = accounting_figures(v, start)
     journal = read_journal(book)
     activity = entries_between(journal, start, v.as_of)
-    departed = departed_income(previous_holdings(book, previous) if previous else None, v.holdings.id, start,
-                               v.as_of, activity)
-    figures = summary_figures(v, a, previous, departed)
+    before = previous_holdings(book, previous) if previous else None
+    departed = departed_income(before, v.holdings.id, start, v.as_of, activity)
+    rolled = roll_forward(v, a, start, previous, before, departed, activity)
+    figures = summary_figures(v, a, previous, departed, rolled.realized_gain)
     year = history.year_snapshots(book, v.as_of)
     inputs = input_files(book)
     checksums = {f.role: (f.name, f.sha256) for f in inputs}
@@ -132,10 +135,13 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
                  "earliest call at the call price and reset if the bond is not called. Book yield: the effective "
                  "yield at purchase. Market yield: bond-equivalent yield at today's price. Share: of market value.",
                  *_missing_cost_note(v, a))),
-        Section("activity", "Activity", (activity_table(activity), departed_table(departed)),
-                (f"Every entry of {journal_path(book).name} dated in the period {period}, as recorded.",
+        Section("activity", "Activity",
+                (activity_table(activity, rolled.purchases, rolled.unexplained_entries), departed_table(departed),
+                 roll_forward_table(rolled), realized_table(rolled)),
+                (f"Every entry of {journal_path(book).name} dated in the period {period}, as recorded, then the "
+                 "purchases taken from the holdings file (purchase date in the period, no journal line).",
                  "Holdings in last month's snapshot that are no longer held earned interest until they left; "
-                 "that income is part of the period's income in the summary.")),
+                 "that income is part of the period's income in the summary.", *roll_forward_notes(rolled))),
         Section("allocation", "Allocation against limits",
                 (sector_table(book, check, v.market_value, weight), issuer_table(book, check, v.market_value, weight),
                  rating_table(book, check, v.market_value, weight)),
@@ -164,7 +170,7 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
         rules={r.rule: (r.status, None if r.limit is None else str(r.limit), None if r.actual is None else str(r.actual))
                for r in check.rules},
         inputs=checksums, document=report.to_json())
-    return MonthEnd(report, snapshot, inputs, v, a, check)
+    return MonthEnd(report, snapshot, inputs, v, a, check, rolled)
 
 
 def record_month_end(book: Book, m: MonthEnd):
