@@ -8,6 +8,7 @@ import numpy as np
 from ladder.analysis.valuation import Valuation
 from ladder.folder.book_file import Book
 from ladder.policy.results import BREACH, NEAR, PASS, REVIEW, CheckResult, RuleResult
+from ladder.report.findings import OpenFinding, escalation, findings_table
 from ladder.report.model import Column, Section, Table
 
 TESTING_WORDS = {"at_purchase": "percentage limits tested at the date of purchase",
@@ -96,7 +97,7 @@ def price_sources(book: Book, v: Valuation, checksums: dict[str, str]) -> list[s
 
 
 def certificate_section(book: Book, check: CheckResult, v: Valuation, liquidity: Table, liquidity_text: str,
-                        checksums: dict[str, str]) -> Section:
+                        checksums: dict[str, str], found: tuple[OpenFinding, ...] = ()) -> Section:
     p = book.policy
     counts = check.counts()
     summary = (f"Policy: {check.policy_title}. Percentages on {check.basis} value; "
@@ -111,5 +112,12 @@ def certificate_section(book: Book, check: CheckResult, v: Valuation, liquidity:
     notes = (summary, statement, "No exceptions." if not exceptions.rows else
              f"{len(exceptions.rows)} exception(s), listed with their cause.", liquidity_text,
              *price_sources(book, v, checksums))
-    return Section("certificate", "Compliance certificate", (rule_table(check), exceptions, liquidity), notes,
+    overdue = [f for f in found if f.overdue]
+    notes += tuple(f"ESCALATED: {f.rule} ({', '.join(f.holdings) or 'the portfolio'}) first detected "
+                   f"{f.first_detected.isoformat()}, {escalation(f)}." for f in overdue)
+    if found:
+        notes += ("Cure dates run from the month-end at which a finding was first detected (from the history), "
+                  "not from this report's date.",)
+    return Section("certificate", "Compliance certificate", (rule_table(check), exceptions, liquidity,
+                                                             findings_table(found)), notes,
                    signatures=SIGNATURES)

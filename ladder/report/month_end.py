@@ -28,6 +28,7 @@ from ladder.report.accounting import Accounting, accounting_figures
 from ladder.report.allocation import issuer_table, maturity_table, rating_table, sector_table
 from ladder.report.certificate import certificate_section
 from ladder.report.departed import departed_income, departed_table, previous_holdings
+from ladder.report.findings import open_findings
 from ladder.report.history import InputFile, Snapshot, input_file
 from ladder.report.holdings_table import activity_table, holdings_table
 from ladder.report.income import income_projection, liquidity_statement
@@ -100,7 +101,8 @@ def _missing_cost_note(v: Valuation, a: Accounting) -> tuple[str, ...]:
 def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
     """The month-end report of ``book`` at ``at`` (default: its valuation date)."""
     checked = check_book(book, at)
-    v, check = checked.valuation, checked.result
+    v = checked.valuation
+    check, found = open_findings(book, checked.result, book.policy.cure_days)
     previous = history.previous_snapshot(book, v.as_of)
     start = previous.as_of if previous else previous_month_end(v.as_of)
     a = accounting_figures(v, start)
@@ -158,7 +160,7 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
                  "balance; beside it the cash plan's accrual income with maturities reinvested by the book's rule "
                  "and shortfalls met by sales (ladder plan, base case). Coupons and principal by payment date.",),
                 (income_chart,)),
-        certificate_section(book, check, v, liquidity, liquidity_text, checksums),
+        certificate_section(book, check, v, liquidity, liquidity_text, checksums, found),
     )
     report = Report(f"{book.name}: month-end report at {v.as_of.isoformat()}", book.name, v.as_of, start, sections,
                     REPORT_CAUTIONS)

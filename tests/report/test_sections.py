@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import datetime as dt
+
 import numpy as np
 import pytest
 
@@ -73,11 +75,12 @@ def test_certificate_names_the_policy_the_exceptions_and_the_liquidity(first_mon
     cert = m.report.section("certificate")
     notes = " ".join(cert.notes)
     assert "version 2026.2" in notes and "adopted 2026-06-24" in notes
-    rules, exceptions, liquidity = cert.tables
+    rules, exceptions, liquidity, findings = cert.tables
     assert len(rules.rows) == len(m.check.rules)
     assert {r[0] for r in exceptions.rows} == {r.rule for r in m.check.rules if r.status != "pass"}
     mun = exceptions.row("sectors.municipal.min_long_rating")
     assert "DEMO-MUN-0504" in mun[3] and "downgraded" in mun[3] and "cure by 2026-12-30" in mun[3]
+    assert findings.row("sectors.municipal.min_long_rating")[3:6] == (dt.date(2026, 11, 30), dt.date(2026, 12, 30), 0)
     assert len(liquidity.rows) == 6 and "six months" in notes
     funds = m.valuation.market_value[book.holdings.kind == "fund"].sum()
     first = liquidity.rows[0]
