@@ -56,6 +56,7 @@ def holdings_rows(h: Holdings) -> list[dict[str, str]]:
             "first_call_date": _date(h.first_call[i]),
             "call_frequency": str(h.call_frequency[i]) if callable_ else "",
             "call_price": _number(h.call_price[i]) if callable_ else "",
+            "price_date": _date(h.price_date[i]),
         }
         if quote:
             row[quote[0]] = _number(h.quote[i], quote[1])

@@ -19,6 +19,7 @@ from dataclasses import dataclass
 from ladder import __version__
 from ladder.analysis.check import check_book, position_measures
 from ladder.analysis.plan import plan_book
+from ladder.analysis.price_dates import price_dates
 from ladder.analysis.shock import shock_book
 from ladder.analysis.valuation import Valuation
 from ladder.folder.book_file import BOOK_FILE, Book
@@ -106,6 +107,7 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
     previous = history.previous_snapshot(book, v.as_of)
     start = previous.as_of if previous else previous_month_end(v.as_of)
     a = accounting_figures(v, start)
+    prices = price_dates(v, book.valuation_date)
     journal = read_journal(book)
     activity = entries_between(journal, start, v.as_of)
     before = previous_holdings(book, previous) if previous else None
@@ -132,7 +134,7 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
                  f"({len(year)} earlier month-end(s) of {v.as_of.year} in the history).",
                  "Market value includes accrued interest; unrealized gain or loss is the clean value less the "
                  "amortized cost (effective-interest method).")),
-        Section("holdings", "Holdings detail", (holdings_table(v, a, str(book.files["holdings"])),),
+        Section("holdings", "Holdings detail", (holdings_table(v, a, str(book.files["holdings"]), prices),),
                 ("Amortized cost by the effective-interest method; a premium on a callable is amortized to its "
                  "earliest call at the call price and reset if the bond is not called. Book yield: the effective "
                  "yield at purchase. Market yield: bond-equivalent yield at today's price. Share: of market value.",
@@ -160,7 +162,7 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
                  "balance; beside it the cash plan's accrual income with maturities reinvested by the book's rule "
                  "and shortfalls met by sales (ladder plan, base case). Coupons and principal by payment date.",),
                 (income_chart,)),
-        certificate_section(book, check, v, liquidity, liquidity_text, checksums, found),
+        certificate_section(book, check, v, liquidity, liquidity_text, checksums, prices, found),
     )
     report = Report(f"{book.name}: month-end report at {v.as_of.isoformat()}", book.name, v.as_of, start, sections,
                     REPORT_CAUTIONS)
