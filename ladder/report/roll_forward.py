@@ -200,27 +200,32 @@ def roll_forward(v: Valuation, a: Accounting, start: dt.date, previous: Snapshot
 ROLL_COLUMNS = (Column("line", "Securities at amortized cost"), Column("amount", "Amount", "money"))
 
 
+def _cent(x: float) -> float:
+    """A difference to the cent (round-off below it is not a difference; -0.0 shown as 0)."""
+    return round(x, 2) + 0.0
+
+
 def roll_forward_table(r: RollForward) -> Table:
     rows = (
         ("Beginning amortized cost", r.beginning),
         ("+ Purchases at cost (journal)", r.purchases_journal),
         ("+ Purchases at cost (taken from the holdings: no journal line)", r.purchases_holdings),
-        ("- Amortized cost of what was sold", -r.left["sell"]),
-        ("- Amortized cost of what matured", -r.left["mature"]),
-        ("- Amortized cost of what was called", -r.left["call"]),
-        ("- Amortized cost of what was removed by import", -r.left["remove"]),
+        ("- Amortized cost of what was sold", 0.0 - r.left["sell"]),
+        ("- Amortized cost of what matured", 0.0 - r.left["mature"]),
+        ("- Amortized cost of what was called", 0.0 - r.left["call"]),
+        ("- Amortized cost of what was removed by import", 0.0 - r.left["remove"]),
         ("+ Accretion of discount", r.accretion),
-        ("- Amortization of premium", -r.amortization),
+        ("- Amortization of premium", 0.0 - r.amortization),
         ("+/- Face changed by import (amortized cost)", r.face_changes),
         ("= Ending amortized cost, computed", r.computed_ending),
         ("Ending amortized cost, valued", r.ending),
-        ("Unexplained (valued less computed)", r.unexplained),
+        ("Unexplained (valued less computed)", _cent(r.unexplained)),
         ("Ending amortized cost", r.ending),
         ("+ Unrealized gain or loss", r.unrealized_gain),
         ("+ Accrued interest", r.accrued),
         ("= Ending market value, computed", r.ending + r.unrealized_gain + r.accrued),
         ("Ending market value, valued", r.market_value),
-        ("Unexplained (valued less computed)", r.unexplained_market_value),
+        ("Unexplained (valued less computed)", _cent(r.unexplained_market_value)),
     )
     return Table("Roll-forward from the last month-end", ROLL_COLUMNS, rows)
 
