@@ -8,7 +8,8 @@ period (start, as_of]:
     purchase date falls in the period with no journal line, at book price x face / 100, marked)
   - amortized cost of what was sold, matured, called or removed (those journal lines' ``book_value``)
   + accretion of discount - amortization of premium (the effective-interest method's amortization in
-    the period: the holdings held now, and those that left during it up to the day they left)
+    the period: the holdings held now, those that left during it up to the day they left, and the
+    face sold or called out of a holding still held, up to that day)
   + changes of face by import (``change`` lines' ``book_value``: the amortized cost arrived (+) or left (-))
   = ending amortized cost (this report's valuation)
 
@@ -28,13 +29,14 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ladder.analysis.amortized import amortized_cost, original_cost
+from ladder.analysis.amortized import amortized_cost, original_cost, scheduled_rows
 from ladder.analysis.valuation import Valuation
 from ladder.book.holdings import Holdings
 from ladder.folder.journal import JournalEntry
 from ladder.report.accounting import Accounting
 from ladder.report.departed import Departed
 from ladder.report.history import Snapshot
+from ladder.pricing.amortization import amortize
 from ladder.report.model import Column, Table
 
 ARRIVALS = ("buy", "add")
@@ -172,6 +174,26 @@ def _beginning(h: Holdings, start: dt.date, previous: Snapshot | None, before: H
             f"{start.isoformat()} (what left the book in the period is not in it)")
 
 
+def _partial_exits(h: Holdings, start: dt.date, entries) -> np.ndarray:
+    """Accretion (+) or amortization (-) from the period start to the day it left of the face of a
+    holding still held that was partly sold or called in the period (currency, one a line): the
+    holding's own schedule, as the part left with it, on the face that left."""
+    at = {hid: i for i, hid in enumerate(h.id)}
+    lines = [e for e in entries if e.action in EXITS and e.holding in at and _finite(e.face)
+             and h.kind[at[e.holding]] != "fund"]
+    rows = np.array([at[e.holding] for e in lines], dtype=np.int64)
+    known = np.isin(rows, scheduled_rows(h, start))
+    out = np.zeros(len(lines))
+    if known.any():
+        sub = h.take(rows[known])
+        schedule = amortize(sub)
+        begin = np.datetime64(start, "D")
+        for k, (row, e) in enumerate(zip(np.flatnonzero(known), np.array(lines, dtype=object)[known])):
+            earned = schedule.earned(np.array([begin, np.datetime64(e.date, "D")]))
+            out[row] = earned.amortization[k, 0] * e.face / 100.0
+    return out
+
+
 def roll_forward(v: Valuation, a: Accounting, start: dt.date, previous: Snapshot | None, before: Holdings | None,
                  departed: Departed, entries: tuple[JournalEntry, ...]) -> RollForward:
     """The roll-forward of (start, v.as_of] (see the module docstring)."""
@@ -183,7 +205,7 @@ def roll_forward(v: Valuation, a: Accounting, start: dt.date, previous: Snapshot
     from_holdings = holdings_purchases(h, start, v.as_of, entries)
     left = {action: float(sum(e.book_value for e in entries if e.action == action and _finite(e.book_value)))
             for action in EXITS}
-    amort = np.concatenate([a.amortization[sec], departed.amortization])
+    amort = np.concatenate([a.amortization[sec], departed.amortization, _partial_exits(h, start, entries)])
     face_changes = float(sum(e.book_value for e in entries if e.action == "change" and _finite(e.book_value)))
     mv = float(v.market_value[sec].sum())
     return RollForward(

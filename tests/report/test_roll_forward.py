@@ -33,13 +33,16 @@ MATURED = {"DEMO-CP-0701": (dt.date(2026, 12, 8), 5_000_000.0, 5_000_000.0),
            "DEMO-CP-0702": (dt.date(2026, 12, 22), 5_000_000.0, 5_000_000.0)}
 
 
-def _december(folder, book) -> list[JournalEntry]:
-    """31 December as the treasurer records it: maturities, the bill sold, a new bill bought."""
+def _december(folder, book, share: float = 1.0) -> list[JournalEntry]:
+    """31 December as the treasurer records it: maturities, ``share`` of the bill sold, a new bill bought."""
     roll_to_next_month(folder, book)
     path = folder / "holdings.csv"
     with open(path, newline="", encoding="utf-8") as f:
         reader = csv.DictReader(f)
-        columns, rows = reader.fieldnames, [r for r in reader if r["id"] != SOLD]
+        columns, rows = reader.fieldnames, [r for r in reader if r["id"] != SOLD or share < 1]
+    for r in rows:
+        if r["id"] == SOLD:
+            r["face"] = str(10_000_000 * (1 - share))
     new = dict(next(r for r in rows if r["id"] == "DEMO-TSY-0103"))
     new.update(id=BOUGHT, face="4000000", maturity_date="2027-06-17", discount_rate_pct="3.55", book_price="98.5",
                purchase_date="2026-12-15")
@@ -49,8 +52,8 @@ def _december(folder, book) -> list[JournalEntry]:
         writer.writerows(rows + [new])
     entries = [JournalEntry(day, "mature", hid, face, amount, 100.0, "matured", book_value=face)
                for hid, (day, face, amount) in MATURED.items()]
-    entries.append(JournalEntry(dt.date(2026, 12, 15), "sell", SOLD, 10_000_000.0, 9_960_000.0, SOLD_PRICE,
-                                "sold", book_value=SOLD_BOOK))
+    entries.append(JournalEntry(dt.date(2026, 12, 15), "sell", SOLD, 10_000_000.0 * share, 9_960_000.0 * share,
+                                SOLD_PRICE, "sold", book_value=SOLD_BOOK * share))
     entries.append(JournalEntry(dt.date(2026, 12, 15), "buy", BOUGHT, 4_000_000.0, -3_940_000.0, 98.5, "bought",
                                 book_value=3_940_000.0))
     append_journal(folder, entries)
@@ -87,6 +90,17 @@ def test_the_roll_forward_ties_over_two_month_ends(tmp_path):
     assert cd.accrued == pytest.approx(CD_INTEREST, rel=0, abs=1e-6) and cd.gain == 0.0
     assert second.snapshot.figures["realized_gain"] == pytest.approx(5_298.24, rel=0, abs=CENT)
     record_month_end(december, second)
+
+
+def test_a_partial_sale_ties_too(tmp_path):
+    folder, book, _ = recorded_month_end(copy_demo(tmp_path / "tessaline"))
+    _december(folder, book, share=0.5)
+    r = month_end_report(load_book(folder)).roll_forward
+    # half the bill sold: half its amortized cost left, half its hand-computed gain realized
+    assert r.left["sell"] == pytest.approx(SOLD_BOOK / 2, rel=1e-12, abs=0)
+    assert r.realized_gain == pytest.approx((9_960_000.00 - SOLD_BOOK) / 2, rel=0, abs=1e-6)
+    # the half sold accreted from 30 November to 15 December before it left: still tied to the cent
+    assert abs(r.unexplained) < CENT and abs(r.unexplained_market_value) < CENT
 
 
 def test_older_journal_lines_are_unexplained_not_guessed(tmp_path):
