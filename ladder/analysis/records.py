@@ -50,8 +50,8 @@ def totals_record(v: Valuation) -> dict:
     return {
         "count": t.count, "face": clean_number(t.face, 2), "market_value": clean_number(t.market_value, 2),
         "cost": clean_number(t.cost, 2), "book_value": clean_number(t.book_value, 2),
-        "unrealized_gain": clean_number(t.unrealized_gain, 2),
-        "accrued": clean_number(t.accrued, 2), "ytm_pct": clean_number(100 * t.ytm, 8),
+        "unrealized_gain": clean_number(t.unrealized_gain, 2), "accrued": clean_number(t.accrued, 2),
+        "yield_to_worst_pct": clean_number(100 * t.yield_to_worst, 8),
         "book_yield_pct": clean_number(100 * t.book_yield, 8),
         "modified_duration": clean_number(t.modified_duration, 8),
         "effective_duration": clean_number(t.effective_duration, 8),

@@ -12,8 +12,8 @@ from ladder.analysis.price_dates import STALE_DAYS, PriceDates
 from ladder.report.findings import OpenFinding, escalation, findings_table
 from ladder.report.model import Column, Section, Table
 
-TESTING_WORDS = {"at_purchase": "percentage limits tested at the date of purchase",
-                 "at_all_times": "limits tested at all times"}
+TESTING_WORDS = {"at_purchase": "tested at the date of purchase (a drift or downgrade since is a review)",
+                 "continuous": "tested continuously"}
 SIGNATURES = ("Prepared by (name, title, signature, date)", "Reviewed by (name, title, signature, date)")
 
 
@@ -39,10 +39,9 @@ RULE_COLUMNS = (Column("rule", "Rule"), Column("text", "Limit in words"), Column
 
 
 def rule_table(check: CheckResult) -> Table:
-    timing = TESTING_WORDS.get(check.testing, check.testing)
-    rows = tuple((r.rule, r.text, _text(r.limit, r.unit), _text(r.actual, r.unit), r.status,
-                  f"{r.basis} value" if r.basis else "not a percentage",
-                  (timing if r.unit == "pct" else f"tested on {check.as_of.isoformat()}")
+    rows = tuple((r.rule, r.text + (f"; largest: {r.worst_group}" if r.per else ""), _text(r.limit, r.unit),
+                  _text(r.actual, r.unit), r.status, f"{r.basis} value" if r.basis else "not a percentage",
+                  TESTING_WORDS.get(r.testing, r.testing)
                   + (f"; cure by {r.cure_by.isoformat()}" if r.cure_by else "")) for r in check.rules)
     return Table("Rule by rule", RULE_COLUMNS, rows)
 
@@ -58,7 +57,7 @@ def _cause(r: RuleResult, book: Book) -> str:
             parts.append(f"{hid} rated {now}" + (f", {was} at purchase (downgraded since)" if was else ""))
         cause = "; ".join(parts)
     else:
-        groups = "; ".join(f"{f.group}: {_text(f.actual, r.unit)} against {_text(f.limit, r.unit)}"
+        groups = "; ".join(f"{f.label}: {_text(f.actual, r.unit)} against {_text(f.limit, r.unit)}"
                            for f in r.findings)
         cause = groups or f"{_text(r.actual, r.unit)} against {_text(r.limit, r.unit)}"
     what = {NEAR: "within the warning band of the limit (no action required)",
@@ -114,7 +113,8 @@ def certificate_section(book: Book, check: CheckResult, v: Valuation, liquidity:
     p = book.policy
     counts = check.counts()
     summary = (f"Policy: {check.policy_title}. Percentages on {check.basis} value; "
-               f"{TESTING_WORDS.get(check.testing, check.testing)}. Overall status at {check.as_of.isoformat()}: "
+               f"share limits {TESTING_WORDS.get(check.testing, check.testing)} unless a rule says otherwise "
+               "(each rule's timing below). Overall status at {check.as_of.isoformat()}: "
                f"{check.status.upper()} ({counts[PASS]} pass, {counts[NEAR]} near, {counts[REVIEW]} review, "
                f"{counts[BREACH]} breach).")
     statement = ("We certify that the holdings listed in this report were tested against every rule of the "

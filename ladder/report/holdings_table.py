@@ -19,7 +19,7 @@ HOLDING_COLUMNS = (
     Column("coupon", "Coupon", "pct"), Column("maturity", "Maturity", "date"), Column("next_call", "Next call", "date"),
     Column("face", "Face", "money"), Column("amortized_cost", "Amortized cost", "money"),
     Column("market_value", "Market value", "money"), Column("unrealized_gain", "Unrealized gain/loss", "money"),
-    Column("book_yield", "Book yield", "pct"), Column("market_yield", "Market yield", "pct"),
+    Column("book_yield", "Book yield", "pct"), Column("market_yield", "Yield to worst", "pct"),
     Column("rating", "Ratings"), Column("share", "Share of portfolio", "pct"),
     Column("price_date", "Price date", "date"), Column("stale", "Stale price"),
 )
@@ -62,7 +62,7 @@ def holdings_table(v: Valuation, a: Accounting, source: str, prices: PriceDates)
     h = v.holdings
     total_mv = float(v.market_value.sum())
     calls = next_calls(v, source)
-    market_yield = v.measures.bey
+    market_yield = v.yield_to_worst
     rows = []
     for i in range(len(h)):
         coupon = float(h.coupon[i]) if h.kind[i] in ("fixed", "at_maturity") else None
@@ -73,7 +73,7 @@ def holdings_table(v: Valuation, a: Accounting, source: str, prices: PriceDates)
                      f"stale: {int(prices.age_days[i])} days old" if prices.stale[i] else ""))
     total = ("Total", f"{len(h)} holdings", None, None, None, None, float(h.face.sum()),
              _number(np.nansum(a.amortized_cost)), total_mv, _number(np.nansum(a.unrealized_gain)),
-             _weighted(a.book_yield, a.amortized_cost), _number(v.totals.ytm), None, 1.0, prices.oldest,
+             _weighted(a.book_yield, a.amortized_cost), _number(v.totals.yield_to_worst), None, 1.0, prices.oldest,
              f"{int(prices.stale.sum())} stale")
     return Table("Holdings", HOLDING_COLUMNS, tuple(rows), total)
 

@@ -86,7 +86,7 @@ def _number(x):
 
 def _holding_figures(v: Valuation, a: Accounting) -> dict[str, dict]:
     fields = {"face": v.holdings.face, "market_value": v.market_value, "amortized_cost": a.amortized_cost,
-              "unrealized_gain": a.unrealized_gain, "book_yield": a.book_yield, "market_yield": v.measures.bey,
+              "unrealized_gain": a.unrealized_gain, "book_yield": a.book_yield, "market_yield": v.yield_to_worst,
               "effective_duration": v.effective_duration, "interest_earned": a.interest_earned}
     return {hid: {k: _number(x[i]) for k, x in fields.items()} for i, hid in enumerate(v.holdings.id)}
 
@@ -137,7 +137,7 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
         Section("holdings", "Holdings detail", (holdings_table(v, a, str(book.files["holdings"]), prices),),
                 ("Amortized cost by the effective-interest method; a premium on a callable is amortized to its "
                  "earliest call at the call price and reset if the bond is not called. Book yield: the effective "
-                 "yield at purchase. Market yield: bond-equivalent yield at today's price. Share: of market value.",
+                 "yield at purchase. Yield to worst: bond-equivalent yield at today's price, to the worst call date for a callable and to maturity otherwise. Share: of market value.",
                  *_missing_cost_note(v, a))),
         Section("activity", "Activity",
                 (activity_table(activity, rolled.purchases, rolled.unexplained_entries), departed_table(departed),

@@ -33,7 +33,7 @@ FIGURES = (
     ("interest_earned", "Income for the period (interest earned)", "money", True),
     ("departed_income", "of which: holdings that left the book in the period", "money", True),
     ("realized_gain", "Realized gain or loss (sales, maturities, calls against amortized cost)", "money", True),
-    ("market_yield", "Market yield (bond-equivalent, weighted by market value)", "pct", False),
+    ("market_yield", "Yield to worst (bond-equivalent, weighted by market value)", "pct", False),
     ("book_yield", "Book yield (effective yield, weighted by amortized cost)", "pct", False),
     ("effective_duration", "Effective duration, years", "years", False),
     ("modified_duration", "Modified duration, years", "years", False),
@@ -63,7 +63,7 @@ def summary_figures(v: Valuation, a: Accounting, previous: Snapshot | None, depa
         "coupon_income": a.total("coupon_income") + float(departed.coupon_income.sum()),
         "amortization": a.total("amortization") + float(departed.amortization.sum()),
         "interest_earned": a.total("interest_earned") + gone, "departed_income": gone, "realized_gain": realized_gain,
-        "market_yield": t.ytm, "book_yield": _weighted(a.book_yield, a.amortized_cost),
+        "market_yield": t.yield_to_worst, "book_yield": _weighted(a.book_yield, a.amortized_cost),
         "effective_duration": t.effective_duration, "modified_duration": t.modified_duration,
         "wam_days": t.wam_days, "dv01": t.dv01,
     }

@@ -42,8 +42,9 @@ def test_a_3_month_generic_corporate_does_not_out_yield_commercial_paper_of_its_
     candidates = generic_candidates(book, make_rungs("4x3M", book.policy, settle), settle).holdings
     v = value_book(book.with_holdings(candidates), settle)
     yields = dict(zip(candidates.id, v.measures.bey))
-    # Long buckets against the matching short bucket (common practice: AAA and AA ~ A-1+, A ~ A-1).
-    for long_bucket, short_bucket in (("AAA", "A-1+"), ("AA", "A-1+"), ("A", "A-1")):
+    # Long buckets against the matching short bucket (common practice: AA ~ A-1+, A ~ A-1, BBB ~ A-2); the
+    # generic corporates are the ratings a corporate issuer has (no AAA).
+    for long_bucket, short_bucket in (("AA", "A-1+"), ("A", "A-1"), ("BBB", "A-2")):
         corporate = yields[f"GENERIC-corporate-{long_bucket}-0-3M"]
         paper = yields[f"GENERIC-commercial_paper-{short_bucket}-0-3M"]
         assert corporate < paper, (long_bucket, corporate, paper)

@@ -115,7 +115,7 @@ def test_build_allow_sales_may_sell_and_never_does_worse(tmp_path, capsys):
                                                              rel=0, abs=0.05)
         assert doc["compliance"]["status"] != "breach"
     # every ladder the build without sales may choose is open to the one with sales
-    assert free["after"]["expected_yield_pct"] >= keep["after"]["expected_yield_pct"]
+    assert free["after"]["yield_to_worst_pct"] >= keep["after"]["yield_to_worst_pct"]
     assert (book / "holdings.csv").read_text() == (copy_demo(tmp_path / "again") / "holdings.csv").read_text()
 
 

@@ -283,7 +283,8 @@ def test_builder_accept_adds_the_proposed_holdings_and_save_writes_them(book_cop
         seen["unsaved"] = dict(app.unsaved)
 
     drive(book_copy, script)
-    assert seen["status"] == "built" and seen["shown"] == seen["trades"]
+    assert seen["status"] == "built" and [s.removesuffix(" (generic)") for s in seen["shown"]] == seen["trades"]
+    assert all(s.endswith(" (generic)") for s in seen["shown"] if s.startswith("GENERIC-"))
     assert len(seen["after"]) == seen["before"] + len(seen["trades"])
     assert seen["after"][-len(seen["trades"]):] == seen["trades"]
     assert seen["unsaved"] == {}
