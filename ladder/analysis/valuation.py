@@ -13,6 +13,7 @@ from dataclasses import dataclass, field, fields, replace
 
 import numpy as np
 
+from ladder.analysis.amortized import amortized_cost, original_cost
 from ladder.folder.book_file import Book
 from ladder.book.holdings import QUOTE_NONE, Holdings
 from ladder.errors import NothingToValue, Problems
@@ -40,7 +41,8 @@ class Totals:
     count: int
     face: float
     market_value: float
-    book_value: float
+    book_value: float                # amortized cost (effective-interest method)
+    cost: float                      # original cost
     unrealized_gain: float
     accrued: float
     yield_to_worst: float
@@ -67,8 +69,9 @@ class Valuation:
     market_value: np.ndarray
     measures: Measures
     dv01: np.ndarray
-    book_value: np.ndarray
-    unrealized_gain: np.ndarray
+    book_value: np.ndarray           # amortized cost, currency (ladder.analysis.amortized)
+    cost: np.ndarray                 # original cost: book price x face / 100, currency
+    unrealized_gain: np.ndarray      # market value - accrued - amortized cost
     book_yield: np.ndarray
     spread: np.ndarray
     effective_duration: np.ndarray
@@ -94,7 +97,8 @@ def _totals(v: Valuation) -> Totals:
     mv = v.market_value
     return Totals(
         count=len(v.holdings), face=float(v.holdings.face.sum()), market_value=float(mv.sum()),
-        book_value=float(np.nansum(v.book_value)), unrealized_gain=float(np.nansum(v.unrealized_gain)),
+        book_value=float(np.nansum(v.book_value)), cost=float(np.nansum(v.cost)),
+        unrealized_gain=float(np.nansum(v.unrealized_gain)),
         accrued=float((v.accrued * v.holdings.face / 100).sum()),
         yield_to_worst=_weighted(v.yield_to_worst, mv), book_yield=_weighted(v.book_yield, np.nan_to_num(v.book_value)),
         modified_duration=_weighted(v.measures.modified, mv), effective_duration=_weighted(v.effective_duration, mv),
@@ -177,11 +181,11 @@ def value_book(book: Book, at: dt.date | None = None) -> Valuation:
     measures = measures_from_dirty(h, cf, dirty)
     clean = dirty - cf.accrued
     face = h.face / 100.0
-    book_value = np.where(h.kind == "fund", h.face, h.book_price * face)
+    book_value = amortized_cost(h, settle)
     return Valuation(
         as_of=settle, holdings=h, curve=curve, pricer=pricer, clean=clean, accrued=cf.accrued, dirty=dirty,
         market_value=dirty * face, measures=measures, dv01=measures.modified * dirty * face * 1e-4,
-        book_value=book_value, unrealized_gain=clean * face - book_value, book_yield=_book_yields(h),
+        book_value=book_value, cost=original_cost(h), unrealized_gain=clean * face - book_value, book_yield=_book_yields(h),
         spread=spread, effective_duration=eff_dur, effective_convexity=eff_cx,
         days_to_maturity=np.where(h.kind == "fund", FUND_DAYS, days_between(np.datetime64(settle), h.maturity)),
         priced_from=np.where(quoted | (h.kind == "fund"), "quote", "curve").astype(object),

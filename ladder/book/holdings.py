@@ -70,6 +70,7 @@ class Holdings:
     call_frequency: np.ndarray      # int64: NO_CALL, 0 = once, else calls a year
     call_price: np.ndarray          # float64, per 100
     negotiable: np.ndarray          # bool: can be sold before maturity (see ``NOT_NEGOTIABLE``)
+    price_date: np.ndarray          # datetime64[D], date of the quote; NaT: the valuation date
     row: np.ndarray                 # int64, 1-based source row in the holdings file (0 if made in code)
 
     def __len__(self) -> int:
@@ -93,7 +94,7 @@ class Holdings:
 
 _TEXT_FIELDS = ("id", "sector", "issuer", "kind", "day_count", "rating", "short_rating",
                 "rating_at_purchase", "quote_type")
-_DATE_FIELDS = ("maturity", "issue_date", "first_coupon", "purchase_date", "first_call")
+_DATE_FIELDS = ("maturity", "issue_date", "first_coupon", "purchase_date", "first_call", "price_date")
 
 
 def make_holdings(**columns) -> Holdings:
@@ -134,7 +135,7 @@ def make_holdings(**columns) -> Holdings:
         issue_date=dates("issue_date"), first_coupon=dates("first_coupon"),
         rating=text("rating"), short_rating=text("short_rating"), rating_at_purchase=text("rating_at_purchase"),
         quote_type=text("quote_type"), quote=numbers("quote", np.nan), book_price=numbers("book_price", np.nan),
-        purchase_date=dates("purchase_date"), first_call=dates("first_call"),
+        purchase_date=dates("purchase_date"), first_call=dates("first_call"), price_date=dates("price_date"),
         call_frequency=numbers("call_frequency", NO_CALL, np.int64), call_price=numbers("call_price", 100.0),
         negotiable=_negotiable(columns.get("negotiable"), sector),
         row=numbers("row", 0, np.int64),

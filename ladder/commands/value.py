@@ -54,7 +54,8 @@ def _table(book, valuation) -> None:
     t = totals_record(valuation)
     con.print(
         f"[bold]Totals[/bold]  holdings {t['count']}  face {fmt(t['face'], 0)}  market value {fmt(t['market_value'], 0)}"
-        f"  book value {fmt(t['book_value'], 0)}  unrealized {fmt(t['unrealized_gain'], 0)}\n"
+        f"  cost {fmt(t['cost'], 0)}  book value (amortized cost) {fmt(t['book_value'], 0)}"
+        f"  unrealized {fmt(t['unrealized_gain'], 0)}\n"
         f"yield to worst (s.a. bond-equivalent, MV-weighted) {fmt(t['yield_to_worst_pct'], 3)}%  modified duration "
         f"{fmt(t['modified_duration'], 3)}  effective duration {fmt(t['effective_duration'], 3)}  convexity "
         f"{fmt(t['convexity'], 3)}  effective convexity {fmt(t['effective_convexity'], 3)}  DV01 {fmt(t['dv01'], 0)}"

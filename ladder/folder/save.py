@@ -57,6 +57,7 @@ def holdings_rows(h: Holdings) -> list[dict[str, str]]:
             "call_frequency": str(h.call_frequency[i]) if callable_ else "",
             "call_price": _number(h.call_price[i]) if callable_ else "",
             "negotiable": "" if h.negotiable[i] == (h.sector[i] not in NOT_NEGOTIABLE) else str(bool(h.negotiable[i])).lower(),
+            "price_date": _date(h.price_date[i]),
         }
         if quote:
             row[quote[0]] = _number(h.quote[i], quote[1])

@@ -8,6 +8,8 @@ import numpy as np
 from ladder.analysis.valuation import Valuation
 from ladder.folder.book_file import Book
 from ladder.policy.results import BREACH, NEAR, PASS, REVIEW, CheckResult, RuleResult
+from ladder.analysis.price_dates import STALE_DAYS, PriceDates
+from ladder.report.findings import OpenFinding, escalation, findings_table
 from ladder.report.model import Column, Section, Table
 
 TESTING_WORDS = {"at_purchase": "tested at the date of purchase (a drift or downgrade since is a review)",
@@ -74,14 +76,22 @@ def exceptions_table(check: CheckResult, book: Book) -> Table:
     return Table("Exceptions", EXCEPTION_COLUMNS, rows)
 
 
-def price_sources(book: Book, v: Valuation, checksums: dict[str, str]) -> list[str]:
+def _as_of(prices: PriceDates, v: Valuation) -> str:
+    if prices.oldest is None:
+        return f"No quoted prices; settlement {v.as_of.isoformat()}."
+    span = (prices.oldest.isoformat() if prices.oldest == prices.newest else
+            f"{prices.oldest.isoformat()} (oldest quote) to {prices.newest.isoformat()}")
+    return f"Prices as of {span}; settlement {v.as_of.isoformat()}."
+
+
+def price_sources(book: Book, v: Valuation, checksums: dict[str, str], prices: PriceDates) -> list[str]:
     """Where every price came from and when, and the inputs' checksums."""
     h = v.holdings
     quoted = (v.priced_from == "quote") & (h.kind != "fund")
     curve_priced = v.priced_from == "curve"
     files = book.files
     lines = [
-        f"Prices as of {book.valuation_date.isoformat()} (the book's valuation date), settlement {v.as_of.isoformat()}.",
+        _as_of(prices, v),
         f"{int(quoted.sum())} holdings priced from the quotes in {files['holdings'].name} (clean price, yield or "
         "discount rate as given there); callables among them at their option-adjusted spread.",
         f"{int(curve_priced.sum())} holdings with no quote priced from the government curve in {files['curve'].name} "
@@ -90,12 +100,16 @@ def price_sources(book: Book, v: Valuation, checksums: dict[str, str]) -> list[s
         f"{int((h.kind == 'fund').sum())} funds and sweeps at their balance.",
         "Prices are estimates; confirm them against the custodian's statement.",
     ]
+    stale = [f"{h.id[i]} ({prices.date[i]})" for i in np.flatnonzero(prices.stale)]
+    if stale:
+        lines.append(f"{len(stale)} stale price(s), more than {STALE_DAYS} days older than the valuation date "
+                     f"{prices.valuation_date.isoformat()}: " + ", ".join(stale) + ". Get current quotes.")
     lines += [f"Input {role}: {name} (SHA-256 {sha})" for role, (name, sha) in sorted(checksums.items())]
     return lines
 
 
 def certificate_section(book: Book, check: CheckResult, v: Valuation, liquidity: Table, liquidity_text: str,
-                        checksums: dict[str, str]) -> Section:
+                        checksums: dict[str, str], prices: PriceDates, found: tuple[OpenFinding, ...] = ()) -> Section:
     p = book.policy
     counts = check.counts()
     summary = (f"Policy: {check.policy_title}. Percentages on {check.basis} value; "
@@ -110,6 +124,13 @@ def certificate_section(book: Book, check: CheckResult, v: Valuation, liquidity:
     exceptions = exceptions_table(check, book)
     notes = (summary, statement, "No exceptions." if not exceptions.rows else
              f"{len(exceptions.rows)} exception(s), listed with their cause.", liquidity_text,
-             *price_sources(book, v, checksums))
-    return Section("certificate", "Compliance certificate", (rule_table(check), exceptions, liquidity), notes,
+             *price_sources(book, v, checksums, prices))
+    overdue = [f for f in found if f.overdue]
+    notes += tuple(f"ESCALATED: {f.rule} ({', '.join(f.holdings) or 'the portfolio'}) first detected "
+                   f"{f.first_detected.isoformat()}, {escalation(f)}." for f in overdue)
+    if found:
+        notes += ("Cure dates run from the month-end at which a finding was first detected (from the history), "
+                  "not from this report's date.",)
+    return Section("certificate", "Compliance certificate", (rule_table(check), exceptions, liquidity,
+                                                             findings_table(found)), notes,
                    signatures=SIGNATURES)

@@ -187,3 +187,20 @@ def input_content(book_or_folder, sha256: str) -> bytes:
     if row is None:
         raise KeyError(sha256)
     return bytes(row[0])
+
+
+def rule_statuses(book_or_folder, before: dt.date) -> list[tuple[dt.date, dict[str, str]]]:
+    """Every recorded month-end before ``before``, newest first, with each rule's status then."""
+    path = history_path(book_or_folder)
+    if not path.exists():
+        return []
+    with _connect(path) as conn:
+        if not conn.execute("SELECT name FROM sqlite_master WHERE name = 'rules'").fetchone():
+            return []
+        out: dict[str, dict[str, str]] = {}
+        for key, rule, status in conn.execute("SELECT as_of, rule, status FROM rules WHERE as_of < ? "
+                                              "ORDER BY as_of DESC", (before.isoformat(),)).fetchall():
+            out.setdefault(key, {})[rule] = status
+        dates = [key for (key,) in conn.execute("SELECT as_of FROM snapshots WHERE as_of < ? ORDER BY as_of DESC",
+                                                (before.isoformat(),)).fetchall()]
+    return [(dt.date.fromisoformat(key), out.get(key, {})) for key in dates]

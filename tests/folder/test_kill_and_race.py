@@ -78,7 +78,7 @@ def _build_apply(folder: Path, inputs: Inputs) -> None:
 CHANGES = {
     "trade": _workstation_trade,
     "roll": lambda folder, inputs: _cli("roll", str(folder), "--to", ROLL_TO),
-    "import": lambda folder, inputs: _cli("import", str(folder), str(inputs.custodian), "--apply"),
+    "import": lambda folder, inputs: _cli("import", str(folder), str(inputs.custodian), "--apply", "--yes"),
     "build": _build_apply,
     "curve": _workstation_curve,
 }

@@ -24,7 +24,7 @@ DEFAULTS = dict(
 )
 _DTYPES = dict(face=np.float64, coupon=np.float64, frequency=np.int64, quote=np.float64, book_price=np.float64,
                call_frequency=np.int64, call_price=np.float64, negotiable=bool, row=np.int64)
-_DATES = ("maturity", "issue_date", "first_coupon", "purchase_date", "first_call")
+_DATES = ("maturity", "issue_date", "first_coupon", "purchase_date", "first_call", "price_date")
 
 
 def holding(id: str, **fields) -> dict:
@@ -39,7 +39,7 @@ def book(rows: list[dict]) -> Holdings:
         if name == "row":
             columns[name] = np.arange(2, len(rows) + 2, dtype=np.int64)
             continue
-        values = [r[name] for r in rows]
+        values = [r.get(name, "NaT" if name == "price_date" else None) for r in rows]
         if name in _DATES:
             columns[name] = np.array(values, dtype="datetime64[D]")
         elif name in _DTYPES:

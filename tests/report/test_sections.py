@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import datetime as dt
+
 import numpy as np
 import pytest
 
@@ -73,7 +75,7 @@ def test_certificate_names_the_policy_the_exceptions_and_the_liquidity(first_mon
     cert = m.report.section("certificate")
     notes = " ".join(cert.notes)
     assert "version 2026.2" in notes and "adopted 2026-06-24" in notes
-    rules, exceptions, liquidity = cert.tables
+    rules, exceptions, liquidity, findings = cert.tables
     assert len(rules.rows) == len(m.check.rules)
     assert {r[0] for r in exceptions.rows} == {r.rule for r in m.check.rules if r.status != "pass"}
     mun = exceptions.row("sectors.municipal.min_long_rating")
@@ -82,6 +84,7 @@ def test_certificate_names_the_policy_the_exceptions_and_the_liquidity(first_mon
     # the 2027-09 debt repayment the cash plan and the checker's rule read from the same coverage
     assert len(liquidity.rows) == 12 and "12 months" in notes
     assert {r[4] for r in liquidity.rows} == {"covered"}
+    assert findings.row("sectors.municipal.min_long_rating")[3:6] == (dt.date(2026, 11, 30), dt.date(2026, 12, 30), 0)
     funds = m.valuation.market_value[book.holdings.kind == "fund"].sum()
     first = liquidity.rows[0]
     assert first[3] == pytest.approx(funds + first[1] - first[2], rel=1e-12, abs=0)
