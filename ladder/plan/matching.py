@@ -60,15 +60,16 @@ class Outlook:
 
 
 @dataclass(frozen=True)
-class Policy:
-    """The policy's limits the program keeps (None: not set): liquidity floors (days, pct), caps in
-    percent, WAM in days and duration in years; ``sector_room`` the bought sector's room now."""
+class PolicyLimits:
+    """The purchase-time limits the plan keeps, from the policy (None: not set). ``floors``:
+    (within days, min pct) liquidity floors; ``sector_cap_pct``: the bought sector's cap; WAM in days,
+    duration in years, the fund cap in percent."""
 
     floors: tuple[tuple[int, float], ...] = ()
+    sector_cap_pct: float | None = None
     wam_days: float | None = None
     duration_years: float | None = None
     fund_cap_pct: float | None = None
-    sector_room: float | None = None
 
 
 @dataclass(frozen=True, eq=False)
@@ -84,8 +85,10 @@ class Tenors:
     long_end: int
 
 
-def place(cash: float, buffer: float, fund_rate: float, menu: Tenors, book: Outlook, policy: Policy) -> np.ndarray:
-    """Amounts to buy of each tenor (J,), currency units; see the module docstring."""
+def place(cash: float, buffer: float, fund_rate: float, menu: Tenors, book: Outlook, policy: PolicyLimits,
+          sector_room: float | None) -> np.ndarray:
+    """Amounts to buy of each tenor (J,), currency units, with ``sector_room`` the bought sector's room
+    now (None: no cap); see the module docstring."""
     J, H = menu.back.shape
     spare = cash - buffer
     if J == 0 or spare <= 0:
@@ -103,9 +106,9 @@ def place(cash: float, buffer: float, fund_rate: float, menu: Tenors, book: Outl
     soft(-in_cash, cash_q - buffer - COVER_MARGIN, PENALTY)           # cash_q >= buffer
     hard_a.append(np.ones((1, J)))
     hard_b.append([spare])
-    if policy.sector_room is not None:
+    if sector_room is not None:
         hard_a.append(np.ones((1, J)))
-        hard_b.append([max(policy.sector_room, 0.0)])
+        hard_b.append([max(sector_room, 0.0)])
     margin = MARGIN * book.total
     for (within, pct), maturing in zip(policy.floors, book.maturing):
         # repaid within (q, q + d]: the tenor's days to repayment in (e_q, e_q + d]

@@ -32,24 +32,12 @@ import numpy as np
 
 from ladder.book.holdings import Holdings
 from ladder.plan.holding_flows import HoldingCash
-from ladder.plan.matching import MARGIN, Outlook, Policy, Tenors, place
+from ladder.plan.matching import MARGIN, Outlook, PolicyLimits, Tenors, place
 from ladder.plan.menu import Menu
 from ladder.plan.periods import Periods
 from ladder.plan.sales import Sale, choose_sales
 
 FUND_YEAR_DAYS = 365.0
-
-
-@dataclass(frozen=True)
-class PolicyLimits:
-    """The purchase-time limits the plan keeps, from the policy (None: not set). ``floors``:
-    (within days, min pct) liquidity floors; ``sector_cap_pct``: the bought sector's cap."""
-
-    floors: tuple[tuple[int, float], ...] = ()
-    sector_cap_pct: float | None = None
-    wam_days: float | None = None
-    duration_years: float | None = None
-    fund_cap_pct: float | None = None
 
 
 @dataclass(frozen=True, eq=False)
@@ -298,5 +286,5 @@ def _match(setup: PlanSetup, book: _Book, p: int, cash: float, held) -> np.ndarr
     days = (menu.maturity[:, p] - now).astype(np.float64)
     tenors = Tenors(menu.y[:, p], days, menu.duration[:, p, p + 1], back, setup.long_end)
     sector_room = None if lim.sector_cap_pct is None else lim.sector_cap_pct / 100.0 * total[0] - value[in_sector].sum()
-    policy = Policy(lim.floors, lim.wam_days, lim.duration_years, lim.fund_cap_pct, sector_room)
-    return place(cash, setup.buffer, float(setup.fund_rate[min(p + 1, len(periods) - 1)]), tenors, outlook, policy)
+    return place(cash, setup.buffer, float(setup.fund_rate[min(p + 1, len(periods) - 1)]), tenors, outlook, lim,
+                 sector_room)
