@@ -26,7 +26,8 @@ def position_measures(book: Book, v: Valuation) -> PositionMeasures:
     return PositionMeasures(v.holdings, np.datetime64(v.as_of), v.market_value, v.book_value, v.effective_duration,
                             v.days_to_maturity,
                             cash_by_month(v.pricer.cash_flows, v.holdings.face, v.as_of, coverage_months(book)),
-                            holdings_file=str(book.files["holdings"]))
+                            holdings_file=str(book.files["holdings"]),
+                            family=book.families.families(v.holdings.issuer))
 
 
 @dataclass(frozen=True, eq=False)

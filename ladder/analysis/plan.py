@@ -20,14 +20,14 @@ from __future__ import annotations
 import datetime as dt
 import difflib
 from collections.abc import Callable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import cached_property
 
 import numpy as np
 
 from ladder.analysis.records import clean_number
 from ladder.analysis.valuation import Valuation, value_book
-from ladder.folder.book_file import Book
+from ladder.folder.book_file import REINVEST_RULES, Book
 from ladder.pricing.spreads import RATING_BUCKETS
 from ladder.book.holdings import Holdings
 from ladder.errors import InputError, Problems
@@ -35,13 +35,18 @@ from ladder.market.dates import NAT, to_days
 from ladder.plan.calls import expected_calls
 from ladder.plan.holding_flows import HoldingCash, holding_cash
 from ladder.plan.periods import STEPS, Periods, horizon_end, make_periods
-from ladder.plan.projection import PlanSetup, Projection, project
+from ladder.plan.crossings import Crossing, projected_crossings
+from ladder.plan.menu import make_menu
+from ladder.plan.prices import later_values
+from ladder.plan.projection import PlanSetup, PolicyLimits, Projection, project
 from ladder.plan.rates import RULES, RatePath
 from ladder.plan.reinvestment import Reinvestment, resolve_reinvestment, with_spread
+from ladder.policy.liquidity import NeedsCoverage, needs_coverage
 from ladder.plan.returns import HorizonReturn, holdings_value, modified_dietz
 from ladder.pricing.amortization import Amortization, CallSchedule, amortize
+from ladder.pricing.cashflows import cash_flows
 from ladder.pricing.quotes import cf_rows
-from ladder.risk.credit import at_spread, credit_set
+from ladder.risk.credit import credit_set
 from ladder.risk.scenarios import (
     DEFAULT_PARALLEL_BP, MAX_SHIFT_BP, Scenario, parallel, parallel_set, standard_non_parallel,
 )
@@ -99,6 +104,14 @@ class CashPlan:
     calls: tuple[ExpectedCall, ...]
     income_at_risk: tuple[ScenarioIncome, ...]
     notes: tuple[str, ...]
+    crossings: tuple[Crossing, ...] = ()
+
+    @property
+    def coverage(self) -> NeedsCoverage:
+        """The plan's needs coverage by period (``ladder.policy.liquidity``): opening cash, then what
+        comes in each period less the reinvestment and plus the sales of the period before (so that
+        the cumulative cash is the cash before each period's sales), and what could be sold."""
+        return plan_coverage(self.projection)
 
     @property
     def periods(self) -> Periods:
@@ -255,31 +268,64 @@ class _Planner:
         return self._amortizations[key]
 
     def holding_cash(self, periods: Periods, redeemed: np.ndarray) -> HoldingCash:
+        """The holdings' cash by period; a plan whose periods begin another's (12 months of a
+        24-month plan) takes its first columns."""
         key = (redeemed.tobytes(), periods.boundaries.tobytes())
         if key not in self._cash:
-            self._cash[key] = holding_cash(self.h, self.cf, periods, self.amortization(redeemed))
+            b = periods.boundaries
+            for (red, bounds), cash in self._cash.items():
+                longer = np.frombuffer(bounds, dtype=b.dtype)
+                if red == key[0] and len(longer) >= len(b) and (longer[:len(b)] == b).all():
+                    P = len(periods)
+                    self._cash[key] = replace(cash, coupon=cash.coupon[:, :P], principal=cash.principal[:, :P],
+                                              called=cash.called[:, :P], income=cash.income[:, :P],
+                                              cost=cash.cost[:, :P + 1], accrued=cash.accrued[:, :P + 1])
+                    break
+            else:
+                self._cash[key] = holding_cash(self.h, self.cf, periods, self.amortization(redeemed))
         return self._cash[key]
 
-    def sale_clean(self, scenario: Scenario, path: RatePath) -> np.ndarray:
-        """Valuation prices under the scenario: today's clean prices on the moved curve at the moved spreads."""
-        if not np.any(scenario.shift_bp_by_tenor) and not scenario.spread_moves:
-            return self.valuation.clean[self.rows]
-        pricer = at_spread(self.valuation.pricer, scenario.spread_shift_bp(self.book.holdings) / 1e4)
-        return pricer.dirty(path.curve)[self.rows] - self.cf.accrued
+    @cached_property
+    def flows_at_income_end(self):
+        """The cash-flow matrix of the holdings settled on the income horizon's last day."""
+        return cash_flows(self.h, horizon_end(self.as_of, INCOME_MONTHS))
 
-    def run(self, scenario: Scenario, months: int) -> tuple[Projection, RatePath, np.ndarray]:
+    @cached_property
+    def limits(self) -> PolicyLimits:
+        """The policy's purchase-time limits the plan keeps (``ladder.plan.projection``)."""
+        policy, pf = self.book.policy, self.book.policy.portfolio
+        bought, fund = policy.sector(self.reinvestment.sector), policy.sector("fund")
+        return PolicyLimits(floors=tuple((f.within_days, f.min_pct) for f in pf.liquidity),
+                            sector_cap_pct=bought.max_pct if bought is not None else None,
+                            wam_days=pf.max_wam_days, duration_years=pf.max_effective_duration,
+                            fund_cap_pct=fund.max_pct if fund is not None else None)
+
+    def setup(self, scenario: Scenario, months: int, reinvestment: Reinvestment | None = None):
+        """(the projection's setup, the scenario's rate path, expected call dates)."""
         periods = make_periods(self.as_of, months, self.options.period)
         path = self.path(scenario)
         redeemed = self.redeemed_on(path, self.spread + self.spread_move(scenario))
         cash = self.holding_cash(periods, redeemed)
-        r = self.reinvestment
+        r = reinvestment or self.reinvestment
         spread_bp = r.spread_bp + reinvestment_move_bp(self.book, scenario, r.sector)
-        purchases = None if r.rule == "fund" else path.purchase_terms(periods.end, r.months, spread_bp / 1e4)
+        menu = None if r.rule == "fund" else make_menu(path, periods, r.menu, r.sector, spread_bp / 1e4)
+        long_end = -1 if menu is None else int(np.searchsorted(menu.months, r.months))
         shift = path.short_rate(periods.boundaries[:-1]) - self.base_short
-        setup = PlanSetup(periods, self.h, cash, self.sale_clean(scenario, path), self.opening_cash,
-                          periods.total(self.need_dates, self.need_amounts),
-                          np.maximum(self.fund_yield + shift, 0.0), purchases, r.buffer)
+        dirty, duration = later_values(cash.flows, self.spread + self.spread_move(scenario), path, periods.boundaries)
+        setup = PlanSetup(periods, self.h, cash, dirty, duration, self.opening_cash,
+                          periods.total(self.need_dates, self.need_amounts), np.maximum(self.fund_yield + shift, 0.0),
+                          menu, r.rule, long_end, r.buffer, self.limits)
+        return setup, path, redeemed
+
+    def run(self, scenario: Scenario, months: int, reinvestment: Reinvestment | None = None):
+        setup, path, redeemed = self.setup(scenario, months, reinvestment)
         return project(setup), path, redeemed
+
+    def crossings(self, scenario: Scenario, months: int, reinvestment: Reinvestment | None = None):
+        """(projection, the limits it crosses by period)."""
+        setup, _, _ = self.setup(scenario, months, reinvestment)
+        projection = project(setup)
+        return projection, projected_crossings(self.book.policy, self.book.holdings, setup, projection)
 
     def income(self, scenario: Scenario) -> ScenarioIncome:
         projection, path, redeemed = self.run(scenario, INCOME_MONTHS)
@@ -287,10 +333,10 @@ class _Planner:
         cash = self.holding_cash(projection.periods, redeemed)
         params = self.valuation.pricer.params
         held = holdings_value(self.h, projection.face_left, cash.end_date, self.spread + self.spread_move(scenario),
-                              path, end, params, str(self.book.files["holdings"]))
+                              path, end, params, str(self.book.files["holdings"]), self.flows_at_income_end)
         bought = 0.0
-        if projection.purchases is not None:
-            bought = float((projection.purchases.value(path, end) * projection.reinvested / 100.0).sum())
+        if projection.menu is not None:
+            bought = float((projection.lot_path[-1] * projection.menu.dirty[:, :, -1]).sum() / 100.0)
         start_value = float(self.valuation.market_value[self.rows].sum()) + self.opening_cash
         end_value = held + bought + float(projection.closing_cash[-1])
         horizon = modified_dietz(start_value, end_value, self.as_of, end, self.need_dates, -self.need_amounts,
@@ -336,9 +382,15 @@ def plan_book(book: Book, at: dt.date | None = None, *, scenario: str | None = N
         problems.extend(error)
     problems.raise_if_any()
     valuation = value_book(book, at)
+    whole = float(valuation.market_value.sum())
+    if reinvestment.buffer > whole:
+        problems.add("--buffer", 0, 0, f"the minimum cash buffer {reinvestment.buffer:,.0f} is more than the whole "
+                                       f"book ({whole:,.0f})")
+        problems.raise_if_any()
     reinvestment = with_spread(reinvestment, book, valuation.spread)
     planner = _Planner(book, valuation, options, reinvestment)
-    projection, _, redeemed = planner.run(chosen, options.months)
+    projection, crossings = planner.crossings(chosen, options.months)
+    redeemed = planner.redeemed_on(planner.path(chosen), planner.spread + planner.spread_move(chosen))
     scenarios = income_scenarios(book, chosen) if with_income else ()
     income = []
     for done, s in enumerate(scenarios, start=1):
@@ -362,7 +414,74 @@ def plan_book(book: Book, at: dt.date | None = None, *, scenario: str | None = N
         notes.append("the cash-needs forecast ends before the horizon; later months show no needs")
     end = projection.periods.boundaries[-1]
     return CashPlan(book.name, valuation.as_of, chosen.name if chosen.parallel_bp != 0 else BASE, options,
-                    reinvestment, planner.h, projection, planner.expected(redeemed, end), tuple(income), tuple(notes))
+                    reinvestment, planner.h, projection, planner.expected(redeemed, end), tuple(income), tuple(notes),
+                    crossings)
+
+
+def plan_coverage(pr: Projection) -> NeedsCoverage:
+    """See ``CashPlan.coverage``."""
+    carried = np.concatenate([[0.0], (pr.sales - pr.reinvested)[:-1]])
+    return needs_coverage(pr.opening_cash[0], pr.fund_income + pr.coupons + pr.principal + carried, pr.needs,
+                          pr.sellable)
+
+
+COMPARE_MONTHS = 24
+
+
+@dataclass(frozen=True)
+class RuleOutcome:
+    """One reinvestment rule under one scenario: accrual income over 12 and 24 months, forced sales
+    (proceeds) and their realized gain, and the number of policy limits the projection crosses."""
+
+    scenario: str
+    rule: str
+    income_12m: float
+    income_24m: float
+    forced_sales: float
+    realized_gain: float
+    crossings: int
+
+
+def compare_rules(book: Book, at: dt.date | None = None, *, options: PlanOptions = PlanOptions(),
+                  progress: Callable[[int, int], None] | None = None) -> tuple[RuleOutcome, ...]:
+    """Every reinvestment rule (``REINVEST_RULES``; ``target_tenor`` at book.toml's tenor) under the
+    base case and every scenario of ``scenario_choices``, over at least ``COMPARE_MONTHS`` months;
+    the options' sector and buffer apply to every rule. Scenario by scenario, rules in their order."""
+    problems = _option_problems(options)
+    rules = []
+    for rule in REINVEST_RULES:
+        try:
+            rules.append(resolve_reinvestment(book, at or book.valuation_date, rule, None, options.sector,
+                                              options.buffer))
+        except InputError as error:
+            problems.extend(error)
+    problems.raise_if_any()
+    valuation = value_book(book, at)
+    rules = [with_spread(r, book, valuation.spread) for r in rules]
+    months = max(options.months, COMPARE_MONTHS)
+    planner = _Planner(book, valuation, options, rules[0])
+    scenarios = list(scenario_choices(book).values())
+    out = []
+    for done, scenario in enumerate(scenarios, start=1):
+        for r in rules:
+            pr, crossings = planner.crossings(scenario, months, r)
+            name = scenario.name if scenario.parallel_bp != 0 else BASE
+            out.append(RuleOutcome(name, r.rule, float(pr.income[:INCOME_MONTHS].sum()),
+                                   float(pr.income[:COMPARE_MONTHS].sum()), float(pr.sales.sum()),
+                                   pr.realized_gain, len(crossings)))
+        if progress is not None:
+            progress(done, len(scenarios))
+    return tuple(out)
+
+
+def compare_records(outcomes) -> list[dict]:
+    """One record a scenario and rule, with the 24-month income against ``longest_rung``'s."""
+    reference = {o.scenario: o.income_24m for o in outcomes if o.rule == "longest_rung"}
+    return [{"scenario": o.scenario, "rule": o.rule, "income_12m": _money(o.income_12m),
+             "income_24m": _money(o.income_24m),
+             "income_24m_vs_longest_rung": _money(o.income_24m - reference.get(o.scenario, float("nan"))),
+             "forced_sales": _money(o.forced_sales), "realized_gain": _money(o.realized_gain),
+             "policy_crossings": o.crossings} for o in outcomes]
 
 
 # ---- records for json and csv --------------------------------------------------------------------
@@ -373,9 +492,11 @@ def _money(value) -> float | None:
 
 def period_records(plan: CashPlan) -> list[dict]:
     """One record a period: dates, every cash column (currency units), the reinvestment yield in
-    percent, the period's accrual income, and whether cash fell below the buffer (``tight``)."""
+    percent, the period's accrual income, whether cash fell below the buffer (``tight``), the cash
+    kept (buffer or liquidity floors) and the needs coverage (``covered``, ``by selling``, ``short``)."""
     pr = plan.projection
     buffer = plan.reinvestment.buffer
+    status = plan.coverage.status
     records = []
     for p in range(len(pr.periods)):
         records.append({
@@ -388,14 +509,15 @@ def period_records(plan: CashPlan) -> list[dict]:
             "cash_before_sales": _money(pr.available[p]), "income": _money(pr.income[p]),
             "reinvest_yield_pct": clean_number(100 * pr.reinvest_yield[p], 6),
             "tight": bool(pr.available[p] < buffer),
+            "cash_kept": _money(pr.floor[p]), "needs_status": str(status[p]),
         })
     return records
 
 
 def sale_records(plan: CashPlan, period: int | None = None) -> list[dict]:
     """The sales (of one period, or all), in selling order; money in currency units, prices per 100."""
-    h, pr = plan.holdings, plan.projection
-    return [{"period_end": str(pr.periods.end[s.period]), "id": h.id[s.row], "maturity_date": str(h.maturity[s.row]),
+    pr = plan.projection
+    return [{"period_end": str(pr.periods.end[s.period]), "id": s.id, "maturity_date": str(s.maturity),
              "face": _money(s.face), "clean_price": clean_number(s.clean_price, 6),
              "accrued": clean_number(s.accrued, 6), "proceeds": _money(s.proceeds),
              "realized_gain": _money(s.realized_gain)}
@@ -434,5 +556,13 @@ def plan_document(plan: CashPlan) -> dict:
                          "period": plan.options.period},
         "expected_calls": [{"id": c.id, "date": str(c.date), "call_price": clean_number(c.price, 6)} for c in plan.calls],
         "income_at_risk": income_records(plan),
+        "policy_crossings": crossing_records(plan.crossings),
         "notes": list(plan.notes),
     }
+
+
+def crossing_records(crossings) -> list[dict]:
+    """The limits a projection crosses, by period end."""
+    value = lambda x: clean_number(x, 6) if isinstance(x, float) else x  # noqa: E731
+    return [{"period_end": str(c.period_end), "rule": c.rule, "group": c.group, "actual": value(c.actual),
+             "limit": value(c.limit), "status": c.status} for c in crossings]

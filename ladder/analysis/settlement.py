@@ -25,7 +25,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 
 from ladder.analysis.valuation import value_book
-from ladder.errors import InputError, Problems
+from ladder.errors import Problems
 from ladder.folder.book_file import Book
 from ladder.folder.journal import JournalEntry
 from ladder.book.holdings import Holdings

@@ -21,7 +21,8 @@ from ladder.market.ratings import explain_long, explain_short, tokens
 REQUIRED = ("id", "sector", "issuer", "face", "maturity_date")
 OPTIONAL = ("kind", "coupon_pct", "frequency", "day_count", "issue_date", "first_coupon_date",
             "rating", "short_rating", "rating_at_purchase", "price", "yield_pct", "discount_rate_pct",
-            "book_price", "purchase_date", "first_call_date", "call_frequency", "call_price")
+            "book_price", "purchase_date", "first_call_date", "call_frequency", "call_price", "negotiable",
+            "price_date")
 COLUMNS = REQUIRED + OPTIONAL
 QUOTE_COLUMNS = {"price": "price", "yield_pct": "yield", "discount_rate_pct": "discount"}
 CALL_FREQUENCIES = (0,) + FREQUENCIES
@@ -58,7 +59,8 @@ def _parse_rows(table: Table, valuation: dt.date, problems: Problems, cash_accou
     out: dict[str, list] = {name: [] for name in (
         "id", "sector", "issuer", "kind", "face", "maturity", "coupon", "frequency", "day_count",
         "issue_date", "first_coupon", "rating", "short_rating", "rating_at_purchase", "quote_type",
-        "quote", "book_price", "purchase_date", "first_call", "call_frequency", "call_price", "row")}
+        "quote", "book_price", "purchase_date", "first_call", "call_frequency", "call_price", "negotiable", "price_date",
+        "row")}
     first_row_of: dict[str, int] = {}
     for index in range(len(table.rows)):
         row = index + 2
@@ -125,12 +127,31 @@ def _parse_row(cells: CellReader, text: dict, at: dict, row: int, valuation: dt.
     if book_price is not None and not purchase:
         cells.error(row, at["purchase_date"] or at["book_price"], "book_price needs a purchase_date")
     first_call, call_frequency, call_price = _call(cells, text, at, row, kind, maturity)
+    negotiable = _negotiable(cells, text["negotiable"], row, at["negotiable"])
+    price_date = cells.date(text["price_date"], row, at["price_date"], "price_date")
+    if price_date and price_date > valuation:
+        cells.error(row, at["price_date"], f"price_date {price_date} is after the valuation date {valuation}")
     return dict(
         id=text["id"], sector=sector or "", issuer=text["issuer"], kind=kind, face=face if face or (balance and face is not None) else np.nan,
         maturity=maturity, coupon=coupon, frequency=frequency, day_count=day_count or default_dc,
         issue_date=issue, first_coupon=first, quote_type=quote_type, quote=quote,
         book_price=np.nan if book_price is None else book_price, purchase_date=purchase,
-        first_call=first_call, call_frequency=call_frequency, call_price=call_price, row=row, **ratings)
+        first_call=first_call, call_frequency=call_frequency, call_price=call_price, negotiable=negotiable,
+        price_date=price_date, row=row, **ratings)
+
+
+NEGOTIABLE_WORDS = {"true": True, "false": False}
+
+
+def _negotiable(cells: CellReader, text: str, row: int, column: int) -> bool | None:
+    """``true``/``false`` (any case); None when empty (the sector's default)."""
+    if not text:
+        return None
+    value = NEGOTIABLE_WORDS.get(text.strip().casefold())
+    if value is None:
+        cells.error(row, column, f"negotiable {text!r} is not true or false; leave it empty for the sector's "
+                                 "default (CDs and deposits are held to maturity, everything else can be sold)")
+    return value
 
 
 def _explain_either(text: str) -> str | None:

@@ -11,7 +11,7 @@ import io
 import sys
 from pathlib import Path
 
-from ladder.analysis.build import BuildResult, apply_build, build_ladder, save_build, trade_records
+from ladder.analysis.build import GENERIC_NOTE, BuildResult, apply_build, build_ladder, save_build, trade_records
 from ladder.folder.book_file import load_book
 from ladder.book.holdings_file import COLUMNS
 from ladder.folder.save import write_atomic
@@ -163,14 +163,19 @@ def _print(result: BuildResult) -> None:
                 con.print(f"    {term(label) or 'portfolio'}: limit {fmt(limit, 4)}, relax by {fmt(need, 4)} {unit}".rstrip())
         print_caution(con)
         return
-    table = Table(title="Proposed trades", header_style="bold")
+    generic = result.generic_trades
+    table = Table(title="Proposed trades" + (" (* generic stand-ins, not offerings)" if generic.any() else ""),
+                  header_style="bold")
     for title in ("Action", "Id", "Sector", "Issuer", "Maturity", "Coupon %", "Rating", "Face", "Price"):
         table.add_column(title, justify="right" if title in ("Face", "Price", "Coupon %") else "left")
-    for row in trade_records(result.trades):
-        table.add_row(row["action"], term(row["id"]), row["sector"], term(row["issuer"]), row["maturity_date"],
+    for row, stand_in in zip(trade_records(result.trades), generic):
+        table.add_row(row["action"], term(row["id"]) + (" *" if stand_in else ""), row["sector"], term(row["issuer"]),
+                      row["maturity_date"],
                       row["coupon_pct"], term("/".join(x for x in (row["rating"], row["short_rating"]) if x)),
                       fmt(float(row["face"]), 2), row["book_price"] or row["yield_pct"])
     con.print(table)
+    if generic.any():
+        con.print(f"[bold]* {GENERIC_NOTE}.[/]")
     con.print(f"Invested {fmt(result.invested, 2)} of {fmt(result.cash, 2)} (within one lot: largest lot "
               f"{fmt(result.largest_lot, 2)}).")
     summary = Table(title="Ladder before and after", header_style="bold")
@@ -178,8 +183,7 @@ def _print(result: BuildResult) -> None:
     for title in ("Before", "After"):
         summary.add_column(title, justify="right")
     b, a = result.before, result.after
-    rows = [("Market value", lambda s: fmt(s.market_value, 0)), ("Expected yield %", lambda s: _pct(s.expected_yield)),
-            ("Yield to maturity %", lambda s: _pct(s.ytm)),
+    rows = [("Market value", lambda s: fmt(s.market_value, 0)), ("Yield to worst %", lambda s: _pct(s.yield_to_worst)),
             ("Effective duration", lambda s: fmt(s.effective_duration, 3)),
             ("Effective convexity", lambda s: fmt(s.effective_convexity, 3)), ("WAM days", lambda s: fmt(s.wam_days, 0))]
     rows += [(f"Rung {label} %", (lambda s, i=i: fmt(s.rung_shares[i][1], 2))) for i, (label, _) in
@@ -188,9 +192,9 @@ def _print(result: BuildResult) -> None:
         summary.add_row(name, get(b) if b else "—", get(a))
     con.print(summary)
     if result.naive_yield is not None:
-        con.print(f"Naive even ladder from the same candidates: expected yield {_pct(result.naive_yield)}% "
+        con.print(f"Naive even ladder from the same candidates: yield to worst {_pct(result.naive_yield)}% "
                   f"({'meets' if result.naive_feasible else 'does not meet'} every rule); this build "
-                  f"{_pct(a.expected_yield)}%.")
+                  f"{_pct(a.yield_to_worst)}%.")
     if result.binding:
         bind = Table(title="Binding limits (linear relaxation; approximate)", header_style="bold")
         for title in ("Rule", "Member", "Limit", "Relaxed by", "Income a year", "Yield bp"):

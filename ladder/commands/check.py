@@ -60,17 +60,19 @@ def _rules_table(result) -> None:
                            ("Headroom", "right"), ("Status", "left"), ("Holdings", "left")):
         table.add_column(title, justify=justify, overflow="fold")
     for r in result.rules:
-        table.add_row(term(r.rule), term(r.text), _value(r.limit), _value(r.actual), _value(r.headroom), _status(r.status),
+        text = f"{r.text}; largest: {r.worst_group}" if r.per else r.text
+        table.add_row(term(r.rule), term(text), _value(r.limit), _value(r.actual), _value(r.headroom), _status(r.status),
                       term(", ".join(r.holdings[:6])) + (" …" if len(r.holdings) > 6 else ""))
     con.print(table)
     counts = ", ".join(f"{n} {s}" for s, n in result.counts().items() if n)
     con.print(f"Overall: {_status(result.status)} ({counts}); percentages on {result.basis} value; "
-              f"limits tested {result.testing.replace('_', ' ')}.")
+              f"share limits tested {result.testing.replace('_', ' ')} unless a rule says otherwise "
+              "(json: each rule's testing).")
     print_caution(con)
 
 
 def _risk_line(label: str, t: Totals) -> str:
-    return (f"{label}: market value {fmt(t.market_value, 0)}  yield {fmt(100 * t.ytm, 3)}%  "
+    return (f"{label}: market value {fmt(t.market_value, 0)}  yield to worst {fmt(100 * t.yield_to_worst, 3)}%  "
             f"effective duration {fmt(t.effective_duration, 3)}  convexity {fmt(t.effective_convexity, 3)}  "
             f"DV01 {fmt(t.dv01, 0)}  WAM {fmt(t.wam_days, 0)} days")
 
@@ -87,7 +89,8 @@ def _trade_table(book, what_if) -> None:
         table.add_column(title, overflow="fold")
     for c in tc.changes:
         cause = term(", ".join(f"{t.action} {t.id}" for t in c.caused_by))
-        table.add_row(term(c.rule), _value(c.before.actual), _status(c.before.status), _value(c.after.actual),
+        rule = f"{c.rule} (largest: {c.after.worst_group})" if c.after.per else c.rule
+        table.add_row(term(rule), _value(c.before.actual), _status(c.before.status), _value(c.after.actual),
                       _status(c.after.status) + (" (new)" if c.new_breach else ""), cause)
     con.print(table)
     con.print(_risk_line("Before", what_if.before.totals))

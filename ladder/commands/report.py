@@ -57,8 +57,16 @@ def run(args) -> int:
         with con.status("Valuing, testing the policy, shocking rates and planning cash for the month-end..."):
             m = month_end_report(book, args.at)
         report = m.report
-        activity = len(report.section("activity").tables[0].rows)
-        con.print(f"Activity: {activity} entr{'y' if activity == 1 else 'ies'} from {journal_path(book).name}")
+        rows = report.section("activity").tables[0].column("source")
+        journaled = sum(s != "holdings" for s in rows)
+        r = m.roll_forward
+        con.print(f"Activity: {journaled} entr{'y' if journaled == 1 else 'ies'} from {journal_path(book).name}"
+                  f" ({len(r.unexplained_entries)} unexplained), {len(rows) - journaled} purchase(s) taken from "
+                  "the holdings")
+        tied = abs(r.unexplained) < 0.005 and abs(r.unexplained_market_value) < 0.005
+        con.print("Roll-forward from the last month-end: " + ("ties to the cent." if tied else
+                  f"does NOT tie: unexplained {r.unexplained:,.2f} of amortized cost, "
+                  f"{r.unexplained_market_value:,.2f} of market value (shown in the report)."))
     for fmt in (FORMATS if args.format == "all" else (args.format,)):
         for path in write_report(report, out, fmt, folder.resolve().name):
             con.print(f"Wrote {path}")

@@ -9,7 +9,7 @@ from ladder.commands.common import add_book
 from ladder.commands.output import console, emit, fmt, print_caution, term
 
 WIDE_TABLE = 190   # characters the full table needs; narrower terminals get the essential columns
-NARROW_COLUMNS = ("id", "maturity_date", "face", "clean_price", "ytm_pct", "effective_duration")
+NARROW_COLUMNS = ("id", "maturity_date", "face", "clean_price", "yield_to_worst_pct", "effective_duration")
 HELP = "value every holding at a settlement date: prices, yields, duration, convexity, DV01, totals"
 
 
@@ -46,7 +46,8 @@ def _table(book, valuation) -> None:
                   pad_edge=False)
     columns = [("id", "Id", None), ("sector", "Sector", None), ("maturity_date", "Maturity", None),
                ("coupon_pct", "Cpn %", 3), ("face", "Face", 0), ("clean_price", "Clean", 4),
-               ("accrued", "Accrued", 4), ("market_value", "Market value", 0), ("ytm_pct", "Yield %", 3),
+               ("accrued", "Accrued", 4), ("market_value", "Market value", 0),
+               ("yield_to_worst_pct", "Yld worst %", 3),
                ("modified_duration", "Mod dur", 3), ("effective_duration", "Eff dur", 3),
                ("convexity", "Convexity", 3), ("dv01", "DV01", 0), ("spread_bp", "Spread bp", 1),
                ("unrealized_gain", "Unrealized", 0)]
@@ -62,11 +63,13 @@ def _table(book, valuation) -> None:
     t = totals_record(valuation)
     con.print(
         f"[bold]Totals[/bold]  holdings {t['count']}  face {fmt(t['face'], 0)}  market value {fmt(t['market_value'], 0)}"
-        f"  book value {fmt(t['book_value'], 0)}  unrealized {fmt(t['unrealized_gain'], 0)}\n"
-        f"yield (s.a. bond-equivalent, MV-weighted) {fmt(t['ytm_pct'], 3)}%  modified duration "
+        f"  cost {fmt(t['cost'], 0)}  book value (amortized cost) {fmt(t['book_value'], 0)}"
+        f"  unrealized {fmt(t['unrealized_gain'], 0)}\n"
+        f"yield to worst (s.a. bond-equivalent, MV-weighted) {fmt(t['yield_to_worst_pct'], 3)}%  modified duration "
         f"{fmt(t['modified_duration'], 3)}  effective duration {fmt(t['effective_duration'], 3)}  convexity "
         f"{fmt(t['convexity'], 3)}  effective convexity {fmt(t['effective_convexity'], 3)}  DV01 {fmt(t['dv01'], 0)}"
         f"  WAM {fmt(t['wam_days'], 0)} days")
-    con.print("* callable: valued with the Hull-White tree at its option-adjusted spread (spread bp is the OAS).\n"
+    con.print("* callable: valued with the Hull-White tree at its option-adjusted spread (spread bp is the OAS);\n"
+              "  its yield is to worst (the lowest of the yields to each call and to maturity), others to maturity.\n"
               "~ no quote: priced from the curve plus the book's spread table.")
     print_caution(con)

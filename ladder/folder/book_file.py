@@ -15,6 +15,7 @@ from pathlib import Path
 import numpy as np
 
 from ladder.book.cash_needs import CashNeeds, read_cash_needs
+from ladder.book.families import Families, read_families
 from ladder.book.holdings import SECTORS, Holdings
 from ladder.book.holdings_file import read_holdings
 from ladder.errors import InputError, Problems
@@ -32,10 +33,14 @@ from ladder.risk.scenarios import Scenario, read_scenarios
 
 BOOK_FILE = "book.toml"
 DEFAULT_FILES = {"holdings": "holdings.csv", "curve": "curve.csv", "policy": "policy.toml",
-                 "cash_needs": "cash_needs.csv", "scenarios": "scenarios.csv"}
-OPTIONAL_FILES = ("scenarios",)
-REINVEST_RULES = ("longest_rung", "target_tenor", "fund")
-TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "reinvest", "model", "history", "cash")
+                 "cash_needs": "cash_needs.csv", "scenarios": "scenarios.csv", "issuers": "issuers.csv"}
+OPTIONAL_FILES = ("scenarios", "issuers")
+REINVEST_RULES = ("match_needs", "longest_rung", "target_tenor", "fund")
+TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "reinvest", "model", "history", "build", "cash")
+# The builder's purchases (common practice: the institutional round lot is 1,000,000 face).
+# MAX_TICKET refuses a figure typed with too many zeros.
+DEFAULT_MIN_TICKET, DEFAULT_LOT = 1_000_000.0, 1_000_000.0
+MAX_TICKET = 1e10
 SPREAD_BUCKETS = RATING_BUCKETS + ("default",)
 # Defaults of the callable model (Hull-White): see docs/methods.md for where they come from.
 DEFAULT_MEAN_REVERSION = 0.03
@@ -78,7 +83,7 @@ DEFAULT_SPREADS_BP: dict[str, dict[str, float | dict[str, float]]] = {
 class ReinvestSettings:
     """Where maturing money goes in the cash plan (``[reinvest]`` of book.toml)."""
 
-    rule: str = "longest_rung"
+    rule: str = "match_needs"
     target_tenor: str = "2Y"
     min_cash_buffer: float = 0.0
 
@@ -89,6 +94,15 @@ class ModelSettings:
 
     mean_reversion: float = DEFAULT_MEAN_REVERSION
     volatility: float = DEFAULT_VOLATILITY
+
+
+@dataclass(frozen=True)
+class BuildSettings:
+    """Purchases of the builder (``[build]`` of book.toml), face in currency units: a security at least
+    ``min_ticket``, a generic one in steps of ``lot``."""
+
+    min_ticket: float = DEFAULT_MIN_TICKET
+    lot: float = DEFAULT_LOT
 
 
 @dataclass(frozen=True, eq=False)
@@ -108,6 +122,8 @@ class Book:
     spreads: SpreadTable = field(default_factory=dict)   # sector -> bucket -> SpreadCurve (bp by tenor)
     reinvest: ReinvestSettings = ReinvestSettings()
     model: ModelSettings = ModelSettings()
+    families: Families = Families.none()
+    build: BuildSettings = BuildSettings()
     cash_account: str = ""    # id of the fund holding that settles every trade, maturity and transfer
 
     def with_holdings(self, holdings: Holdings) -> "Book":
@@ -186,7 +202,7 @@ def _fit_sectors(s: _Settings, value) -> tuple[str, ...]:
 
 def _read_settings(path: Path, problems: Problems):
     """(name, currency, valuation date, files, holdings file to read, (spreads, sectors to fit), reinvest,
-    model) from book.toml, or None."""
+    model, build) from book.toml, or None."""
     label = str(path)
     try:
         text = path.read_text(encoding="utf-8-sig")
@@ -258,7 +274,24 @@ def _read_settings(path: Path, problems: Problems):
         s.error(("cash", "account"), "must be a holding id in quotes, e.g. \"MMF-01\"")
         account = ""
     return (name, currency, valuation, files, source, (spreads, fit), ReinvestSettings(rule, tenor, buffer), model,
-            (account, s.lines.find(("cash", "account"))))
+            _build(s, data), (account, s.lines.find(("cash", "account"))))
+
+
+def _build(s: _Settings, data: dict) -> BuildSettings:
+    """``[build]``: tickets and lot, positive face amounts up to ``MAX_TICKET``; the ticket a whole number of lots."""
+    b = s.table(data, "build", ("min_ticket", "lot"))
+    got = {}
+    for key, default in (("min_ticket", DEFAULT_MIN_TICKET), ("lot", DEFAULT_LOT)):
+        value = b.get(key, default)
+        if isinstance(value, bool) or not isinstance(value, (int, float)) or not 0 < value <= MAX_TICKET:
+            s.error(("build", key), f"{value!r} is not a face amount; expected a number above 0 and at most "
+                                    f"{MAX_TICKET:,.0f}")
+            value = default
+        got[key] = float(value)
+    ticket, lot = got["min_ticket"], got["lot"]
+    if lot > ticket or abs(ticket / lot - round(ticket / lot)) > 1e-9:
+        s.error(("build", "min_ticket"), f"{ticket:,.0f} is not a whole number of lots of {lot:,.0f}")
+    return BuildSettings(**got)
 
 
 def _collect(problems: Problems, read, *args):
@@ -293,7 +326,7 @@ def load_book(folder) -> Book:
     settings = _read_settings(folder / BOOK_FILE, problems)
     if settings is None:
         problems.raise_if_any()
-    name, currency, valuation, files, source, (spreads, fit), reinvest, model, (account, at) = settings
+    name, currency, valuation, files, source, (spreads, fit), reinvest, model, build, (account, at) = settings
     files["holdings"] = source      # the file read is the file written
     holdings = None
     if valuation is not None:
@@ -315,9 +348,11 @@ def load_book(folder) -> Book:
     scenarios: tuple[Scenario, ...] = ()
     if curve is not None and files["scenarios"].exists():
         scenarios = _collect(problems, read_scenarios, files["scenarios"], curve) or ()
+    families = (_collect(problems, read_families, files["issuers"]) if files["issuers"].exists() else None) \
+        or Families.none()
     problems.raise_if_any()
     if fit:
         z_bp = quoted_z_spreads_bp(holdings, bootstrap(curve, np.datetime64(valuation)), valuation)
         spreads, _ = fit_levels(spreads, holdings, valuation, z_bp, fit)
     return Book(folder, name, currency, valuation, files, holdings, curve, policy, needs, scenarios,
-                spreads, reinvest, model, account)
+                spreads, reinvest, model, families, build, account)

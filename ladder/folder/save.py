@@ -18,7 +18,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ladder.book.holdings import QUOTE_DISCOUNT, QUOTE_PRICE, QUOTE_YIELD, Holdings
+from ladder.book.holdings import NOT_NEGOTIABLE, QUOTE_DISCOUNT, QUOTE_PRICE, QUOTE_YIELD, Holdings
 from ladder.book.holdings_file import COLUMNS
 from ladder.errors import InputError, Problem
 from ladder.neutralize import safe_cell
@@ -62,6 +62,8 @@ def holdings_rows(h: Holdings) -> list[dict[str, str]]:
             "first_call_date": _date(h.first_call[i]),
             "call_frequency": str(h.call_frequency[i]) if callable_ else "",
             "call_price": _number(h.call_price[i]) if callable_ else "",
+            "negotiable": "" if h.negotiable[i] == (h.sector[i] not in NOT_NEGOTIABLE) else str(bool(h.negotiable[i])).lower(),
+            "price_date": _date(h.price_date[i]),
         }
         if quote:
             row[quote[0]] = _number(h.quote[i], quote[1])

@@ -148,14 +148,20 @@ def _read(conn: sqlite3.Connection, key: str) -> Snapshot:
                     json.loads(row[9]))
 
 
-def _query(book_or_folder, sql: str, args=()) -> list[Snapshot]:
+@contextmanager
+def _reading(book_or_folder, table: str):
+    """A connection to the book's history database, or None when there is none yet or it has no ``table``."""
     path = history_path(book_or_folder)
     if not path.exists():
-        return []
+        yield None
+        return
     with _connect(path) as conn:
-        if not conn.execute("SELECT name FROM sqlite_master WHERE name = 'snapshots'").fetchone():
-            return []
-        return [_read(conn, key) for (key,) in conn.execute(sql, args).fetchall()]
+        yield conn if conn.execute("SELECT name FROM sqlite_master WHERE name = ?", (table,)).fetchone() else None
+
+
+def _query(book_or_folder, sql: str, args=()) -> list[Snapshot]:
+    with _reading(book_or_folder, "snapshots") as conn:
+        return [] if conn is None else [_read(conn, key) for (key,) in conn.execute(sql, args).fetchall()]
 
 
 def snapshot_dates(book_or_folder) -> list[dt.date]:
@@ -187,3 +193,17 @@ def input_content(book_or_folder, sha256: str) -> bytes:
     if row is None:
         raise KeyError(sha256)
     return bytes(row[0])
+
+
+def rule_statuses(book_or_folder, before: dt.date) -> list[tuple[dt.date, dict[str, str]]]:
+    """Every recorded month-end before ``before``, newest first, with each rule's status then."""
+    with _reading(book_or_folder, "rules") as conn:
+        if conn is None:
+            return []
+        out: dict[str, dict[str, str]] = {}
+        for key, rule, status in conn.execute("SELECT as_of, rule, status FROM rules WHERE as_of < ? "
+                                              "ORDER BY as_of DESC", (before.isoformat(),)).fetchall():
+            out.setdefault(key, {})[rule] = status
+        dates = [key for (key,) in conn.execute("SELECT as_of FROM snapshots WHERE as_of < ? ORDER BY as_of DESC",
+                                                (before.isoformat(),)).fetchall()]
+    return [(dt.date.fromisoformat(key), out.get(key, {})) for key in dates]

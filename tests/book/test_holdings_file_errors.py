@@ -72,6 +72,19 @@ def test_each_problem_alone_refuses_the_file(tmp_path, row, line, column, words)
     assert [(p.row, p.column) for p in problems] == [(line, column)]
 
 
+def test_negotiable_is_true_false_or_the_sector_default(tmp_path):
+    header = HEADER + ",issue_date,negotiable"
+    cd = "C1,cd,Invented Bank,1000000,2027-06-15,4.1,100.1,,AA,2026-06-15"
+    holdings, problems = read(write(tmp_path, [header, GOOD + ",,", cd + ",", cd.replace("C1", "C2") + ",TRUE",
+                                               GOOD.replace("A1", "A2") + ",,false"]))
+    assert problems == []
+    # docs/formats.md: empty is the sector's default (CDs and deposits are held to maturity)
+    assert list(holdings.negotiable) == [True, False, True, False]
+    holdings, problems = read(write(tmp_path, [header, GOOD + ",,maybe"]))
+    assert holdings is None
+    assert [(p.row, p.column) for p in problems] == [(2, 11)] and "'maybe' is not true or false" in problems[0].message
+
+
 def test_two_problems_on_one_row_both_reported(tmp_path):
     _, problems = read(write(tmp_path, [HEADER, "B1,agency,Invented Farm Credit Bank,abc,2029-13-01,4.25,,,AA+"]))
     assert sorted((p.row, p.column) for p in problems) == [(2, 4), (2, 5)]

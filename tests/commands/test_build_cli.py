@@ -40,7 +40,7 @@ def test_json_build_writes_trades_that_ladder_check_passes(book, tmp_path):
     assert doc["status"] == "built" and doc["rungs"] == "12x3M"
     assert doc["compliance"]["status"] != "breach"
     assert doc["after"]["market_value"] == pytest.approx(doc["before"]["market_value"] + 25_000_000, rel=1e-9, abs=0)
-    assert doc["after"]["expected_yield_pct"] >= doc["naive_even_ladder"]["expected_yield_pct"]
+    assert doc["after"]["yield_to_worst_pct"] >= doc["naive_even_ladder"]["yield_to_worst_pct"]
     header = out.read_text().splitlines()[0].split(",")
     assert header[0] == "id" and header[-2:] == ["action", "funded_from"]     # issue 14: the new cash is new_money
     assert len(out.read_text().splitlines()) == len(doc["trades"]) + 1

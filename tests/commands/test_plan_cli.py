@@ -53,13 +53,20 @@ def test_json(book):
         assert inflow - p["needs"] - p["reinvested"] == pytest.approx(p["closing_cash"], abs=0.05, rel=0)
 
 
-def test_table_shows_the_tight_month(book):
+def test_table_shows_the_plan_meets_september(book):
     run = ladder(book)
     assert run.returncode == 0, run.stderr
-    assert "Tight period: 2027-09-01 to 2027-09-30" in run.stdout
-    assert "First shortfall: 2027-09-01 to 2027-09-30" in run.stdout
+    assert "(match_needs)" in run.stdout
+    assert "No shortfall: cash and maturities meet every need without a sale." in run.stdout
     assert "DEMO-AGY-0322 on 2027-09-10" in run.stdout
     assert "Traceback" not in run.stderr
+
+
+def test_an_old_rule_shows_its_shortfall_sales_and_policy_crossings(book):
+    run = ladder(book, "--reinvest", "longest_rung", "--bp", "100")
+    assert run.returncode == 0, run.stderr
+    assert "First shortfall: 2027-10-01 to 2027-10-31" in run.stdout and "Realized gain" in run.stdout
+    assert "crosses" in run.stdout and "portfolio.max_wam_days" in run.stdout
 
 
 def test_csv_and_rules(book):
@@ -80,6 +87,8 @@ def test_csv_and_rules(book):
     (("--reinvest", "target_tenor", "--tenor", "7Y"), ["--tenor:0:0: reinvestment tenor 7Y is beyond the policy's "
                                                        "maximum maturity"]),
     (("--bp", "5000"), ["--bp:0:0: 5000 bp is beyond +/-1000 bp"]),
+    (("--buffer", "1e12"), ["--buffer:0:0: the minimum cash buffer 1,000,000,000,000 is more than the whole book"]),
+    (("--sector", "fund"), ["--sector:0:0: 'fund' is not a sector to buy"]),
 ])
 def test_bad_input(book, args, messages):
     run = ladder(book, *args)
@@ -87,6 +96,11 @@ def test_bad_input(book, args, messages):
     for message in messages:
         assert message in run.stderr
     assert "refused" in run.stderr and "Traceback" not in run.stderr and run.stdout == ""
+
+
+def test_an_unknown_reinvestment_rule_is_an_option_error(book):
+    run = ladder(book, "--reinvest", "shortest_rung")
+    assert run.returncode == 2 and "invalid choice: 'shortest_rung'" in run.stderr and run.stdout == ""
 
 
 def test_needs_before_the_valuation_date_are_filed_as_past(book, tmp_path):

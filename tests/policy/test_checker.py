@@ -124,7 +124,7 @@ def test_json_has_the_contract_fields():
     assert set(data) >= {"as_of", "status", "rules"}
     assert data["as_of"] == "2025-01-31"
     assert data["policy"] == {"name": "Test policy", "version": "1", "adopted": "2024-01-01", "basis": "market",
-                              "testing": "at_all_times"}
+                              "testing": "continuous"}
     for rule in data["rules"]:
         assert set(rule) >= {"rule", "text", "limit", "actual", "headroom", "status", "holdings"}
 
@@ -372,3 +372,21 @@ def test_policy_without_sectors_checks_no_sector_rules():
     assert [r.rule for r in result.rules] == ["portfolio.issuer_max_pct"]
     # US Treasury, Big Agency
     assert result.rule("portfolio.issuer_max_pct").actual == pytest.approx(20.0, rel=1e-12, abs=0)
+
+
+def test_each_rule_has_its_testing_mode_and_may_change_it():
+    # Defaults a treasurer expects (issue 16, common practice): liquidity, coverage, WAM and duration
+    # continuous; ratings and maturities at purchase; shares follow the policy's own testing.
+    head = HEAD + 'testing = "at_purchase"\n'
+    result = run(head=head)
+    modes = {r.rule: r.testing for r in result.rules}
+    assert modes["portfolio.cash_needs_horizon_months"] == "continuous"
+    assert modes["sectors.corporate.min_long_rating"] == "at_purchase"
+    assert modes["sectors.commercial_paper.max_maturity_days"] == "at_purchase"
+    assert modes["sectors.corporate.max_pct"] == "at_purchase"
+    assert {r.rule: r.testing for r in run().rules}["sectors.corporate.max_pct"] == "continuous"
+    # a downgrade since purchase: a review at purchase, a breach when the rule is tested continuously
+    downgraded = rows(C2={"rating": "BBB+", "rating_at_purchase": "A"})
+    assert run(downgraded).rule("sectors.corporate.min_long_rating").status == "review"
+    strict = POLICY + '\n[rules."sectors.corporate.min_long_rating"]\ntesting = "continuous"\n'
+    assert run(downgraded, body=strict).rule("sectors.corporate.min_long_rating").status == "breach"

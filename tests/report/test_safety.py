@@ -11,6 +11,7 @@ import ladder.folder.transaction as transaction
 import ladder.report.custodian as custodian
 from ladder.folder.book_file import load_book
 from ladder.errors import InputError
+from ladder.book.holdings_file import COLUMNS
 from ladder.report import history
 from ladder.report.history import Snapshot, input_file, load_snapshot, record_snapshot, snapshot_dates
 from ladder.folder.journal import JournalEntry, append_journal, journal_path, read_journal
@@ -58,8 +59,9 @@ def test_history_keeps_input_bytes_and_replaces_a_month(demo_copy):
 def test_import_failing_before_its_commit_point_keeps_holdings_and_journal(demo_copy, monkeypatch):
     book = load_book(demo_copy)
     original = (demo_copy / "holdings.csv").read_bytes()
-    new = book.holdings.take(slice(1, None))
-    changes = custodian.compare_holdings(book.holdings, new)
+    new = custodian.CustodianFile(demo_copy / "custodian.csv", book.holdings.take(slice(1, None)),
+                                  frozenset(COLUMNS))
+    changes, merged = custodian.reconcile(book, new, remove_missing=True)
     real_write = transaction._write
 
     def fail(path, data, mode=0o666):
@@ -68,7 +70,7 @@ def test_import_failing_before_its_commit_point_keeps_holdings_and_journal(demo_
         real_write(path, data, mode)
     monkeypatch.setattr(transaction, "_write", fail)
     with pytest.raises(OSError):
-        custodian.replace_holdings(book, new, changes, "custodian.csv")
+        custodian.apply_reconciliation(book, merged, changes, "custodian.csv", remove_missing=True)
     assert (demo_copy / "holdings.csv").read_bytes() == original
     assert not journal_path(demo_copy).exists()
     assert not (demo_copy / transaction.RECORD).exists() and not (demo_copy / "versions").exists()

@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import datetime as dt
+
 import numpy as np
 import pytest
 
@@ -28,8 +30,8 @@ def test_sector_and_issuer_shares_are_the_checkers(first_month):
     issuers = m.report.section("allocation").tables[1]
     agency = issuers.row("Federal Homestead Credit Bank")
     # the largest agency issuer is the one the agency issuer rule reports
-    assert agency[8] == "sectors.agency.issuer_max_pct"
-    assert agency[5] * 100 == pytest.approx(m.check.rule("sectors.agency.issuer_max_pct").actual, rel=1e-12, abs=0)
+    assert agency[9] == "sectors.agency.issuer_max_pct"
+    assert agency[6] * 100 == pytest.approx(m.check.rule("sectors.agency.issuer_max_pct").actual, rel=1e-12, abs=0)
     ratings = m.report.section("allocation").tables[2]
     assert sum(ratings.column("count")) == len(book.holdings)
     assert ratings.row("A+")[5] == "review"                          # DEMO-MUN-0504, downgraded since purchase
@@ -73,12 +75,16 @@ def test_certificate_names_the_policy_the_exceptions_and_the_liquidity(first_mon
     cert = m.report.section("certificate")
     notes = " ".join(cert.notes)
     assert "version 2026.2" in notes and "adopted 2026-06-24" in notes
-    rules, exceptions, liquidity = cert.tables
+    rules, exceptions, liquidity, findings = cert.tables
     assert len(rules.rows) == len(m.check.rules)
     assert {r[0] for r in exceptions.rows} == {r.rule for r in m.check.rules if r.status != "pass"}
     mun = exceptions.row("sectors.municipal.min_long_rating")
     assert "DEMO-MUN-0504" in mun[3] and "downgraded" in mun[3] and "cure by 2026-12-30" in mun[3]
-    assert len(liquidity.rows) == 6 and "six months" in notes
+    # the demo policy's cash-needs horizon is 12 months; the statement covers all of it, so it reaches
+    # the 2027-09 debt repayment the cash plan and the checker's rule read from the same coverage
+    assert len(liquidity.rows) == 12 and "12 months" in notes
+    assert {r[4] for r in liquidity.rows} == {"covered"}
+    assert findings.row("sectors.municipal.min_long_rating")[3:6] == (dt.date(2026, 11, 30), dt.date(2026, 12, 30), 0)
     funds = m.valuation.market_value[book.holdings.kind == "fund"].sum()
     first = liquidity.rows[0]
     assert first[3] == pytest.approx(funds + first[1] - first[2], rel=1e-12, abs=0)

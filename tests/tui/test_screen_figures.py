@@ -74,11 +74,16 @@ def test_funds_have_no_price_yield_curve_and_callables_show_their_calls(valuatio
 
 
 def _valuation(maturities, market_value, face=None):
-    """A stand-in valuation with only what the rung summary reads."""
+    """A stand-in valuation with only what the rung summary reads: zero-coupon holdings paying their
+    face at maturity."""
     maturities = np.array(maturities, dtype="datetime64[D]")
     mv = np.asarray(market_value, dtype=float)
-    holdings = SimpleNamespace(maturity=maturities, face=mv if face is None else np.asarray(face, float))
-    return SimpleNamespace(as_of=np.datetime64("2026-01-31"), holdings=holdings, market_value=mv)
+    face = mv if face is None else np.asarray(face, float)
+    holdings = SimpleNamespace(maturity=maturities, face=face, kind=np.array(["zero"] * len(mv), dtype=object))
+    flows = SimpleNamespace(mask=np.ones((len(mv), 1), bool), pay_dates=maturities[:, None],
+                            amount=np.full((len(mv), 1), 100.0))
+    return SimpleNamespace(as_of=np.datetime64("2026-01-31"), holdings=holdings, market_value=mv,
+                           pricer=SimpleNamespace(cash_flows=flows))
 
 
 def test_rung_marks_gap_crowded_and_short_of_needs():
@@ -86,14 +91,17 @@ def test_rung_marks_gap_crowded_and_short_of_needs():
     # 3/60, 3/60, 6/60, 12/60, 12/60, 24/60 of the value.
     v = _valuation(["2026-03-15", "2026-06-15", "2026-09-15", "2027-06-15", "2028-06-15", "2030-06-15"],
                    [5, 5, 10, 20, 55, 5])
-    needs = CashNeeds(np.array(["2026-03-01", "2026-03-20"], dtype="datetime64[D]"), np.array([4.0, 2.0]),
-                      np.array(["a", "b"], dtype=object), np.array([2, 3]))
+    needs = CashNeeds(np.array(["2026-03-01", "2026-03-20", "2026-08-01"], dtype="datetime64[D]"),
+                      np.array([4.0, 2.0, 12.0]), np.array(["a", "b", "c"], dtype=object), np.array([2, 3, 4]))
     s = rung_summary(v, needs)
     assert s.rungs == RUNGS
     assert s.even_share[:6] == pytest.approx(np.array([3, 3, 6, 12, 12, 24]) / 60, rel=1e-12, abs=0)
-    assert list(s.needs[:2]) == [6.0, 0.0]
+    assert list(s.needs[:3]) == [6.0, 0.0, 12.0]
     marks = dict(zip(s.rungs, s.marks))
-    assert marks["0-3M"] == ("short of needs",)      # 6 needed, 5 maturing
+    assert marks["0-3M"] == ("short of needs",)      # 6 needed so far, 5 paid so far
+    # 6-12M needs 12 with 10 maturing in it, but by its end 5 + 5 + 10 = 20 has been paid against
+    # 6 + 0 + 12 = 18 needed: covered cumulatively (ladder.policy.liquidity), so not marked
+    assert marks["6-12M"] == () and list(s.coverage.headroom[:3]) == [-1.0, 4.0, 2.0]
     assert marks["2-3Y"] == ("crowded",)             # 55% against an even 20%
     assert marks["3-5Y"] == ("gap",)                 # 5% against an even 40%
     assert marks["1-2Y"] == () and marks["5Y+"] == ()

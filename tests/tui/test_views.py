@@ -163,6 +163,7 @@ def test_cash_plan_shows_periods_shortfalls_and_income(demo_book):
         table = app.query_one("#plan-table")
         seen["closing"] = cells(table, "closing")
         seen["status"] = cells(table, "status")
+        seen["summary"] = str(app.query_one("#plan-summary").render())
         seen["income"] = cells(app.query_one("#plan-income"), "income")
         await pilot.press("n", *"+100 bp", "enter")
         await settle(app, pilot)
@@ -171,9 +172,9 @@ def test_cash_plan_shows_periods_shortfalls_and_income(demo_book):
     drive(demo_book, script)
     pr = plan.projection
     assert seen["closing"] == [fmt.money(x) for x in pr.closing_cash]
-    first = plan.first_shortfall
-    assert first is not None and seen["status"][first] == "SHORTFALL"
-    assert "SHORTFALL" not in seen["status"][:first]
+    # the default rule matches the needs: no shortfall, and the projected book keeps the policy
+    assert plan.first_shortfall is None and "SHORTFALL" not in seen["status"]
+    assert "No shortfall over the horizon; the projected book stays within every policy limit" in seen["summary"]
     assert seen["income"] == [fmt.money(x.income) for x in plan.income_at_risk]
     assert seen["scenario"] == "+100 bp"
 
@@ -313,7 +314,8 @@ def test_builder_accept_adds_the_proposed_holdings_and_save_writes_them(book_cop
         seen["unsaved"] = dict(app.unsaved)
 
     drive(book_copy, script)
-    assert seen["status"] == "built" and seen["shown"] == seen["trades"]
+    assert seen["status"] == "built" and [s.removesuffix(" (generic)") for s in seen["shown"]] == seen["trades"]
+    assert all(s.endswith(" (generic)") for s in seen["shown"] if s.startswith("GENERIC-"))
     assert len(seen["after"]) == seen["before"] + len(seen["trades"])
     assert seen["after"][-len(seen["trades"]):] == seen["trades"]
     assert seen["unsaved"] == {}

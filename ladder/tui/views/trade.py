@@ -31,7 +31,7 @@ COLUMNS = (Column("after", "After"), Column("before", "Before"), Column("rule", 
            Column("limit", "Limit", True), Column("actual_before", "Actual before", True),
            Column("actual_after", "Actual after", True), Column("headroom", "Headroom after", True),
            Column("new", "New breach"), Column("cause", "Caused by", max_width=30))
-RISK = (("Market value", "market_value", 0, 1.0), ("Yield %", "ytm", 3, 100.0), ("Book yield %", "book_yield", 3, 100.0),
+RISK = (("Market value", "market_value", 0, 1.0), ("Yield to worst %", "yield_to_worst", 3, 100.0), ("Book yield %", "book_yield", 3, 100.0),
         ("Effective duration", "effective_duration", 3, 1.0), ("Modified duration", "modified_duration", 3, 1.0),
         ("Convexity", "convexity", 3, 1.0), ("DV01", "dv01", 0, 1.0), ("WAM days", "wam_days", 0, 1.0),
         ("Holdings", "count", 0, 1.0))
@@ -43,7 +43,8 @@ def changes_frame(check) -> Frame:
     before = [x.before for x in c]
     text = {"after": np.array([status_word(a.status) for a in after], dtype=object),
             "before": np.array([status_word(b.status) for b in before], dtype=object),
-            "rule": np.array([x.rule for x in c], dtype=object),
+            "rule": np.array([f"{x.rule} (largest: {x.after.worst_group})" if x.after.per else x.rule for x in c],
+                             dtype=object),
             "limit": np.array([value_text(a.limit, a.unit) for a in after], dtype=object),
             "actual_before": np.array([value_text(b.actual, b.unit) for b in before], dtype=object),
             "actual_after": np.array([value_text(a.actual, a.unit) for a in after], dtype=object),
