@@ -169,7 +169,7 @@ def settle_trades(book: Book, trades: Trades, reason: str = "") -> Settlement:
                                         before if source != NEW_MONEY else math.nan,
                                         after if source != NEW_MONEY else math.nan, shortfall))
     opening = {hid: float(f) for hid, f, k in zip(h.id, h.face, h.kind) if k == "fund"}
-    new = _bought_at_cost(apply_trades(h, trades), trades, clean, dates, default)
+    new = _bought_at_cost(apply_trades(h, trades), trades, clean, dates)
     if account and account in opening and account not in set(new.id):    # sold in full: the account stays, empty
         new = Holdings.concat([new, replace(h.take(h.id == account), face=np.zeros(1))])
     faces = np.array([f + balances.get(hid, 0.0) - opening.get(hid, 0.0) for hid, f in zip(new.id, new.face)],
@@ -178,14 +178,15 @@ def settle_trades(book: Book, trades: Trades, reason: str = "") -> Settlement:
     return Settlement(new, tuple(entries), tuple(economics), account, cash_balance(book), cash_balance(book, new))
 
 
-def _bought_at_cost(holdings: Holdings, trades: Trades, clean, dates, valuation) -> Holdings:
-    """Bought lots settled on the valuation date without a book price carry their clean trade price
-    and that date as book price and purchase date (their amortized cost starts there)."""
+def _bought_at_cost(holdings: Holdings, trades: Trades, clean, dates) -> Holdings:
+    """Bought lots without a book price carry their clean trade price and settlement date as book
+    price and purchase date: their amortized cost starts there (a lot settling after the valuation
+    date has none until the book reaches that date)."""
     buys = np.flatnonzero(trades.action == "buy")
     pos = {hid: i for i, hid in enumerate(holdings.id)}
     price, bought = holdings.book_price.copy(), holdings.purchase_date.copy()
     for i in buys:
         j = pos[trades.holdings.id[i]]
-        if np.isnan(price[j]) and dates[i] == valuation:
-            price[j], bought[j] = round(float(clean[i]), 6), valuation
+        if np.isnan(price[j]):
+            price[j], bought[j] = round(float(clean[i]), 6), dates[i]
     return replace(holdings, book_price=price, purchase_date=bought)

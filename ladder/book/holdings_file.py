@@ -120,8 +120,6 @@ def _parse_row(cells: CellReader, text: dict, at: dict, row: int, valuation: dt.
     book_price = cells.number(text["book_price"], row, at["book_price"], "book_price", low=1.0, high=200.0,
                               what="a clean price per 100 face, e.g. 99.875")
     purchase = cells.date(text["purchase_date"], row, at["purchase_date"], "purchase_date")
-    if purchase and purchase > valuation:
-        cells.error(row, at["purchase_date"], f"purchase_date {purchase} is after the valuation date {valuation}")
     if purchase and maturity and purchase >= maturity:
         cells.error(row, at["purchase_date"], "purchase_date must be before maturity_date")
     if book_price is not None and not purchase:

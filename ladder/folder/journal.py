@@ -107,8 +107,3 @@ def append_journal(book_or_folder, entries, reason: str = "journal entries") -> 
     from ladder.folder.transaction import commit   # the transaction writes journal lines made here
 
     return commit(book_or_folder, {}, entries, reason).entries
-
-
-def entries_between(entries, start: dt.date | None, end: dt.date) -> tuple[JournalEntry, ...]:
-    """The entries dated in (start, end] (every one up to ``end`` when ``start`` is None), in file order."""
-    return tuple(e for e in entries if (start is None or e.date > start) and e.date <= end)

@@ -4,7 +4,8 @@ Their terms come from last month's snapshot (the holdings file recorded with it,
 history); the date each left is its journal entry of the period (``mature``, ``call``, ``sell``,
 ``remove``), else its maturity if that falls in the period, else the report date (it left without
 a record: counted to the end of the period, and named as such). Income is the effective-interest
-method's interest earned from the period start to that date; a called holding is redeemed on its
+method's interest earned from the period start to that date, each part that left on its own date
+and face (a partial sale before the rest matured earns to the sale); a called holding is redeemed on its
 call date at the call price (``amortize(..., redeemed_on=)``).
 """
 
@@ -61,7 +62,7 @@ def previous_holdings(book_or_folder, previous: Snapshot) -> Holdings | None:
 
 
 def _exits(h: Holdings, start: dt.date, as_of: dt.date, entries: tuple[JournalEntry, ...]):
-    recorded = {e.holding: e for e in entries if e.action in EXIT_ACTIONS and start < e.date <= as_of}
+    recorded = {e.holding: e for e in entries if e.action in EXIT_ACTIONS and e.date <= as_of}   # the last exit
     dates, how = [], []
     for i, hid in enumerate(h.id):
         maturity = h.maturity[i].astype(dt.date)
@@ -90,14 +91,32 @@ def departed_income(before: Holdings | None, current_ids, start: dt.date, as_of:
     exit_date, how = _exits(gone, start, as_of, entries)
     called = np.where(np.array([w == "call" for w in how]), exit_date, np.datetime64("NaT"))
     schedule = amortize(gone, redeemed_on=called)
+    rows, dates, faces = _pieces(gone, exit_date, entries)
     coupon, amort = np.zeros(len(gone)), np.zeros(len(gone))
     begin = np.datetime64(start, "D")
-    for end in np.unique(exit_date):
-        rows = exit_date == end
+    for end in np.unique(dates):
+        at = dates == end
         earned = schedule.earned(np.array([begin, max(end, begin)]))
-        coupon[rows], amort[rows] = earned.coupon[rows, 0], earned.amortization[rows, 0]
-    face = gone.face / 100.0
-    return Departed(gone.id, exit_date, how, coupon * face, amort * face)
+        np.add.at(coupon, rows[at], earned.coupon[rows[at], 0] * faces[at] / 100.0)
+        np.add.at(amort, rows[at], earned.amortization[rows[at], 0] * faces[at] / 100.0)
+    return Departed(gone.id, exit_date, how, coupon, amort)
+
+
+def _pieces(gone: Holdings, exit_date: np.ndarray, entries: tuple[JournalEntry, ...]):
+    """The parts in which each departed holding left: (row, date, face) of each exit line of the
+    period (a partial sale earns up to its own date, on its own face), and what no line accounts for
+    on the holding's exit date."""
+    at = {hid: i for i, hid in enumerate(gone.id)}
+    lines = [(at[e.holding], e.date, e.face) for e in entries
+             if e.action in EXIT_ACTIONS and e.holding in at and np.isfinite(e.face)]
+    rest = gone.face.astype(np.float64).copy()
+    for row, _, face in lines:
+        rest[row] -= face
+    left = np.flatnonzero(rest > 0.005)          # half a cent of face: every face is written to the cent
+    rows = np.array([r for r, _, _ in lines] + list(left), dtype=np.int64)
+    dates = np.array([np.datetime64(d, "D") for _, d, _ in lines] + list(exit_date[left]), dtype="datetime64[D]")
+    faces = np.array([f for _, _, f in lines] + list(rest[left]), dtype=np.float64)
+    return rows, dates, faces
 
 
 DEPARTED_COLUMNS = (Column("id", "Holding"), Column("exit", "Left the book", "date"), Column("how", "How"),

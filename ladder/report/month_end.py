@@ -33,7 +33,7 @@ from ladder.report.findings import open_findings
 from ladder.report.history import InputFile, Snapshot, input_file
 from ladder.report.holdings_table import activity_table, holdings_table
 from ladder.report.income import income_projection, liquidity_statement
-from ladder.folder.journal import entries_between, journal_path, read_journal
+from ladder.folder.journal import journal_path, read_journal
 from ladder.report.model import Report, Section
 from ladder.report.roll_forward import RollForward, realized_table, roll_forward, roll_forward_notes, roll_forward_table
 from ladder.report.shock_table import shock_section
@@ -99,6 +99,17 @@ def _missing_cost_note(v: Valuation, a: Accounting) -> tuple[str, ...]:
             f"or income in this report: {', '.join(missing)}. Add them to the holdings file.",)
 
 
+def period_activity(book: Book, journal, previous, start: dt.date, as_of: dt.date) -> tuple:
+    """The journal lines of the period: those dated in (start, as_of], and those dated on or before
+    ``start`` that were added after the last month-end was recorded (a trade booked on the month-end
+    day after its report, or a late entry). The journal is only ever appended to, so the lines the
+    last month-end saw are the first as many as its recorded journal holds."""
+    seen = 0
+    if previous is not None and "journal" in previous.inputs:
+        seen = history.input_content(book, previous.inputs["journal"][1]).count(b"\n")
+    return tuple(e for k, e in enumerate(journal) if e.date <= as_of and (e.date > start or k >= seen))
+
+
 def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
     """The month-end report of ``book`` at ``at`` (default: its valuation date)."""
     checked = check_book(book, at)
@@ -109,7 +120,7 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
     a = accounting_figures(v, start)
     prices = price_dates(v, book.valuation_date)
     journal = read_journal(book)
-    activity = entries_between(journal, start, v.as_of)
+    activity = period_activity(book, journal, previous, start, v.as_of)
     before = previous_holdings(book, previous) if previous else None
     departed = departed_income(before, v.holdings.id, start, v.as_of, activity)
     rolled = roll_forward(v, a, start, previous, before, departed, activity)

@@ -200,10 +200,12 @@ def roll_forward(v: Valuation, a: Accounting, start: dt.date, previous: Snapshot
     h = v.holdings
     sec = h.kind != "fund"
     beginning, source = _beginning(h, start, previous, before)
+    funds = set(h.id[~sec]) | (set() if before is None else set(before.id[before.kind == "fund"]))
+    traded = tuple(e for e in entries if e.holding not in funds)   # a fund sold or bought at 100 moves cash only
     journal_buys = tuple(Purchase(e.date, e.holding, e.face, e.book_value, "journal")
-                         for e in entries if e.action in ARRIVALS)
+                         for e in traded if e.action in ARRIVALS)
     from_holdings = holdings_purchases(h, start, v.as_of, entries)
-    left = {action: float(sum(e.book_value for e in entries if e.action == action and _finite(e.book_value)))
+    left = {action: float(sum(e.book_value for e in traded if e.action == action and _finite(e.book_value)))
             for action in EXITS}
     amort = np.concatenate([a.amortization[sec], departed.amortization, _partial_exits(h, start, entries)])
     face_changes = float(sum(e.book_value for e in entries if e.action == "change" and _finite(e.book_value)))
@@ -215,7 +217,7 @@ def roll_forward(v: Valuation, a: Accounting, start: dt.date, previous: Snapshot
         accretion=float(amort[amort > 0].sum()), amortization=float(-amort[amort < 0].sum()),
         face_changes=face_changes, ending=float(np.nansum(a.amortized_cost[sec])), market_value=mv,
         unrealized_gain=float(np.nansum(a.unrealized_gain[sec])), accrued=float(a.accrued[sec].sum()),
-        purchases=journal_buys + from_holdings, realized=realized_gains(entries),
+        purchases=journal_buys + from_holdings, realized=realized_gains(traded),
         unexplained_entries=unexplained_entries(entries))
 
 
