@@ -1,5 +1,5 @@
 """Two month-ends one month apart in a copy of the demo book: the history carries last month's
-figures, the year to date adds up, the activity section is the journal's period, and a past report
+figures, the year to date adds up, the activity section is the journal's period (with late entries), and a past report
 is written again exactly."""
 
 from __future__ import annotations
@@ -49,6 +49,11 @@ def roll_to_next_month(folder, book) -> list[JournalEntry]:
     return [JournalEntry(day, "mature", hid, face, face, 100.0, "matured at par") for hid, face, day in matured]
 
 
+def _blank(x: float) -> float | None:
+    """A journal line's amount as the activity table shows it: an empty cell where there is none."""
+    return None if math.isnan(x) else x
+
+
 def test_second_month_shows_the_first_as_last_month(tmp_path):
     folder, book, first = recorded_month_end(copy_demo(tmp_path / "tessaline"))
     # one entry inside the first period, recorded before the second month-end
@@ -74,14 +79,19 @@ def test_second_month_shows_the_first_as_last_month(tmp_path):
                                       rel=1e-12, abs=0)
     assert second.report.period_start == FIRST
 
-    # the activity section lists exactly the journal's entries of (30 Nov, 31 Dec]
-    journal = [e for e in read_journal(folder) if FIRST < e.date <= SECOND]
+    # the activity section lists the journal's lines of (30 Nov, 31 Dec] and, as late entries, the
+    # lines dated earlier that were added after November's month-end was recorded (here the note)
+    journal = read_journal(folder)
+    late = journal[-len(entries) - 1]
+    assert late.action == "note" and late.date < FIRST
+    listed = [late] + [e for e in journal if FIRST < e.date <= SECOND]
     activity = second.report.section("activity").tables[0]
-    assert len(journal) == len(entries) > 0
+    assert len(listed) == len(entries) + 1
     assert [(r[0], r[1], r[2], r[3], r[4], r[6]) for r in activity.rows] == [
-        (e.date, e.action, e.holding, e.face, e.amount, e.reason) for e in journal]
-    assert activity.total[4] == pytest.approx(sum(e.amount for e in journal), rel=1e-12, abs=0)
-    assert all(r[1] != "note" for r in activity.rows)           # November's note is not December's activity
+        (e.date, e.action, e.holding, _blank(e.face), _blank(e.amount), e.reason) for e in listed]
+    assert activity.total[4] == pytest.approx(sum(e.amount for e in entries), rel=1e-12, abs=0)
+    # a line November's report saw is not December's activity again
+    assert not any(r[0] <= FIRST and r[1] != "note" for r in activity.rows)
 
     # December's income, including the holdings that matured during it, is what November's income
     # projection expected for December: nothing was bought and the funds kept their balances
