@@ -203,7 +203,7 @@ def candidates_for(book: Book, rungs: Rungs, at: dt.date, offerings=None) -> Can
 
 def _trades(p: Program, x: np.ndarray, at: dt.date) -> Trades:
     pos, face = p.positions, p.faces(x)
-    used = np.flatnonzero(x > 1e-9)
+    used = np.flatnonzero(np.round(face, 2) > 0)     # a solver's round-off of a cent or less is no trade
     h = pos.holdings.take(p.var_pos[used])
     traded = np.round(face[used], 2)
     buy = p.var_sign[used] > 0

@@ -23,8 +23,9 @@ eligible candidates (``ladder.build.candidates.eligible``).
 Each limit is tightened by a tiny margin (``MARGIN``) so that the solver's feasibility tolerance
 cannot leave a solution a hair past a limit when the checker grades it.
 
-Budget: the buys cost at most the cash (plus the proceeds of sales); what a fund purchase of at least
-its minimum cannot take stays as cash.
+Budget: the buys cost at most the cash (plus the proceeds of sales), and what is left is less than
+the fund minimum (a fund takes any more), so the leftover is only what no fund purchase of at least
+its minimum could take; it stays as cash.
 
 Objective: maximize expected income a year, sum of yield x market value over what is bought,
 less that of what is sold (the existing book's income is a constant). Rows are stored unscaled.
@@ -160,6 +161,11 @@ def build_program(policy: Policy, cash_needs: CashNeeds | None, settle, rungs: R
     _rung_rows(r, rungs, rung_band)
     has_fund = bool(np.any(pos.fund[var_pos] & (var_sign > 0) & (ub > 0)))
     r.add(BUDGET, "", "currency", cash, pos.mv, cash, SENS_ONE, scope="traded")
+    fund_buys = pos.fund[var_pos] & (var_sign > 0) & (ub > 0)
+    if has_fund:                  # what is left as cash is less than a fund purchase (else a fund takes it)
+        least = float(lb[fund_buys].max())
+        r.add(BUDGET, "left as cash", "currency", cash, -pos.mv, -(cash - max(least - MARGIN["currency"], 0.0)),
+              SENS_ONE, scope="traded")
     r.text[BUDGET] = (f"the buys cost at most the cash to invest ({cash:,.2f})" + (" plus the proceeds of sales"
                       if allow_sales else "") + ("; a fund takes the residual from its minimum up" if has_fund else ""))
     coeffs, b, eq, group, label, unit, limit, sens = zip(*r.rows)   # the budget row is always there

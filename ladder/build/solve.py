@@ -98,7 +98,9 @@ def solve(p: Program, time_limit: float = TIME_LIMIT_S) -> Solution:
     status = {0: "optimal", 1: "time_limit", 2: "infeasible"}.get(res.status, "error")
     if res.x is None:
         return Solution(status if status != "time_limit" else "time_limit", None, float("nan"), res.message, seconds)
-    x = _within_budget(p, np.where(np.isin(p.integrality, (1, 3)), np.round(res.x), res.x))
+    x = np.where(np.isin(p.integrality, (1, 3)), np.round(res.x), res.x)
+    semi = p.integrality == 2                     # a fund the solver left at round-off above 0 is none
+    x = _within_budget(p, np.where(semi & (x < 0.5 * p.lb), 0.0, x))
     gap = getattr(res, "mip_gap", None)
     return Solution(status, x, float(p.c @ x), res.message, seconds, None if gap is None else float(gap))
 
