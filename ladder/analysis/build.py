@@ -86,6 +86,7 @@ class BuildResult:
     naive_yield: float | None            # yield to worst of the portfolio after the naive even ladder
     naive_feasible: bool | None          # whether the naive ladder meets every row of the program
     seconds: float
+    min_fund: float = 0.0                # a fund purchase is none or at least this ([build].min_fund), currency
 
     @property
     def compliance_status(self) -> str | None:
@@ -99,6 +100,11 @@ class BuildResult:
         if self.trades is None:
             return np.zeros(0, bool)
         return np.isin(self.trades.holdings.id, self.candidates.holdings.id[self.candidates.generic])
+
+    @property
+    def left_as_cash(self) -> float:
+        """Cash not invested (currency): what no lot fits and is under the fund minimum (``[build].min_fund``)."""
+        return max(self.cash - self.invested, 0.0) if self.status == "built" else 0.0
 
     @property
     def largest_lot(self) -> float:
@@ -127,7 +133,8 @@ class BuildResult:
                                 for c in self.conflicts]
             return doc
         doc.update({
-            "invested": clean_number(self.invested, 2),
+            "invested": clean_number(self.invested, 2), "left_as_cash": clean_number(self.left_as_cash, 2),
+            "min_fund": clean_number(self.min_fund, 2),
             "trades": [{**row, "generic": bool(g)} for row, g in zip(trade_records(self.trades), self.generic_trades)],
             "generic_note": GENERIC_NOTE if self.generic_trades.any() else None,
             "before": self.before.to_json() if self.before else None, "after": self.after.to_json(),
@@ -196,7 +203,7 @@ def candidates_for(book: Book, rungs: Rungs, at: dt.date, offerings=None) -> Can
 
 def _trades(p: Program, x: np.ndarray, at: dt.date) -> Trades:
     pos, face = p.positions, p.faces(x)
-    used = np.flatnonzero(x > 1e-9)
+    used = np.flatnonzero(np.round(face, 2) > 0)     # a solver's round-off of a cent or less is no trade
     h = pos.holdings.take(p.var_pos[used])
     traded = np.round(face[used], 2)
     buy = p.var_sign[used] > 0
@@ -268,7 +275,7 @@ def build_ladder(book: Book, cash, rungs: str | None = None, offerings=None, all
     solution = solve(program) if relaxed.status == "optimal" else Solution(
         "infeasible", None, float("nan"), "the linear relaxation has no solution", 0.0)
     common = dict(as_of=settle, cash=cash, fresh=fresh, allow_sales=allow_sales and not fresh, rungs=spec,
-                  candidates=cands, program=program, solution=solution, relaxation=relaxed)
+                  candidates=cands, program=program, solution=solution, relaxation=relaxed, min_fund=book.build.min_fund)
     if solution.x is None and solution.status == "time_limit":
         report(1.0, "done")
         return BuildResult("time_limit", trades=None, invested=0.0, before=None, after=None, compliance=None,

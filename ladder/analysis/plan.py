@@ -221,8 +221,7 @@ class _Planner:
         self.missing = missing
         self.purchase_price = np.where(missing, valuation.clean[self.rows], self.h.book_price)
         self.purchase_date = np.where(missing, self.as_of, self.h.purchase_date)
-        self.calls = CallSchedule.of(self.h, str(book.files["holdings"]))
-        self._amortizations: dict[bytes, Amortization] = {}
+        self._amortizations: dict[tuple, Amortization] = {}
         self._cash: dict[tuple, HoldingCash] = {}
         dates = to_days(book.cash_needs.date)
         self.past_needs = int((dates < self.as_of).sum())
@@ -259,17 +258,22 @@ class _Planner:
             out[where] = expected_calls(path, *inputs, spread[where])[0]
         return out
 
-    def amortization(self, redeemed: np.ndarray) -> Amortization:
-        key = redeemed.tobytes()
+    def amortization(self, rows: np.ndarray, redeemed: np.ndarray) -> Amortization:
+        """The amortization of the holdings at ``rows`` (positions into ``h``), each ended on its
+        ``redeemed`` date (NaT: at maturity)."""
+        key = (rows.tobytes(), redeemed.tobytes())
         if key not in self._amortizations:
-            self._amortizations[key] = amortize(self.h, purchase_price=self.purchase_price,
-                                                purchase_date=self.purchase_date, calls=self.calls,
-                                                redeemed_on=redeemed, source=str(self.book.files["holdings"]))
+            h = self.h.take(rows)
+            source = str(self.book.files["holdings"])
+            self._amortizations[key] = amortize(h, purchase_price=self.purchase_price[rows],
+                                                purchase_date=self.purchase_date[rows],
+                                                calls=CallSchedule.of(h, source), redeemed_on=redeemed, source=source)
         return self._amortizations[key]
 
     def holding_cash(self, periods: Periods, redeemed: np.ndarray) -> HoldingCash:
         """The holdings' cash by period; a plan whose periods begin another's (12 months of a
-        24-month plan) takes its first columns."""
+        24-month plan) takes its first columns. The whole book is worked out once to maturity; a
+        scenario's expected calls rework only the holdings it calls, spliced in."""
         key = (redeemed.tobytes(), periods.boundaries.tobytes())
         if key not in self._cash:
             b = periods.boundaries
@@ -282,7 +286,15 @@ class _Planner:
                                               cost=cash.cost[:, :P + 1], accrued=cash.accrued[:, :P + 1])
                     break
             else:
-                self._cash[key] = holding_cash(self.h, self.cf, periods, self.amortization(redeemed))
+                called = np.flatnonzero(~np.isnat(redeemed))
+                if len(called):
+                    whole = self.holding_cash(periods, np.full(len(self.h), NAT))
+                    part = holding_cash(self.h.take(called), cf_rows(self.cf, called), periods,
+                                        self.amortization(called, redeemed[called]))
+                    self._cash[key] = whole.with_rows(called, part)
+                else:
+                    every = np.arange(len(self.h))
+                    self._cash[key] = holding_cash(self.h, self.cf, periods, self.amortization(every, redeemed))
         return self._cash[key]
 
     @cached_property
@@ -345,10 +357,11 @@ class _Planner:
                               horizon, self.expected(redeemed, end))
 
     def expected(self, redeemed: np.ndarray, until: np.datetime64) -> tuple[ExpectedCall, ...]:
-        rows = np.flatnonzero(~np.isnat(redeemed) & (redeemed <= until))
-        a = self.amortization(redeemed)
-        return tuple(ExpectedCall(str(self.h.id[i]), redeemed[i].astype(dt.date), float(a.redemption[i]))
-                     for i in rows[np.argsort(redeemed[rows], kind="stable")])
+        called = np.flatnonzero(~np.isnat(redeemed))
+        a = self.amortization(called, redeemed[called])
+        rows = np.flatnonzero(redeemed[called] <= until)
+        return tuple(ExpectedCall(str(self.h.id[called[i]]), redeemed[called[i]].astype(dt.date), float(a.redemption[i]))
+                     for i in rows[np.argsort(redeemed[called[rows]], kind="stable")])
 
 
 def income_scenarios(book: Book, chosen: Scenario) -> tuple[Scenario, ...]:

@@ -17,10 +17,12 @@ Their ids start ``GENERIC-`` and their issuer names with ``generic``: every matu
 rating has one generic issuer (``generic agency AA+ issuer``), so issuer and family limits hold for
 it as for one real issuer (the treasurer then sources real issuers). A purchase is at least the book's
 minimum ticket, in its lots (``[build]`` of book.toml); an offering is bought in at least the minimum
-ticket too (rounded up to its own increments). Funds are bought in any amount.
+ticket too (rounded up to its own increments). A fund is bought in any amount from the book's fund
+minimum (``[build].min_fund``) up, or not at all.
 
 The residual cash goes to a fund: the offerings' fund rows, else the book's own funds offered again,
-else a generic government fund at the curve's one-month rate.
+else a generic government fund at the curve's one-month rate; a residual under the fund minimum stays
+as cash.
 """
 
 from __future__ import annotations
@@ -231,11 +233,11 @@ def generic_candidates(book: Book, rungs: Rungs, settle: dt.date) -> Candidates:
 
 def with_tickets(c: Candidates, ticket: BuildSettings) -> Candidates:
     """``c`` with every security bought in at least the minimum ticket: its ``min_lot`` raised to the
-    ticket rounded up to its own increments (funds unchanged)."""
+    ticket rounded up to its own increments; every fund's raised to the fund minimum."""
     fund = c.fund
     steps = np.where(fund, 1.0, c.lot)
     raised = np.maximum(c.min_lot, np.ceil(ticket.min_ticket / steps - 1e-9) * steps)
-    return replace(c, min_lot=np.where(fund, c.min_lot, raised))
+    return replace(c, min_lot=np.where(fund, np.maximum(c.min_lot, ticket.min_fund), raised))
 
 
 def fund_candidates(book: Book, settle: dt.date) -> Candidates:

@@ -1,6 +1,6 @@
 """The naive even ladder, the yardstick for the optimizer: the cash split equally among the rungs,
 each rung's share split equally among the candidates maturing in it (as many of them, in order, as
-the share buys a minimum lot of each), each rounded down to whole lots, and the rest in the first fund."""
+the share buys a minimum lot of each), each rounded down to whole lots, and the rest in the first fund if it reaches the fund's minimum."""
 
 from __future__ import annotations
 
@@ -31,7 +31,8 @@ def naive_ladder(p: Program, rungs: Rungs) -> np.ndarray:
         x[members] = lots
     funds = np.flatnonzero(buy & fund)
     if len(funds):
-        x[funds[0]] = min(max(p.cash - float(cost @ x), 0.0) / cost[funds[0]], p.ub[funds[0]])
+        rest = min(max(p.cash - float(cost @ x), 0.0) / cost[funds[0]], p.ub[funds[0]])
+        x[funds[0]] = rest if rest >= p.lb[funds[0]] else 0.0
     return x
 
 

@@ -3,7 +3,8 @@
 Variables (one per candidate, and one per holding when sales are allowed):
 - a buy of a security: a count of lots, ``face = n * lot_increment``, with ``n = 0`` or
   ``min_lot / lot_increment <= n <= available / lot_increment`` (a semi-integer variable);
-- a buy of a fund: any amount (continuous, in currency units);
+- a buy of a fund: 0 or any amount from its minimum (``min_lot``, the book's ``[build].min_fund``) up, in
+  currency units (a semi-continuous variable), so that no dust goes into a fund;
 - a sale (``allow_sales``): a count of 1,000-face units of a holding (a fund: any amount).
 
 Every rule is linear in the faces bought and sold, because every policy measure is a share or a
@@ -21,6 +22,10 @@ eligible candidates (``ladder.build.candidates.eligible``).
 
 Each limit is tightened by a tiny margin (``MARGIN``) so that the solver's feasibility tolerance
 cannot leave a solution a hair past a limit when the checker grades it.
+
+Budget: the buys cost at most the cash (plus the proceeds of sales), and what is left is less than
+the fund minimum (a fund takes any more), so the leftover is only what no fund purchase of at least
+its minimum could take; it stays as cash.
 
 Objective: maximize expected income a year, sum of yield x market value over what is bought,
 less that of what is sold (the existing book's income is a constant). Rows are stored unscaled.
@@ -120,10 +125,11 @@ def _variables(pos: Positions, cands: Candidates, n_existing: int, cash: float, 
     cap = np.minimum(cands.available, spend / np.maximum(mv[c_idx], 1e-9) + cands.lot)
     ub = np.floor(cap / unit + 1e-9)
     offered = cands.available < spend / np.maximum(mv[c_idx], 1e-9) + cands.lot
-    lb_lots = np.where(c_fund, 0.0, np.round(cands.min_lot / np.where(c_fund, 1.0, cands.lot)))
-    buyable = ub >= np.maximum(lb_lots, 1)
-    integ = np.where(c_fund, 0, np.where(lb_lots > 1, 3, 1))
-    lb = np.where(integ == 3, lb_lots, 0.0)
+    lb_lots = np.where(c_fund, cands.min_lot, np.round(cands.min_lot / np.where(c_fund, 1.0, cands.lot)))
+    buyable = ub >= np.where(c_fund, lb_lots, np.maximum(lb_lots, 1))
+    # a fund with a minimum is semi-continuous (2), a lot count semi-integer (3) above one lot
+    integ = np.where(c_fund, np.where(lb_lots > 0, 2, 0), np.where(lb_lots > 1, 3, 1))
+    lb = np.where(integ >= 2, lb_lots, 0.0)
     ub = np.where(buyable, ub, 0.0)
     integ = np.where(buyable, integ, 1)
     lb = np.where(buyable, lb, 0.0)
@@ -154,9 +160,14 @@ def build_program(policy: Policy, cash_needs: CashNeeds | None, settle, rungs: R
     _policy_rows(r, policy, cash_needs, settle, allow_sales, families)
     _rung_rows(r, rungs, rung_band)
     has_fund = bool(np.any(pos.fund[var_pos] & (var_sign > 0) & (ub > 0)))
-    r.add(BUDGET, "", "currency", cash, pos.mv, cash, SENS_ONE, scope="traded", eq=has_fund)
-    r.text[BUDGET] = (f"the buys cost the cash to invest ({cash:,.2f})" + (" plus the proceeds of sales"
-                      if allow_sales else "") + ("; a fund takes the residual" if has_fund else ""))
+    r.add(BUDGET, "", "currency", cash, pos.mv, cash, SENS_ONE, scope="traded")
+    fund_buys = pos.fund[var_pos] & (var_sign > 0) & (ub > 0)
+    if has_fund:                  # what is left as cash is less than a fund purchase (else a fund takes it)
+        least = float(lb[fund_buys].max())
+        r.add(BUDGET, "left as cash", "currency", cash, -pos.mv, -(cash - max(least - MARGIN["currency"], 0.0)),
+              SENS_ONE, scope="traded")
+    r.text[BUDGET] = (f"the buys cost at most the cash to invest ({cash:,.2f})" + (" plus the proceeds of sales"
+                      if allow_sales else "") + ("; a fund takes the residual from its minimum up" if has_fund else ""))
     coeffs, b, eq, group, label, unit, limit, sens = zip(*r.rows)   # the budget row is always there
     c = pos.yld[var_pos] * pos.mv[var_pos] * var_unit * var_sign
     text = lambda values: np.array(values, dtype=object)  # noqa: E731

@@ -1,6 +1,9 @@
 """Solving the builder's program with HiGHS (through scipy), and explaining the answer.
 
-- ``solve``: the mixed-integer program (``scipy.optimize.milp``), to a relative gap of ``MIP_GAP``.
+- ``solve``: the mixed-integer program (``scipy.optimize.milp``), to a relative gap of ``MIP_GAP``. A
+  semi-continuous or semi-integer variable x (0 or lb <= x <= ub) is given to the solver as x with a
+  binary z beside it, lb z <= x <= ub z (the textbook indicator form; HiGHS as called by scipy 1.17
+  stops with a solve error on its own semi-variable types).
 - ``relaxation``: the linear relaxation (``scipy.optimize.linprog``, method "highs"): lots may be
   fractional and a semi-integer lot count may take any value from 0 to its maximum. Its dual values
   (``marginals``) say how much income a year one more unit of each row's right-hand side would
@@ -46,9 +49,37 @@ def _row_scale(p: Program) -> np.ndarray:
     return np.where(size > 0, size, 1.0)
 
 
-def _constraints(p: Program, A: np.ndarray, b: np.ndarray):
-    lower = np.where(p.eq, b, -np.inf)
-    return LinearConstraint(sparse.csr_matrix(A), lower, b)
+def _row_bounds(p: Program, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Lower and upper bounds of the rows ``A x <= b`` (``== b`` where ``p.eq``)."""
+    return np.where(p.eq, b, -np.inf), b
+
+
+def semi_milp(c, integrality, lb, ub, A, row_lower, row_upper, options):
+    """``scipy.optimize.milp`` with the semi-variables (integrality 2, 3) in the indicator form (module
+    docstring); returns the result with the indicators dropped from ``x``."""
+    semi = np.flatnonzero(integrality >= 2)
+    k, m = len(c), len(semi)
+    if m:
+        scale = np.maximum(ub[semi], 1.0)
+        pick = np.zeros((2 * m, k + m))
+        pick[np.arange(m), semi] = 1.0 / scale                  # x / ub - z <= 0
+        pick[np.arange(m), k + np.arange(m)] = -ub[semi] / scale
+        pick[m + np.arange(m), semi] = -1.0 / scale              # -x / ub + (lb / ub) z <= 0
+        pick[m + np.arange(m), k + np.arange(m)] = lb[semi] / scale
+        rows = sparse.csr_matrix(pick)
+        A = sparse.vstack([sparse.hstack([sparse.csr_matrix(A), sparse.csr_matrix((A.shape[0], m))]), rows]).tocsr()
+        row_lower = np.concatenate([row_lower, np.full(2 * m, -np.inf)])
+        row_upper = np.concatenate([row_upper, np.zeros(2 * m)])
+        integrality = np.concatenate([np.where(integrality == 3, 1, np.where(integrality == 2, 0, integrality)),
+                                      np.ones(m, np.int64)])
+        lb = np.concatenate([np.where(np.isin(np.arange(k), semi), 0.0, lb), np.zeros(m)])
+        ub = np.concatenate([ub, np.ones(m)])
+        c = np.concatenate([c, np.zeros(m)])
+    res = milp(c, integrality=integrality, bounds=Bounds(lb, ub),
+               constraints=LinearConstraint(sparse.csr_matrix(A), row_lower, row_upper), options=options)
+    if m and res.x is not None:
+        res.x = res.x[:k]
+    return res
 
 
 def solve(p: Program, time_limit: float = TIME_LIMIT_S) -> Solution:
@@ -61,16 +92,35 @@ def solve(p: Program, time_limit: float = TIME_LIMIT_S) -> Solution:
     scale = _row_scale(p)
     start = time.perf_counter()
     with solver_output_filtered():
-        res = milp(-p.c, integrality=p.integrality, bounds=Bounds(p.lb, p.ub),
-                   constraints=_constraints(p, p.A / scale[:, None], p.b / scale),
-                   options={"mip_rel_gap": MIP_GAP, "time_limit": time_limit, "presolve": True})
+        res = semi_milp(-p.c, p.integrality, p.lb, p.ub, p.A / scale[:, None], *_row_bounds(p, p.b / scale),
+                    {"mip_rel_gap": MIP_GAP, "time_limit": time_limit, "presolve": True})
     seconds = time.perf_counter() - start
     status = {0: "optimal", 1: "time_limit", 2: "infeasible"}.get(res.status, "error")
     if res.x is None:
         return Solution(status if status != "time_limit" else "time_limit", None, float("nan"), res.message, seconds)
-    x = np.where(p.integrality > 0, np.round(res.x), res.x)
+    x = np.where(np.isin(p.integrality, (1, 3)), np.round(res.x), res.x)
+    semi = p.integrality == 2                     # a fund the solver left at round-off above 0 is none
+    x = _within_budget(p, np.where(semi & (x < 0.5 * p.lb), 0.0, x))
     gap = getattr(res, "mip_gap", None)
     return Solution(status, x, float(p.c @ x), res.message, seconds, None if gap is None else float(gap))
+
+
+def _within_budget(p: Program, x: np.ndarray) -> np.ndarray:
+    """``x`` with the buys that may take any amount (funds) cut by what the solver's feasibility
+    tolerance overspent of the budget (a currency unit or so); a fund left under its minimum goes to 0."""
+    row = p.A[np.flatnonzero(p.group == BUDGET)[0]]
+    over = float(row @ x - p.b[p.group == BUDGET][0])
+    x = x.copy()
+    for j in np.flatnonzero((p.integrality % 2 == 0) & (p.var_sign > 0) & (x > 0) & (row > 0)):
+        if over <= 0:
+            break
+        cut = min(x[j], over / row[j])
+        x[j] -= cut
+        over -= cut * row[j]
+        if p.integrality[j] == 2 and x[j] < p.lb[j]:
+            over -= x[j] * row[j]
+            x[j] = 0.0
+    return x
 
 
 @dataclass(frozen=True, eq=False)
@@ -195,9 +245,8 @@ def diagnose(p: Program, integer: bool = True, time_limit: float = DIAGNOSE_TIME
     integrality = np.concatenate([p.integrality if integer else np.zeros(k, np.int64), np.zeros(len(soft), np.int64)])
     lower = np.concatenate([p.lb if integer else np.zeros(k), np.zeros(len(soft))])
     with solver_output_filtered():
-        res = milp(c, integrality=integrality, bounds=Bounds(lower, np.concatenate([p.ub, np.full(len(soft), np.inf)])),
-                   constraints=_constraints(p, A / scale[:, None], p.b / scale),
-                   options={"mip_rel_gap": DIAGNOSE_GAP, "time_limit": time_limit})
+        res = semi_milp(c, integrality, lower, np.concatenate([p.ub, np.full(len(soft), np.inf)]), A / scale[:, None],
+                    *_row_bounds(p, p.b / scale), {"mip_rel_gap": DIAGNOSE_GAP, "time_limit": time_limit})
     if res.x is None:
         return (Conflict(BUDGET, "no purchase fits the cash to invest", "currency", (("", p.cash, np.nan),)),)
     slack = res.x[k:]

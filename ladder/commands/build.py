@@ -177,7 +177,8 @@ def _print(result: BuildResult) -> None:
     if generic.any():
         con.print(f"[bold]* {GENERIC_NOTE}.[/]")
     con.print(f"Invested {fmt(result.invested, 2)} of {fmt(result.cash, 2)} (within one lot: largest lot "
-              f"{fmt(result.largest_lot, 2)}).")
+              f"{fmt(result.largest_lot, 2)}); {fmt(result.left_as_cash, 2)} left as cash (a fund purchase is "
+              f"none or at least {fmt(result.min_fund, 2)}, \\[build].min_fund).")
     summary = Table(title="Ladder before and after", header_style="bold")
     summary.add_column("")
     for title in ("Before", "After"):

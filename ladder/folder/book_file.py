@@ -40,6 +40,8 @@ TOP_KEYS = ("name", "base_currency", "valuation_date", "files", "spreads", "rein
 # The builder's purchases (common practice: the institutional round lot is 1,000,000 face).
 # MAX_TICKET refuses a figure typed with too many zeros.
 DEFAULT_MIN_TICKET, DEFAULT_LOT = 1_000_000.0, 1_000_000.0
+# A fund purchase the builder proposes is 0 or at least this (common practice: no dust into a fund).
+DEFAULT_MIN_FUND = 100_000.0
 MAX_TICKET = 1e10
 SPREAD_BUCKETS = RATING_BUCKETS + ("default",)
 # Defaults of the callable model (Hull-White): see docs/methods.md for where they come from.
@@ -99,10 +101,11 @@ class ModelSettings:
 @dataclass(frozen=True)
 class BuildSettings:
     """Purchases of the builder (``[build]`` of book.toml), face in currency units: a security at least
-    ``min_ticket``, a generic one in steps of ``lot``."""
+    ``min_ticket``, a generic one in steps of ``lot``; a fund purchase none or at least ``min_fund``."""
 
     min_ticket: float = DEFAULT_MIN_TICKET
     lot: float = DEFAULT_LOT
+    min_fund: float = DEFAULT_MIN_FUND
 
 
 @dataclass(frozen=True, eq=False)
@@ -278,8 +281,9 @@ def _read_settings(path: Path, problems: Problems):
 
 
 def _build(s: _Settings, data: dict) -> BuildSettings:
-    """``[build]``: tickets and lot, positive face amounts up to ``MAX_TICKET``; the ticket a whole number of lots."""
-    b = s.table(data, "build", ("min_ticket", "lot"))
+    """``[build]``: tickets and lot, positive face amounts up to ``MAX_TICKET``; the ticket a whole number of lots;
+    the fund minimum from 0 up to ``MAX_TICKET``."""
+    b = s.table(data, "build", ("min_ticket", "lot", "min_fund"))
     got = {}
     for key, default in (("min_ticket", DEFAULT_MIN_TICKET), ("lot", DEFAULT_LOT)):
         value = b.get(key, default)
@@ -291,7 +295,12 @@ def _build(s: _Settings, data: dict) -> BuildSettings:
     ticket, lot = got["min_ticket"], got["lot"]
     if lot > ticket or abs(ticket / lot - round(ticket / lot)) > 1e-9:
         s.error(("build", "min_ticket"), f"{ticket:,.0f} is not a whole number of lots of {lot:,.0f}")
-    return BuildSettings(**got)
+    min_fund = b.get("min_fund", DEFAULT_MIN_FUND)
+    if isinstance(min_fund, bool) or not isinstance(min_fund, (int, float)) or not 0 <= min_fund <= MAX_TICKET:
+        s.error(("build", "min_fund"), f"{min_fund!r} is not an amount; expected a number from 0 (no minimum) to "
+                                       f"{MAX_TICKET:,.0f}")
+        min_fund = DEFAULT_MIN_FUND
+    return BuildSettings(**got, min_fund=float(min_fund))
 
 
 def _collect(problems: Problems, read, *args):

@@ -8,7 +8,7 @@ on the call date and nothing after. Funds are cash in the plan and are not here.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, fields, replace
 
 import numpy as np
 
@@ -38,6 +38,19 @@ class HoldingCash:
     end_date: np.ndarray
     flows: CashFlows
 
+    def with_rows(self, rows: np.ndarray, part: "HoldingCash") -> "HoldingCash":
+        """This cash with the holdings at ``rows`` replaced by ``part`` (their cash, as many rows as
+        ``rows``, flows of the same width): each holding's cash depends on that holding alone."""
+        def put(whole: np.ndarray, some: np.ndarray) -> np.ndarray:
+            out = whole.copy()
+            out[rows] = some
+            return out
+
+        flows = replace(self.flows, **{f.name: put(getattr(self.flows, f.name), getattr(part.flows, f.name))
+                                       for f in fields(self.flows)})
+        return replace(self, flows=flows, **{f.name: put(getattr(self, f.name), getattr(part, f.name))
+                                             for f in fields(self) if f.name != "flows"})
+
 
 def holding_cash(h: Holdings, cf: CashFlows, periods: Periods, amortization: Amortization) -> HoldingCash:
     """Bucket the flows of ``h`` (cash-flow matrix ``cf`` at the plan date) and their income by period.
@@ -57,10 +70,11 @@ def holding_cash(h: Holdings, cf: CashFlows, periods: Periods, amortization: Amo
 
     is_call = work.dates == np.where(amortization.end_date < h.maturity, amortization.end_date,
                                      np.datetime64("NaT"))[:, None]
-    earned = amortization.earned(periods.boundaries)
+    accrued = amortization.accrued(periods.boundaries)
+    earned = amortization.earned(periods.boundaries, accrued)
     return HoldingCash(
         coupon=bucket(work.coupon), principal=bucket(work.principal),
         called=bucket(np.where(is_call, work.principal, 0.0)), income=earned.total * face,
         cost=np.nan_to_num(amortization.cost(periods.boundaries)),
-        accrued=np.nan_to_num(amortization.accrued(periods.boundaries)), end_date=amortization.end_date,
+        accrued=np.nan_to_num(accrued), end_date=amortization.end_date,
         flows=work)

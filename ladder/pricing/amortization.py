@@ -110,43 +110,52 @@ class Amortization:
         return len(self.holdings)
 
     def cost(self, dates) -> np.ndarray:
-        """Clean amortized cost per 100 on each of ``dates`` (m,): (n, m); NaN before purchase, 0 on
-        and after the redemption date, 100 for funds."""
-        q = to_days(dates)
-        n = len(self)
-        out = _interpolate(self.node_dates, self.node_cost, np.broadcast_to(q[None, :], (n, len(q))))
-        out = np.where(q[None, :] < self.purchase_date[:, None], np.nan,
-                       np.where(q[None, :] >= self.end_date[:, None], 0.0, out))
+        """Clean amortized cost per 100 on each of ``dates`` ((m,) for every holding, or (n, m), a row
+        of dates per holding): (n, m); NaN before purchase, 0 on and after the redemption date, 100
+        for funds."""
+        q = self._per_row(dates)
+        out = _interpolate(self.node_dates, self.node_cost, q)
+        out = np.where(q < self.purchase_date[:, None], np.nan, np.where(q >= self.end_date[:, None], 0.0, out))
         return np.where(self.fund[:, None], 100.0, out)
 
     def accrued(self, dates) -> np.ndarray:
-        """Accrued coupon interest per 100 on each of ``dates`` (m,): (n, m); NaN before purchase,
-        0 on and after redemption and for funds (a fund's income is paid into its balance)."""
-        q = to_days(dates)
-        out = np.zeros((len(self), len(q)))
+        """Accrued coupon interest per 100 on each of ``dates`` ((m,) or (n, m), as ``cost``): (n, m);
+        NaN before purchase, 0 on and after redemption and for funds (a fund's income is paid into
+        its balance)."""
+        q = self._per_row(dates)
+        out = np.zeros(q.shape)
         held = ~self.fund[:, None] & (self.purchase_date[:, None] <= q) & (q < self.end_date[:, None])
         rows, cols = np.nonzero(held)
         if len(rows):                            # one cash-flow matrix for every (holding, date) pair
-            out[rows, cols] = cash_flows(self.holdings.take(rows), q[cols]).accrued
+            out[rows, cols] = cash_flows(self.holdings.take(rows), q[rows, cols]).accrued
         return np.where(~self.fund[:, None] & (q < self.purchase_date[:, None]), np.nan, out)
 
-    def earned(self, boundaries) -> Earned:
+    def _per_row(self, dates) -> np.ndarray:
+        q = to_days(dates)
+        return np.broadcast_to(q[None, :], (len(self), len(q))) if q.ndim == 1 else q
+
+    def earned(self, boundaries, accrued: np.ndarray | None = None) -> Earned:
         """Interest earned in each period (b[p-1], b[p]] of ``boundaries`` (P+1,) ascending: per 100.
 
         A period that starts before the purchase counts from the purchase date (the accrued interest
         bought is not income); a fund earns its stated yield on ACT/365F over the days it spans.
+        ``accrued``: ``self.accrued(boundaries)`` if the caller has it (it is the costly part).
         """
         b = to_days(boundaries)
         start = np.maximum(b[None, :-1], self.purchase_date[:, None])
         end = b[None, 1:]
         start = np.where(np.isnat(self.purchase_date)[:, None], b[None, :-1], start)
         span = np.maximum(days_between(start, end), 0.0)
-        edges = np.unique(np.concatenate([b, self.purchase_date[~np.isnat(self.purchase_date)]]))
+        # each holding's cost and accrued on the boundaries and on its own purchase date (column P+1)
+        own = np.where(np.isnat(self.purchase_date), b[0], self.purchase_date)
+        edges = np.concatenate([np.broadcast_to(b[None, :], (len(self), len(b))), own[:, None]], axis=1)
         cost = self.cost(edges)
-        accrued = self.accrued(edges)
-        at = lambda d: np.searchsorted(edges, d)                                         # noqa: E731
+        accrued = (self.accrued(edges) if accrued is None
+                   else np.concatenate([accrued, self.accrued(edges[:, -1:])], axis=1))
         rows = np.arange(len(self))[:, None]
-        s_idx, e_idx = at(np.where(np.isnat(start), b[0], start)), at(end)
+        P = len(b) - 1
+        s_idx = np.where(start > b[None, :-1], P + 1, np.arange(P)[None, :])
+        e_idx = np.broadcast_to(np.arange(1, P + 1)[None, :], s_idx.shape)
         alive = span > 0
         coupon_due = self._due(self.flow_coupon, b, start)
         principal_due = self._due(self.flow_principal, b, start)

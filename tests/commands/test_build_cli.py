@@ -39,7 +39,10 @@ def test_json_build_writes_trades_that_ladder_check_passes(book, tmp_path):
     doc = json.loads(run.stdout)                     # stdout is the document alone (no solver chatter)
     assert doc["status"] == "built" and doc["rungs"] == "12x3M"
     assert doc["compliance"]["status"] != "breach"
-    assert doc["after"]["market_value"] == pytest.approx(doc["before"]["market_value"] + 25_000_000, rel=1e-9, abs=0)
+    # what no lot and no fund purchase of at least [build].min_fund takes is left as cash
+    assert doc["after"]["market_value"] == pytest.approx(doc["before"]["market_value"] + 25_000_000
+                                                         - doc["left_as_cash"], rel=1e-9, abs=0)
+    assert doc["left_as_cash"] < doc["min_fund"]
     assert doc["after"]["yield_to_worst_pct"] >= doc["naive_even_ladder"]["yield_to_worst_pct"]
     header = out.read_text().splitlines()[0].split(",")
     assert header[0] == "id" and header[-2:] == ["action", "funded_from"]     # issue 14: the new cash is new_money

@@ -93,6 +93,8 @@ def test_a_missed_liquidity_floor_is_a_breach_under_continuous_testing(demo):
     ("book.toml", "[reinvest]", "[build]\nmin_ticket = 0\n\n[reinvest]", r"book\.toml:\d+:\d+: build\.min_ticket: 0 is not"),
     ("book.toml", "[reinvest]", "[build]\nmin_ticket = -5\n\n[reinvest]", r"book\.toml:\d+:\d+: build\.min_ticket: -5"),
     ("book.toml", "[reinvest]", "[build]\nmin_ticket = 1e15\n\n[reinvest]", r"book\.toml:\d+:\d+: build\.min_ticket"),
+    ("book.toml", "[reinvest]", "[build]\nmin_fund = -1\n\n[reinvest]", r"book\.toml:\d+:\d+: build\.min_fund: -1 is not"),
+    ("book.toml", "[reinvest]", "[build]\nmin_fund = \"some\"\n\n[reinvest]", r"book\.toml:\d+:\d+: build\.min_fund"),
 ])
 def test_bad_input_is_refused_with_its_place_and_nothing_written(demo, tmp_path, file, old, new, pattern):
     _edit(demo / file, old, new)
