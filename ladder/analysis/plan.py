@@ -300,10 +300,12 @@ class _Planner:
                             wam_days=pf.max_wam_days, duration_years=pf.max_effective_duration,
                             fund_cap_pct=fund.max_pct if fund is not None else None)
 
-    def setup(self, scenario: Scenario, months: int, reinvestment: Reinvestment | None = None):
-        """(the projection's setup, the scenario's rate path, expected call dates)."""
+    def setup(self, scenario: Scenario, months: int, reinvestment: Reinvestment | None = None,
+              path: RatePath | None = None):
+        """(the projection's setup, the scenario's rate path, expected call dates); ``path``: the
+        curve on every later date when not the scenario's (a simulated path of ``ladder risk``)."""
         periods = make_periods(self.as_of, months, self.options.period)
-        path = self.path(scenario)
+        path = self.path(scenario) if path is None else path
         redeemed = self.redeemed_on(path, self.spread + self.spread_move(scenario))
         cash = self.holding_cash(periods, redeemed)
         r = reinvestment or self.reinvestment
