@@ -254,10 +254,11 @@ def run_chunk(engine: Engine, paths: ShortRatePaths, needs: np.ndarray) -> list[
 
 def risk_book(book: Book, at: dt.date | None = None, options: RiskOptions = RiskOptions(),
               progress: Callable[[int, int], None] | None = None,
-              run: Callable | None = None) -> RiskResult:
+              run: Callable | None = None, chunk: int = CHUNK) -> RiskResult:
     """Income and liquidity at risk of ``book`` at ``at`` (default: the valuation date); see the module
     docstring. ``progress`` is called with (paths done, paths in all); ``run`` maps ``run_chunk`` over
-    the chunks (default: one after another; ``ladder.analysis.risk_dask.dask_runner`` for dask).
+    the chunks of ``chunk`` paths (default: one after another; ``ladder.analysis.risk_dask.dask_runner``
+    for dask).
     Raises ``InputError`` with every problem in the options."""
     as_of = at or book.valuation_date
     problems = option_problems(book, options, as_of)
@@ -281,14 +282,14 @@ def risk_book(book: Book, at: dt.date | None = None, options: RiskOptions = Risk
     needs = draw_needs(planner.need_dates, planner.need_amounts, below, above, periods, n,
                        options.needs_correlation, options.seed)
     engine = Engine(planner, resolve_scenario(book), rules, options.months)
-    chunks = [np.arange(i, min(i + CHUNK, n)) for i in range(0, n, CHUNK)]
+    chunks = [np.arange(i, min(i + chunk, n)) for i in range(0, n, chunk)]
     jobs = [(paths.take(c), needs[c]) for c in chunks]
     if run is None:
         results = []
         for done, (p, d) in enumerate(jobs, start=1):
             results.append(run_chunk(engine, p, d))
             if progress is not None:
-                progress(min(done * CHUNK, n), n)
+                progress(min(done * chunk, n), n)
     else:
         results = run(engine, jobs)
     outcomes = tuple(RuleRisk(r, PathOutcomes.join([res[j] for res in results])) for j, r in enumerate(rules))

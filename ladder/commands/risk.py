@@ -40,6 +40,8 @@ def add_parser(subparsers) -> None:
                         help="a reinvestment rule to run (repeat for several; default: every rule)")
     parser.add_argument("--fan", choices=REINVEST_RULES, metavar="RULE",
                         help="the rule whose cash fan is drawn (default: book.toml's rule)")
+    parser.add_argument("--dask", choices=("threads", "processes", "synchronous"), metavar="SCHEDULER",
+                        help="run the chunks of paths on a dask scheduler (needs the 'scale' extra)")
     parser.set_defaults(run=run)
 
 
@@ -50,7 +52,12 @@ def run(args) -> int:
                           rules=tuple(args.reinvest) if args.reinvest else None)
     from ladder.commands.plan import _with_progress
 
-    result = _with_progress(lambda progress: risk_book(book, args.at, options, progress=progress),
+    run_on = None
+    if args.dask:
+        from ladder.analysis.risk_dask import dask_runner
+
+        run_on = dask_runner(args.dask)
+    result = _with_progress(lambda progress: risk_book(book, args.at, options, progress=progress, run=run_on),
                             "income and liquidity at risk: paths")
     emit(args.format, lambda: risk_document(result), lambda: risk_records(result),
          lambda: _table(book, result, args.fan))

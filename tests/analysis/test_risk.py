@@ -93,3 +93,18 @@ def test_needs_draws_have_the_stated_spread_and_correlation():
     # a 90 % range: low = amount - 1.645 sd below only; nothing drawn above the amount
     one_sided = draw_needs(dates, amounts, sd, np.zeros(6), periods, 1000, rho, seed=11)
     assert one_sided.max() <= 1_000_000.0 and one_sided.min() < 1_000_000.0
+
+
+def test_dask_local_scheduler_gives_the_same_outcomes(tmp_path):
+    # the chunks run by dask's local schedulers (dask's own documentation: dask.compute with
+    # scheduler="threads" / "synchronous") are the chunks run one after another
+    from ladder.analysis.risk_dask import dask_runner
+
+    book = _demo(tmp_path / "demo")
+    options = RiskOptions(paths=100, months=2, rules=("fund",))
+    plain = risk_book(book, options=options)
+    for scheduler in ("threads", "synchronous"):
+        got = risk_book(book, options=options, run=dask_runner(scheduler), chunk=30)   # the last chunk short
+        np.testing.assert_allclose(got.rules[0].outcomes.income, plain.rules[0].outcomes.income, rtol=1e-12, atol=0)
+        np.testing.assert_allclose(got.rules[0].outcomes.horizon_value, plain.rules[0].outcomes.horizon_value,
+                                   rtol=1e-12, atol=0)
