@@ -227,29 +227,32 @@ class Engine:
 
 def run_chunk(engine: Engine, paths: ShortRatePaths, needs: np.ndarray) -> list[PathOutcomes]:
     """The plan on each of ``paths`` with ``needs`` (n, P), for each rule: one ``PathOutcomes`` a rule.
-    A pure function of its arguments, so that any scheduler can run chunks in parallel."""
+    A pure function of its arguments, so that any scheduler can run chunks in parallel. What does not
+    depend on the rule (calls, holdings' values on the path) is built once a path."""
     n, P = needs.shape
-    out = []
+    J = len(engine.rules)
+    income_12m, horizon_value, realized_loss = np.zeros((J, n)), np.zeros((J, n)), np.zeros((J, n))
+    sold = np.zeros((J, n), bool)
+    avail, closing, income = np.zeros((J, n, P)), np.zeros((J, n, P)), np.zeros((J, n, P))
     curves = PathCurves(paths)
-    for r in engine.rules:
-        cols = {k: np.zeros(n) for k in ("income_12m", "horizon_value", "realized_loss")}
-        sold = np.zeros(n, bool)
-        avail, closing, income = np.zeros((n, P)), np.zeros((n, P)), np.zeros((n, P))
-        for i in range(n):
-            path = SimulatedPath(engine.planner.valuation.curve, "forward", curves, i)
-            setup, _, _ = engine.planner.setup(engine.base, engine.months, r, path=path)
-            pr = project(replace(setup, needs=needs[i]))
+    planner = engine.planner
+    for i in range(n):
+        path = SimulatedPath(planner.valuation.curve, "forward", curves, i)
+        common, _, _ = planner.setup(engine.base, engine.months, engine.rules[0], path=path)
+        common = replace(common, needs=needs[i])
+        for j, r in enumerate(engine.rules):
+            setup = common if j == 0 else planner.with_rule(common, engine.base, path, r)
+            pr = project(setup)
             held = float(pr.face_path[:, -1] @ setup.dirty[:, -1]) / 100.0
             if pr.menu is not None:
                 held += float((pr.lot_path[-1] * pr.menu.dirty[:, :, -1]).sum()) / 100.0
-            cols["income_12m"][i] = pr.income[:INCOME_MONTHS].sum()
-            cols["horizon_value"][i] = held + pr.closing_cash[-1]
-            cols["realized_loss"][i] = max(-pr.realized_gain, 0.0)
-            sold[i] = bool(pr.sale_list)
-            avail[i], closing[i], income[i] = pr.available, pr.closing_cash, pr.income
-        out.append(PathOutcomes(cols["income_12m"], cols["horizon_value"], sold, cols["realized_loss"], avail,
-                                closing, income, needs.copy()))
-    return out
+            income_12m[j, i] = pr.income[:INCOME_MONTHS].sum()
+            horizon_value[j, i] = held + pr.closing_cash[-1]
+            realized_loss[j, i] = max(-pr.realized_gain, 0.0)
+            sold[j, i] = bool(pr.sale_list)
+            avail[j, i], closing[j, i], income[j, i] = pr.available, pr.closing_cash, pr.income
+    return [PathOutcomes(income_12m[j], horizon_value[j], sold[j], realized_loss[j], avail[j], closing[j], income[j],
+                         needs.copy()) for j in range(J)]
 
 
 def risk_book(book: Book, at: dt.date | None = None, options: RiskOptions = RiskOptions(),
