@@ -172,6 +172,8 @@ def option_problems(book: Book, options: RiskOptions, as_of: dt.date) -> Problem
     problems = Problems()
     if not MIN_PATHS <= options.paths <= MAX_PATHS:
         problems.add("--paths", 0, 0, f"the number of paths must be {MIN_PATHS:,} to {MAX_PATHS:,}, not {options.paths:,}")
+    if not 0 <= options.seed < 2 ** 63:
+        problems.add("--seed", 0, 0, f"the seed must be a whole number from 0, not {options.seed}")
     if not 1 <= options.months <= MAX_RISK_MONTHS:
         problems.add("--months", 0, 0, f"the horizon must be 1 to {MAX_RISK_MONTHS} months, not {options.months}")
     else:

@@ -67,8 +67,9 @@ def test_document_holds_the_contract(tmp_path):
 def test_bad_options_are_named(tmp_path):
     book = _demo(tmp_path / "demo")
     with pytest.raises(InputError) as caught:
-        risk_book(book, options=RiskOptions(paths=99, months=40, needs_correlation=1.5))
+        risk_book(book, options=RiskOptions(paths=99, months=40, needs_correlation=1.5, seed=-1))
     text = str(caught.value)
+    assert "--seed" in text
     assert "--paths" in text and "--months" in text and "beyond the cash-needs forecast" in text
     assert "--needs-correlation" in text
     with pytest.raises(InputError, match="--paths"):
