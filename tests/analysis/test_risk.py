@@ -6,6 +6,8 @@ drawn around the forecast have the stated spread and month-to-month correlation 
 correlation rho; a normal: mean and standard deviation as given), within 4 standard errors.
 """
 
+import csv
+import io
 import math
 import re
 
@@ -109,3 +111,25 @@ def test_dask_local_scheduler_gives_the_same_outcomes(tmp_path):
         np.testing.assert_allclose(got.rules[0].outcomes.income, plain.rules[0].outcomes.income, rtol=1e-12, atol=0)
         np.testing.assert_allclose(got.rules[0].outcomes.horizon_value, plain.rules[0].outcomes.horizon_value,
                                    rtol=1e-12, atol=0)
+
+
+def test_uncertain_needs_reach_every_path(tmp_path):
+    # cash_needs.csv with a stdev of 10 % beside each amount: the needs drawn differ from path to path
+    # and average to the forecast within 4 standard errors (the normal's sample mean)
+    book = _demo(tmp_path / "demo")
+    path = book.files["cash_needs"]
+    rows = list(csv.DictReader(io.StringIO(path.read_text())))
+    out = io.StringIO()
+    writer = csv.DictWriter(out, fieldnames=["date", "amount", "label", "stdev"])
+    writer.writeheader()
+    for r in rows:
+        writer.writerow({**r, "stdev": f"{abs(float(r['amount'])) * 0.1:.0f}"})
+    path.write_text(out.getvalue())
+    book = load_book(book.folder)
+    result = risk_book(book, options=RiskOptions(paths=200, months=3, rules=("fund",)))
+    needs = result.rules[0].outcomes.needs
+    forecast = plan_book(book, options=PlanOptions(months=3, rule="fund"), with_income=False).projection.needs
+    assert (needs.std(axis=0) > 0).all()
+    se = needs.std(axis=0) / math.sqrt(len(needs))
+    assert (np.abs(needs.mean(axis=0) - forecast) <= 4 * se).all()
+    assert not any("certain" in note for note in result.notes)
