@@ -19,7 +19,7 @@ from ladder.errors import FileFault, InputError, NothingToValue, describe_os_err
 from ladder.neutralize import safe_terminal
 
 # subcommand -> module in ladder/commands
-COMMANDS = {"value": "value", "shock": "shock", "check": "check", "plan": "plan", "build": "build",
+COMMANDS = {"value": "value", "shock": "shock", "check": "check", "plan": "plan", "risk": "risk", "build": "build",
             "report": "report", "import": "custodian", "roll": "roll", "cash": "cash", "restore": "restore", "open": "open",
             "demo": "demo"}
 EXIT_OK, EXIT_BREACH, EXIT_INPUT, EXIT_FILE = 0, 1, 2, 3

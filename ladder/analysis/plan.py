@@ -312,22 +312,28 @@ class _Planner:
                             wam_days=pf.max_wam_days, duration_years=pf.max_effective_duration,
                             fund_cap_pct=fund.max_pct if fund is not None else None)
 
-    def setup(self, scenario: Scenario, months: int, reinvestment: Reinvestment | None = None):
-        """(the projection's setup, the scenario's rate path, expected call dates)."""
+    def setup(self, scenario: Scenario, months: int, reinvestment: Reinvestment | None = None,
+              path: RatePath | None = None):
+        """(the projection's setup, the scenario's rate path, expected call dates); ``path``: the
+        curve on every later date when not the scenario's (a simulated path of ``ladder risk``)."""
         periods = make_periods(self.as_of, months, self.options.period)
-        path = self.path(scenario)
+        path = self.path(scenario) if path is None else path
         redeemed = self.redeemed_on(path, self.spread + self.spread_move(scenario))
         cash = self.holding_cash(periods, redeemed)
-        r = reinvestment or self.reinvestment
-        spread_bp = r.spread_bp + reinvestment_move_bp(self.book, scenario, r.sector)
-        menu = None if r.rule == "fund" else make_menu(path, periods, r.menu, r.sector, spread_bp / 1e4)
-        long_end = -1 if menu is None else int(np.searchsorted(menu.months, r.months))
         shift = path.short_rate(periods.boundaries[:-1]) - self.base_short
         dirty, duration = later_values(cash.flows, self.spread + self.spread_move(scenario), path, periods.boundaries)
         setup = PlanSetup(periods, self.h, cash, dirty, duration, self.opening_cash,
                           periods.total(self.need_dates, self.need_amounts), np.maximum(self.fund_yield + shift, 0.0),
-                          menu, r.rule, long_end, r.buffer, self.limits)
-        return setup, path, redeemed
+                          None, "fund", -1, 0.0, self.limits)
+        return self.with_rule(setup, scenario, path, reinvestment or self.reinvestment), path, redeemed
+
+    def with_rule(self, setup: PlanSetup, scenario: Scenario, path: RatePath, r: Reinvestment) -> PlanSetup:
+        """``setup`` with reinvestment ``r``: its rule, buffer and menu on ``path`` (the rest is the same
+        for every rule, so a caller running several rules on one path builds it once)."""
+        spread_bp = r.spread_bp + reinvestment_move_bp(self.book, scenario, r.sector)
+        menu = None if r.rule == "fund" else make_menu(path, setup.periods, r.menu, r.sector, spread_bp / 1e4)
+        long_end = -1 if menu is None else int(np.searchsorted(menu.months, r.months))
+        return replace(setup, menu=menu, rule=r.rule, long_end=long_end, buffer=r.buffer)
 
     def run(self, scenario: Scenario, months: int, reinvestment: Reinvestment | None = None):
         setup, path, redeemed = self.setup(scenario, months, reinvestment)

@@ -74,7 +74,7 @@ def test_header_problems(tmp_path):
     f = str(tmp_path / "cash_needs.csv")
     assert problems(write(tmp_path, "date,amout,label,date\n2025-01-01,1,x,2025-01-01\n")) == [
         f"{f}:1:0: required column 'amount' is missing",
-        f"{f}:1:2: unknown column 'amout' (did you mean 'amount'?); known columns: date, amount, label",
+        f"{f}:1:2: unknown column 'amout' (did you mean 'amount'?); known columns: date, amount, label, low, high, stdev",
         f"{f}:1:4: column 'date' appears twice",
     ]
     assert problems(write(tmp_path, "")) == [f"{f}:1:0: the file is empty; the first row must name the columns"]
