@@ -128,8 +128,8 @@ def test_price_tends_to_the_lowest_workout_as_volatility_vanishes():
     target = deterministic_workouts(bonds, sloped)
     gaps = [np.max(np.abs(callable_prices(bonds, sloped, 0.0, HullWhiteParams(0.03, s)) - target))
             for s in (0.01, 0.001, 1e-4, 0.0)]
-    assert gaps[0] > gaps[1] > gaps[2] > gaps[3]
-    assert gaps[3] < 1e-10
+    assert gaps[0] > gaps[1] > 1e-3            # the option's time value shrinks with the volatility
+    assert max(gaps[2:]) < 1e-10               # and is gone (to round-off) at 1e-4 and at zero
 
 
 def test_curve_shift_equals_spread_shift():
