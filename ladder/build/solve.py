@@ -18,7 +18,6 @@ from dataclasses import dataclass
 
 import numpy as np
 from scipy import sparse
-from scipy.optimize import Bounds, LinearConstraint, linprog, milp
 
 from ladder.build.program import BUDGET, SENS_BUYS, SENS_ONE, Program
 from ladder.build.quiet import solver_output_filtered
@@ -47,6 +46,8 @@ def _row_scale(p: Program) -> np.ndarray:
 
 
 def _constraints(p: Program, A: np.ndarray, b: np.ndarray):
+    from scipy.optimize import LinearConstraint
+
     lower = np.where(p.eq, b, -np.inf)
     return LinearConstraint(sparse.csr_matrix(A), lower, b)
 
@@ -57,6 +58,8 @@ def solve(p: Program, time_limit: float = TIME_LIMIT_S) -> Solution:
     Rows are scaled to unit size; the objective is kept in currency a year (an objective scaled to
     tiny numbers falls under the solver's optimality tolerances and its search stalls)."""
     import time
+
+    from scipy.optimize import Bounds, milp   # here, not at the top: the commands start without it
 
     scale = _row_scale(p)
     start = time.perf_counter()
@@ -86,6 +89,8 @@ class Relaxation:
 def relaxation(p: Program) -> Relaxation:
     """The linear relaxation of ``p`` and its dual values (income a year per unit of right-hand side)."""
     import time
+
+    from scipy.optimize import linprog
 
     scale = _row_scale(p)
     A, b = p.A / scale[:, None], p.b / scale
@@ -181,6 +186,8 @@ def diagnose(p: Program, integer: bool = True, time_limit: float = DIAGNOSE_TIME
 
     With ``integer`` False (when even the linear relaxation has no solution) lots may be fractional:
     a linear program, solved exactly and fast; else the integer program to ``DIAGNOSE_GAP``."""
+    from scipy.optimize import Bounds, milp
+
     soft = np.flatnonzero(p.group != BUDGET)
     sens = np.select([p.sens == SENS_ONE, p.sens == SENS_BUYS], [1.0, max(p.cash, 1.0) / 100.0],
                      default=max(p.positions.mv @ p.face0 + p.cash, 1.0))

@@ -32,11 +32,10 @@ from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import elementwise
-
 from ladder.errors import Problems
 from ladder.market.dates import add_months
 from ladder.pricing.hull_white_tree import Discount, HullWhiteTree
+from ladder.pricing.roots import decreasing_roots
 
 # Float slack when placing an event time on the grid (in steps): an event within 1e-9 of a step of
 # a grid time is on it.
@@ -187,10 +186,10 @@ def callable_prices(bonds: CallableBonds, discount: Discount, oas, params: HullW
 
 def option_adjusted_spreads(bonds: CallableBonds, discount: Discount, dirty_prices,
                             params: HullWhiteParams = HullWhiteParams(), *, workers: int | None = None,
-                            tolerance: float = 1e-9) -> np.ndarray:
+                            tolerance: float = 1e-11) -> np.ndarray:
     """OAS (decimal) of each bond from its market dirty price per 100, to ``tolerance`` in the spread.
 
-    One vectorized bracket-and-Chandrupatla solve (``scipy.optimize.elementwise``) across all bonds;
+    One vectorized bracketed search (``ladder.pricing.roots.decreasing_roots``) across all bonds;
     each iteration is one rollback of the bonds still unsolved. Price falls as the OAS rises, so the
     root is unique; the search starts from the bullet's z-spread, which is an upper bound.
     """
@@ -319,31 +318,23 @@ class _Lattice:
         return df[:, :len(self.flows.years)], df[:, len(self.flows.years):]
 
     def spreads_for(self, discount: Discount, target: np.ndarray, workers: int | None,
-                    tolerance: float = 1e-9) -> np.ndarray:
+                    tolerance: float = 1e-11) -> np.ndarray:
         """OAS of each bond for dirty prices ``target`` on one curve: bracket below the bullet z-spread,
-        then Chandrupatla."""
+        then a bracketed search (``decreasing_roots``)."""
         calls_on = np.ones(len(target), bool)
         dfs = self.discounts(discount)
 
         def excess(s, b):
-            b = b.astype(int)
             return self.values(dfs, b, np.zeros(len(b), int), s, calls_on[b], workers) - target[b]
 
         z = self.bullet_spreads(discount, target)
-        idx = np.arange(len(target))
-        found = elementwise.bracket_root(excess, z - 0.01, z, xmax=z + 1e-6, args=(idx,))
-        root = elementwise.find_root(excess, found.bracket, args=(idx,),
-                                     tolerances=dict(xatol=tolerance, xrtol=0.0))
-        return np.where(found.success & root.success, root.x, np.nan)
+        return decreasing_roots(excess, z - 0.01, z, xtol=tolerance, xmax=z + 1e-6)
 
     def bullet_spreads(self, discount: Discount, target: np.ndarray) -> np.ndarray:
         """z-spread of each bullet (calls ignored) for dirty prices ``target``; an upper bound on the OAS."""
-        idx = np.arange(len(target))
-        excess = lambda z, b: self._bullet_rows(discount, b.astype(int), z) - target[b.astype(int)]
-        found = elementwise.bracket_root(excess, np.full(len(idx), -0.05), np.full(len(idx), 0.05),
-                                         args=(idx,))
-        return elementwise.find_root(excess, found.bracket, args=(idx,),
-                                     tolerances=dict(xatol=1e-12, xrtol=0.0)).x
+        excess = lambda z, b: self._bullet_rows(discount, b, z) - target[b]
+        n = len(target)
+        return decreasing_roots(excess, np.full(n, -0.05), np.full(n, 0.05), xtol=1e-12)
 
     def bullet_values(self, discount: Discount, oas: np.ndarray) -> np.ndarray:
         """Dirty prices without the calls: sum of amount * DF(t) * exp(-OAS t).
@@ -494,7 +485,7 @@ def workout_yields(dirty_prices, frequency, flow_periods, flow_amounts, flow_mas
     price = sum CF / (1 + y/f)^periods with f = ``frequency`` (n,) coupons a year. To a call date the
     flows are the coupons paid up to and on that date plus the call price and the accrued interest at
     the call date; to maturity, every flow. Yield to worst is the lowest of them (common practice).
-    All yields are solved together with one vectorized bracket-and-Chandrupatla search.
+    All yields are solved together with one vectorized bracketed search (``decreasing_roots``).
     """
     price = np.asarray(dirty_prices, float)
     n = len(price)
@@ -516,12 +507,9 @@ def workout_yields(dirty_prices, frequency, flow_periods, flow_amounts, flow_mas
             pv = (amounts[p] * v[:, None] ** -periods[bond[p]]).sum(axis=1, where=included[p])
         return pv + redemption[bond[p], work[p]] * v ** -horizon[bond[p], work[p]] - price[bond[p]]
 
-    idx = np.arange(len(bond))
-    found = elementwise.bracket_root(excess, np.zeros(len(idx)), np.full(len(idx), 0.10),
-                                     xmin=-0.999 * f[bond], args=(idx,))
-    root = elementwise.find_root(excess, found.bracket, args=(idx,), tolerances=dict(xatol=1e-12, xrtol=0.0))
     yields = np.full((n, m + 1), np.nan)
-    yields[bond, work] = np.where(found.success & root.success, root.x, np.nan)
+    yields[bond, work] = decreasing_roots(excess, np.zeros(len(bond)), np.full(len(bond), 0.10), xtol=1e-12,
+                                          xmin=-0.999 * f[bond])
     to_call = yields[:, :m]
     first = np.argmax(np.isfinite(to_call), axis=1)
     has_call = np.isfinite(to_call).any(axis=1)
