@@ -360,7 +360,7 @@ class _Lattice:
         similar length, shared by ``workers`` threads (default: the machine's cores, at most 4).
         """
         workers = workers or min(os.cpu_count() or 1, 4)
-        order = np.argsort(-self.last_step[bond], kind="stable")
+        order = np.lexsort((curve, bond, -self.last_step[bond]))   # a bond's lanes side by side
         count = max(math.ceil(len(bond) / _CHUNK), min(workers, max(len(bond) // 64, 1)))
         chunks = np.array_split(order, count)
         out = np.empty(len(bond))
@@ -450,8 +450,9 @@ class _LaneIndex:
         return self.by_bond[self.start[event_bond][ev] + offset], ev
 
 
-# Lanes rolled back together in one array (nodes x lanes): about 10 MB at 600 nodes.
-_CHUNK = 2048
+# Lanes rolled back together in one array (nodes x lanes): about 1 MB at 250 nodes, so a step stays
+# in the cache (measured best of 256 to 4096 on 1,000 bonds x 61 curves).
+_CHUNK = 512
 # Lattices by bonds (held while the bonds are) and parameters: valuation and every scenario share one.
 _LATTICES: "weakref.WeakKeyDictionary[CallableBonds, dict]" = weakref.WeakKeyDictionary()
 
