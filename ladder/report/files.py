@@ -12,13 +12,14 @@ import tempfile
 from pathlib import Path
 
 from ladder.folder.save import write_atomic
-from ladder.report.charts import chart_png
+from ladder.report.charts import chart_key, chart_png
 from ladder.report.html import report_html
 from ladder.report.markdown import report_md
 from ladder.report.model import Report
 from ladder.report.xlsx import report_xlsx
 
 FORMATS = ("html", "xlsx", "md")
+CHART_CACHE = ".chart-cache"   # folder under the output folder: each chart's PNG, named by its content
 
 
 def write_bytes_atomic(path: Path, data: bytes) -> None:
@@ -40,14 +41,30 @@ def report_stem(report: Report, folder_name: str) -> str:
     return f"{folder_name}-report-{report.as_of.isoformat()}"
 
 
+def cached_drawing(cache: Path):
+    """``chart_png`` through a folder of PNGs named by ``chart_key``: a chart is drawn once (matplotlib
+    takes seconds to start) and reused by every format and every later run until its content changes."""
+    def draw(chart) -> bytes:
+        path = cache / f"{chart_key(chart)}.png"
+        if path.is_file():
+            return path.read_bytes()
+        data = chart_png(chart)
+        cache.mkdir(exist_ok=True)
+        write_bytes_atomic(path, data)
+        return data
+
+    return draw
+
+
 def write_report(report: Report, out: Path, fmt: str, folder_name: str) -> list[Path]:
     """Write ``report`` as ``fmt`` into ``out`` (created if needed); returns the files written."""
     out = Path(out)
     out.mkdir(parents=True, exist_ok=True)
     stem = report_stem(report, folder_name)
+    draw = cached_drawing(out / CHART_CACHE)
     if fmt == "html":
         path = out / f"{stem}.html"
-        write_atomic(path, report_html(report), backup=False)
+        write_atomic(path, report_html(report, draw), backup=False)
         return [path]
     if fmt == "xlsx":
         path = out / f"{stem}.xlsx"
@@ -59,7 +76,7 @@ def write_report(report: Report, out: Path, fmt: str, folder_name: str) -> list[
     for s in report.sections:
         for k, chart in enumerate(s.charts):
             image = out / f"{stem}-{s.key}-{k + 1}.png"
-            write_bytes_atomic(image, chart_png(chart))
+            write_bytes_atomic(image, draw(chart))
             names[(s.key, k)] = image.name
             written.append(image)
     path = out / f"{stem}.md"
