@@ -24,7 +24,6 @@ sparse product for all lanes together; the loop is over time steps only.
 
 from __future__ import annotations
 
-import functools
 import math
 import os
 import weakref
@@ -184,6 +183,17 @@ def callable_prices(bonds: CallableBonds, discount: Discount, oas, params: HullW
     return prices if many else prices[0]
 
 
+def bullet_prices(bonds: CallableBonds, discount: Discount, oas) -> np.ndarray:
+    """Dirty price per 100 of each bond without its calls at ``oas`` on one curve: sum amount * DF(t) *
+    exp(-OAS t), which is exactly what the tree gives the bullet (it reprices every zero-coupon bond)."""
+    n = len(bonds)
+    mask = bonds.flow_mask
+    t = np.where(mask, bonds.flow_years, 0.0)
+    df = np.asarray(discount(t.ravel()), float).reshape(t.shape)
+    oas = np.broadcast_to(np.asarray(oas, float), (n,))
+    return np.where(mask, bonds.flow_amounts * df * np.exp(-oas[:, None] * t), 0.0).sum(axis=1)
+
+
 def option_adjusted_spreads(bonds: CallableBonds, discount: Discount, dirty_prices,
                             params: HullWhiteParams = HullWhiteParams(), *, workers: int | None = None,
                             tolerance: float = 1e-11) -> np.ndarray:
@@ -228,6 +238,13 @@ def value_callables(bonds: CallableBonds, discount: Discount, params: HullWhiteP
     )
 
 
+def _rows(bonds: CallableBonds, rows: np.ndarray) -> CallableBonds:
+    """The flows of the bonds at ``rows`` (enough for ``bullet_prices``)."""
+    return CallableBonds(bonds.ids[rows], bonds.flow_years[rows], bonds.flow_amounts[rows], bonds.flow_mask[rows],
+                         bonds.call_years[rows], bonds.call_prices[rows], bonds.call_accrued[rows],
+                         bonds.call_mask[rows])
+
+
 def _checked_prices(bonds: CallableBonds, dirty_prices) -> np.ndarray:
     target = np.broadcast_to(np.asarray(dirty_prices, float), (len(bonds),))
     problems = Problems()
@@ -267,18 +284,18 @@ class _Lattice:
     every lane, and a lane's curve and OAS only scale its flows and call prices by DF(t) exp(-OAS t).
     """
 
-    def __init__(self, bonds: CallableBonds, tree: HullWhiteTree):
-        self.bonds, self.tree = bonds, tree
+    def __init__(self, bonds: CallableBonds, tree: HullWhiteTree, n_steps: int):
+        self.bonds, self.tree, self.n_steps = bonds, tree, n_steps
         dt = tree.dt
         b_f, k_f = np.nonzero(bonds.flow_mask)
         t_f = bonds.flow_years[b_f, k_f]
         step_f = np.maximum(np.ceil(t_f / dt - _ON_GRID).astype(int) - 1, 0)
         b_c, k_c = np.nonzero(bonds.call_mask)
         t_c = bonds.call_years[b_c, k_c]
-        step_c = np.minimum(np.floor(t_c / dt + _ON_GRID).astype(int), tree.n_steps - 1)
+        step_c = np.minimum(np.floor(t_c / dt + _ON_GRID).astype(int), n_steps - 1)
         redemption = bonds.call_prices[b_c, k_c] + bonds.call_accrued[b_c, k_c]
         # a flow paid on or before a call in the same step is kept whether or not the bond is called
-        call_time_in_step = np.full((len(bonds), tree.n_steps), np.nan)
+        call_time_in_step = np.full((len(bonds), n_steps), np.nan)
         call_time_in_step[b_c, step_c] = t_c
         after = t_f <= call_time_in_step[b_f, step_f] + _ON_GRID * dt
         self.last_step = np.full(len(bonds), -1)
@@ -297,16 +314,16 @@ class _Lattice:
             return cached
         horizon = max(float(bonds.maturity_years.max(initial=0.0)), params.dt)
         n_steps = math.ceil(horizon / params.dt - _ON_GRID)
-        lattice = _Lattice(bonds, _tree(params.mean_reversion, params.volatility, params.dt, n_steps))
+        lattice = _Lattice(bonds, _tree(params.mean_reversion, params.volatility, params.dt, n_steps), n_steps)
         _LATTICES.setdefault(bonds, {})[params] = lattice
         return lattice
 
     def _events(self, step, bond, years, amount, after) -> _Events:
         order = np.lexsort((bond, step))
         step, bond, years, amount, after = step[order], bond[order], years[order], amount[order], after[order]
-        start = np.searchsorted(step, np.arange(self.tree.n_steps + 1))
-        stubs = tuple(self.tree.stub_weights(i, years[start[i]:start[i + 1]]) for i in range(self.tree.n_steps))
-        repeats = np.zeros(self.tree.n_steps, bool)
+        start = np.searchsorted(step, np.arange(self.n_steps + 1))
+        stubs = tuple(self.tree.stub_weights(i, years[start[i]:start[i + 1]]) for i in range(self.n_steps))
+        repeats = np.zeros(self.n_steps, bool)
         same = (np.diff(step) == 0) & (np.diff(bond) == 0)
         repeats[step[1:][same]] = True
         return _Events(step, bond, years, amount, after, start, stubs, repeats)
@@ -345,11 +362,7 @@ class _Lattice:
         return self._bullet_rows(discount, np.arange(len(self.bonds)), oas)
 
     def _bullet_rows(self, discount: Discount, rows: np.ndarray, oas: np.ndarray) -> np.ndarray:
-        b = self.bonds
-        mask = b.flow_mask[rows]
-        t = np.where(mask, b.flow_years[rows], 0.0)
-        df = np.asarray(discount(t.ravel()), float).reshape(t.shape)
-        return np.where(mask, b.flow_amounts[rows] * df * np.exp(-oas[:, None] * t), 0.0).sum(axis=1)
+        return bullet_prices(_rows(self.bonds, rows), discount, oas)
 
     def values(self, dfs, bond: np.ndarray, curve: np.ndarray, spread: np.ndarray, with_calls: np.ndarray,
                workers: int | None) -> np.ndarray:
@@ -457,9 +470,16 @@ _CHUNK = 512
 _LATTICES: "weakref.WeakKeyDictionary[CallableBonds, dict]" = weakref.WeakKeyDictionary()
 
 
-@functools.lru_cache(maxsize=4)
+_TREES: dict = {}
+
+
 def _tree(a: float, sigma: float, dt: float, n_steps: int) -> HullWhiteTree:
-    return HullWhiteTree.build(a, sigma, dt, n_steps)
+    """The lattice with at least ``n_steps`` steps. Its first steps do not depend on how many follow
+    (widths, branching and pruning are per step), so one tree serves every shorter horizon."""
+    tree = _TREES.get((a, sigma, dt))
+    if tree is None or tree.n_steps < n_steps:
+        tree = _TREES[(a, sigma, dt)] = HullWhiteTree.build(a, sigma, dt, n_steps)
+    return tree
 
 
 @dataclass(frozen=True, eq=False)

@@ -93,17 +93,17 @@ class HullWhiteTree:
         steps, pi = [], [np.ones(1)]
         for i in range(n_steps):
             w, w1 = full[i], full[i + 1]
-            node_df = np.exp(-dx * np.arange(-w, w + 1) * dt)
             up, mid, down, centre = _step_branching(probs, j_max, w, w1)
-            child = centre + w1  # row of the middle child in step i + 1
-            step = sparse.csr_matrix(
-                (np.concatenate((up, mid, down)) * np.tile(node_df, 3),
-                 (np.tile(np.arange(2 * w + 1), 3), np.concatenate((child + 1, child, child - 1)))),
-                shape=(2 * w + 1, 2 * w1 + 1))
-            reach = step.T @ (reach / node_df)
+            p = np.stack((up, mid, down), axis=1)                        # (nodes_i, 3)
+            cols = (centre + w1)[:, None] + np.array([1, 0, -1])         # children, rows of step i + 1
+            reach = np.bincount(cols.ravel(), weights=(reach[:, None] * p).ravel(), minlength=2 * w1 + 1)
             kept[i + 1] = w1 - int(np.count_nonzero(np.cumsum(reach[:w1] + reach[::-1][:w1]) < PRUNED_MASS))
             k, k1 = kept[i], kept[i + 1]
-            steps.append(step[w - k: w + k + 1, w1 - k1: w1 + k1 + 1].tocsr())
+            cols = cols[w - k: w + k + 1] - (w1 - k1)
+            inside = (cols >= 0) & (cols <= 2 * k1)
+            weight = p[w - k: w + k + 1] * np.exp(-dx * np.arange(-k, k + 1) * dt)[:, None]
+            indptr = np.concatenate(([0], np.cumsum(inside.sum(axis=1))))
+            steps.append(sparse.csr_matrix((weight[inside], cols[inside], indptr), shape=(2 * k + 1, 2 * k1 + 1)))
             pi.append(steps[-1].T @ pi[-1])
         arrow_debreu = np.zeros((n_steps + 1, 2 * kept.max() + 1))
         for i, row in enumerate(pi):
