@@ -13,6 +13,7 @@ from textual.message import Message
 from textual.widgets import Input, Label, ProgressBar, Select, Static
 from textual.worker import get_current_worker
 
+from ladder.analysis.build import GENERIC_NOTE
 from ladder.tui import format as fmt
 from ladder.tui.frame import Column, Frame
 from ladder.tui.results import Results
@@ -26,10 +27,12 @@ TRADE_COLUMNS = (Column("action", "Action"), Column("id", "Id", max_width=30), C
                  Column("coupon", "Coupon %", True), Column("face", "Face", True), Column("price", "Price", True))
 
 
-def trades_frame(trades) -> Frame:
+def trades_frame(trades, generic: np.ndarray) -> Frame:
+    """The proposed trades; ``generic`` marks the generic stand-ins (``BuildResult.generic_trades``)."""
     h = trades.holdings
     rating = np.where(h.rating != "", h.rating, h.short_rating).astype(object)
-    text = {"action": trades.action, "id": h.id, "sector": h.sector, "issuer": h.issuer, "rating": rating,
+    text = {"action": trades.action,
+            "id": np.where(generic, h.id + " (generic)", h.id), "sector": h.sector, "issuer": h.issuer, "rating": rating,
             "maturity": fmt.texts(h.maturity), "coupon": fmt.percents(h.coupon, 3), "face": fmt.numbers(h.face, 0),
             "price": fmt.numbers(h.book_price, 4)}
     sort = dict(text)
@@ -42,7 +45,7 @@ def _summary_line(name: str, s) -> str:
     if s is None:
         return f"{name:<7} {fmt.NA_TEXT}"
     shares = "  ".join(f"{k} {v:.1f}%" for k, v in s.rung_shares if v)
-    return (f"{name:<7} value {fmt.money(s.market_value):>14}   expected yield {fmt.percent(s.expected_yield)}%   "
+    return (f"{name:<7} value {fmt.money(s.market_value):>14}   yield to worst {fmt.percent(s.yield_to_worst)}%   "
             f"eff dur {fmt.number(s.effective_duration, 3)}   WAM {fmt.number(s.wam_days, 0)} d   {shares}")
 
 
@@ -56,9 +59,12 @@ def result_text(r) -> str:
     naive = (f"   naive even ladder {fmt.percent(r.naive_yield)}% "
              f"({'meets every rule' if r.naive_feasible else 'breaks a rule'})" if r.naive_yield is not None else "")
     compliance = status_word(r.compliance_status) if r.compliance_status else fmt.NA_TEXT
+    generic = r.generic_trades
     lines = [f"BUILT: {len(r.trades)} trade(s), invested {fmt.money(r.invested)} of {fmt.money(r.cash)}   rungs "
              f"{r.rungs.spec}   policy after: {compliance}{naive}   solved in {r.seconds:.2f} s",
              _summary_line("before", r.before), _summary_line("after", r.after)]
+    if generic.any():
+        lines.append(f"{int(generic.sum())} of the trades are {GENERIC_NOTE}")
     for b in r.binding[:4]:
         lines.append(f"binding: {b.group} {b.label} ({b.text}): {fmt.money(b.income_per_step)} a year, "
                      f"{b.yield_bp_per_step:.3f} bp per {b.step:g} {b.unit}")
@@ -196,7 +202,7 @@ class BuilderView(View):
         trades = self.query_one("#builder-trades", FrameTable)
         compliance = self.query_one("#builder-compliance", FrameTable)
         if result is not None and result.trades is not None:
-            trades.show(trades_frame(result.trades), keep_place=False)
+            trades.show(trades_frame(result.trades, result.generic_trades), keep_place=False)
         else:
             trades.show(Frame.empty())
         check = getattr(result.compliance, "check", None) if result is not None else None

@@ -79,8 +79,12 @@ def summary_text(plan) -> str:
                  f"to raise by sales" + (f", {fmt.money(pr.unfunded[first])} UNFUNDED" if pr.unfunded[first] > 0 else "")
                  if first is not None else "no shortfall over the horizon")
     rule = r.rule.replace("_", " ") + (f" {r.tenor}" if r.tenor else "") + (f" ({r.sector})" if r.sector else "")
+    crossings = (f"the projected book crosses {len(plan.crossings)} policy limit(s), first in the period ending "
+                 f"{plan.crossings[0].period_end} ({plan.crossings[0].rule})" if plan.crossings
+                 else "the projected book stays within every policy limit")
     lines = [f"Scenario {plan.scenario}   {len(pr.periods)} {plan.options.period}s from {plan.as_of}   reinvest: "
-             f"{rule}, buffer {fmt.money(r.buffer)}   rates {plan.options.rates}", shortfall.capitalize()]
+             f"{rule}, buffer {fmt.money(r.buffer)}   rates {plan.options.rates}",
+             f"{shortfall.capitalize()}; {crossings}"]
     lines += [f"Note: {n}" for n in plan.notes]
     return "\n".join(lines)
 

@@ -18,7 +18,7 @@ COLUMNS = (
     Column("id", "Id"), Column("sector", "Sector"), Column("issuer", "Issuer", max_width=24),
     Column("rating", "Rating"), Column("maturity", "Maturity"), Column("coupon", "Coupon %", True),
     Column("face", "Face", True), Column("clean", "Clean", True), Column("market_value", "Market value", True),
-    Column("ytm", "Yield %", True), Column("ytw", "To worst %", True), Column("book_yield", "Book yld %", True),
+    Column("ytm", "To maturity %", True), Column("ytw", "Yld worst %", True), Column("book_yield", "Book yld %", True),
     Column("modified", "Mod dur", True), Column("effective", "Eff dur", True),
     Column("convexity", "Convexity", True), Column("dv01", "DV01", True), Column("spread", "Spread bp", True),
     Column("unrealized", "Unrealized", True), Column("days", "Days", True), Column("call", "Call"),
@@ -30,7 +30,7 @@ def holdings_frame(v) -> Frame:
     """The Holdings table of a Valuation (display text only; every figure is the valuation's)."""
     h, m = v.holdings, v.measures
     rating = np.where(h.rating != "", h.rating, h.short_rating)
-    ytw = np.where(h.callable, v.yield_to_worst, np.nan)
+    ytw = v.yield_to_worst
     text = {
         "id": h.id, "sector": h.sector, "issuer": h.issuer, "rating": rating.astype(object),
         "maturity": fmt.texts(h.maturity), "coupon": fmt.percents(h.coupon, 3),
@@ -60,7 +60,7 @@ def holdings_frame(v) -> Frame:
 def totals_text(v) -> str:
     t = v.totals
     return (f"{t.count:,} holdings   face {fmt.money(t.face)}   market value {fmt.money(t.market_value)}   "
-            f"yield {fmt.percent(t.ytm)}%   book yield {fmt.percent(t.book_yield)}%   "
+            f"yield to worst {fmt.percent(t.yield_to_worst)}%   book yield {fmt.percent(t.book_yield)}%   "
             f"mod dur {fmt.number(t.modified_duration, 3)}   eff dur {fmt.number(t.effective_duration, 3)}   "
             f"DV01 {fmt.money(t.dv01)}   WAM {fmt.number(t.wam_days, 0)} days")
 

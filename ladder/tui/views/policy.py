@@ -17,7 +17,7 @@ from ladder.tui.widgets.frame_table import FrameTable
 
 COLUMNS = (Column("status", "Status"), Column("rule", "Rule id", max_width=38), Column("text", "Rule", max_width=56),
            Column("limit", "Limit", True), Column("actual", "Actual", True), Column("headroom", "Headroom", True),
-           Column("holdings", "Holdings", True))
+           Column("testing", "Tested"), Column("holdings", "Holdings", True))
 FINDING_COLUMNS = (Column("status", "Status"), Column("group", "Group", max_width=40), Column("limit", "Limit", True),
                    Column("actual", "Actual", True), Column("headroom", "Headroom", True),
                    Column("holdings", "Holdings behind it", max_width=90))
@@ -33,7 +33,9 @@ def rules_frame(result) -> Frame:
     rules = result.rules
     status = np.array([status_word(r.status) for r in rules], dtype=object)
     text = {"status": status, "rule": np.array([r.rule for r in rules], dtype=object),
-            "text": np.array([r.text for r in rules], dtype=object),
+            "text": np.array([r.text + (f"; largest: {r.worst_group}" if r.per else "") for r in rules],
+                             dtype=object),
+            "testing": np.array([r.testing.replace("_", " ") for r in rules], dtype=object),
             "limit": np.array([value_text(r.limit, r.unit) for r in rules], dtype=object),
             "actual": np.array([value_text(r.actual, r.unit) for r in rules], dtype=object),
             "headroom": np.array([headroom_text(r.headroom, r.unit) for r in rules], dtype=object),
@@ -50,7 +52,7 @@ def rules_frame(result) -> Frame:
 def findings_frame(rule) -> Frame:
     f = rule.findings
     text = {"status": np.array([status_word(x.status) for x in f], dtype=object),
-            "group": np.array([x.group for x in f], dtype=object),
+            "group": np.array([x.label for x in f], dtype=object),
             "limit": np.array([value_text(x.limit, rule.unit) for x in f], dtype=object),
             "actual": np.array([value_text(x.actual, rule.unit) for x in f], dtype=object),
             "headroom": np.array([headroom_text(x.headroom, rule.unit) for x in f], dtype=object),
@@ -63,7 +65,8 @@ def findings_frame(rule) -> Frame:
 def summary_text(result) -> str:
     counts = result.counts()
     parts = "   ".join(f"{status_word(s)} {counts[s]}" for s in ("breach", "review", "near", "pass"))
-    return (f"{result.policy_title}   basis {result.basis}, testing {result.testing.replace('_', ' ')}\n"
+    return (f"{result.policy_title}   basis {result.basis}, share limits tested "
+            f"{result.testing.replace('_', ' ')} unless a rule says otherwise\n"
             f"Overall: {status_word(result.status)}   rules: {parts}   checked {result.as_of}")
 
 
