@@ -1,6 +1,9 @@
-"""Solving the builder's program with HiGHS (through scipy), and explaining the answer.
+"""Solving the builder's program with HiGHS, and explaining the answer.
 
-- ``solve``: the mixed-integer program (``scipy.optimize.milp``), to a relative gap of ``MIP_GAP``.
+- ``solve``: the mixed-integer program, to a relative gap of ``MIP_GAP``, through HiGHS's own Python
+  interface (``highspy``), which reports each better plan found while it runs and can be stopped: a
+  ``watch`` callback hears the elapsed time, the best plan's income and its proven gap; a ``stop``
+  flag ends the search with the best plan found so far (marked as not proven optimal).
 - ``relaxation``: the linear relaxation (``scipy.optimize.linprog``, method "highs"): lots may be
   fractional and a semi-integer lot count may take any value from 0 to its maximum. Its dual values
   (``marginals``) say how much income a year one more unit of each row's right-hand side would
@@ -14,7 +17,9 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+import time
+from dataclasses import dataclass, replace
+from typing import Callable
 
 import numpy as np
 from scipy import sparse
@@ -26,17 +31,41 @@ MIP_GAP = 1e-6             # relative optimality gap of the integer program
 TIME_LIMIT_S = 120.0
 DIAGNOSE_GAP = 1e-4
 DIAGNOSE_TIME_LIMIT_S = 30.0
+WATCH_EVERY_S = 0.25       # seconds between two calls of ``watch`` (and two looks at ``stop``)
 _BINDING_DUAL = 1e-9
 
 
 @dataclass(frozen=True, eq=False)
 class Solution:
-    status: str           # "optimal" | "infeasible" | "time_limit" | "error"
+    """``status``: "optimal" (proven to ``MIP_GAP``), "stopped" (by the ``stop`` flag), "time_limit",
+    "infeasible" or "error". A stopped or timed-out search keeps its best plan in ``x`` (None if it had
+    found none) and ``gap``, the relative gap to the proven bound on income."""
+
+    status: str
     x: np.ndarray | None  # variable values (lots rounded to integers)
     income: float         # objective, currency a year
     message: str
     seconds: float
     gap: float | None = None
+
+    @property
+    def proven_optimal(self) -> bool:
+        return self.status == "optimal"
+
+
+@dataclass(frozen=True)
+class SolveProgress:
+    """Where a running search stands: ``income`` of the best plan so far (currency a year; None before
+    the first), ``bound`` the most any plan can earn as proven so far, ``gap`` (bound - income) / income
+    (None before the first plan)."""
+
+    seconds: float
+    income: float | None
+    bound: float | None
+    gap: float | None
+
+
+Watch = Callable[[SolveProgress], None]
 
 
 def _row_scale(p: Program) -> np.ndarray:
@@ -52,28 +81,93 @@ def _constraints(p: Program, A: np.ndarray, b: np.ndarray):
     return LinearConstraint(sparse.csr_matrix(A), lower, b)
 
 
-def solve(p: Program, time_limit: float = TIME_LIMIT_S) -> Solution:
-    """The mixed-integer optimum of ``p``.
-
-    Rows are scaled to unit size; the objective is kept in currency a year (an objective scaled to
-    tiny numbers falls under the solver's optimality tolerances and its search stalls)."""
-    import time
-
-    from scipy.optimize import Bounds, milp   # here, not at the top: the commands start without it
+def _highs_model(p: Program):
+    """``p`` as a HiGHS model minimizing -income, rows scaled to unit size, columns stored by column."""
+    import highspy   # here, not at the top: the commands start without it
 
     scale = _row_scale(p)
+    A = sparse.csc_matrix(p.A / scale[:, None])
+    b = p.b / scale
+    lp = highspy.HighsLp()
+    lp.num_col_, lp.num_row_ = len(p.c), len(b)
+    lp.col_cost_, lp.col_lower_, lp.col_upper_ = -p.c, p.lb.astype(float), p.ub.astype(float)
+    lp.row_lower_, lp.row_upper_ = np.where(p.eq, b, -highspy.kHighsInf), b
+    lp.a_matrix_.format_ = highspy.MatrixFormat.kColwise
+    lp.a_matrix_.start_, lp.a_matrix_.index_, lp.a_matrix_.value_ = A.indptr, A.indices, A.data
+    lp.integrality_ = [highspy.HighsVarType(int(k)) for k in p.integrality]
+    return lp
+
+
+def _progress(data, seconds: float) -> SolveProgress:
+    """A ``SolveProgress`` from HiGHS's callback data (its objective is -income)."""
+    income, bound = -data.mip_primal_bound, -data.mip_dual_bound
+    found = np.isfinite(income)
+    return SolveProgress(seconds, float(income) if found else None, float(bound) if np.isfinite(bound) else None,
+                         float(max(data.mip_gap, 0.0)) if found and np.isfinite(data.mip_gap) else None)
+
+
+def solve(p: Program, time_limit: float = TIME_LIMIT_S, watch: Watch | None = None,
+          stop: Callable[[], bool] | None = None) -> Solution:
+    """The mixed-integer optimum of ``p``, or the best plan found when the search is stopped.
+
+    HiGHS searches in a thread of its own; the calling thread calls ``watch`` with a ``SolveProgress``
+    every ``WATCH_EVERY_S`` seconds and polls ``stop``; when ``stop()`` turns true, or ctrl+c
+    (KeyboardInterrupt) reaches the calling thread, the search ends at HiGHS's next check (a fraction
+    of a second to a few seconds) and the best plan so far is returned with status "stopped". Rows
+    are scaled to unit size; the objective is kept in currency a year (an objective scaled to tiny
+    numbers falls under the solver's optimality tolerances and its search stalls)."""
+    import threading
+
+    import highspy
+
     start = time.perf_counter()
+    stopping = threading.Event()
+    latest = [SolveProgress(0.0, None, None, None)]
+
+    def heard(event) -> None:   # in HiGHS's thread
+        latest[0] = _progress(event.data_out, time.perf_counter() - start)
+        if stopping.is_set() and event.data_in is not None:
+            event.interrupt()
+
     with solver_output_filtered():
-        res = milp(-p.c, integrality=p.integrality, bounds=Bounds(p.lb, p.ub),
-                   constraints=_constraints(p, p.A / scale[:, None], p.b / scale),
-                   options={"mip_rel_gap": MIP_GAP, "time_limit": time_limit, "presolve": True})
+        h = highspy.Highs()
+        h.setOptionValue("output_flag", False)
+        h.passModel(_highs_model(p))
+        for name, value in (("mip_rel_gap", MIP_GAP), ("time_limit", float(time_limit)), ("presolve", "on")):
+            h.setOptionValue(name, value)
+        h.cbMipImprovingSolution.subscribe(heard)
+        h.cbMipInterrupt.subscribe(heard)
+        done = threading.Event()   # not Thread.join: a ctrl+c during join can mark a running thread as ended
+
+        def search() -> None:
+            try:
+                h.run()
+            finally:
+                done.set()
+
+        threading.Thread(target=search, name="ladder-build-solve", daemon=True).start()
+        while not done.is_set():
+            try:
+                if done.wait(WATCH_EVERY_S):
+                    break
+                if stop is not None and stop():
+                    stopping.set()
+                if watch is not None:
+                    watch(replace(latest[0], seconds=time.perf_counter() - start))
+            except KeyboardInterrupt:
+                stopping.set()
+        model, info = h.getModelStatus(), h.getInfo()
+        found = info.primal_solution_status == 2     # kSolutionStatusFeasible
+        x = np.asarray(h.getSolution().col_value) if found else None
     seconds = time.perf_counter() - start
-    status = {0: "optimal", 1: "time_limit", 2: "infeasible"}.get(res.status, "error")
-    if res.x is None:
-        return Solution(status if status != "time_limit" else "time_limit", None, float("nan"), res.message, seconds)
-    x = np.where(p.integrality > 0, np.round(res.x), res.x)
-    gap = getattr(res, "mip_gap", None)
-    return Solution(status, x, float(p.c @ x), res.message, seconds, None if gap is None else float(gap))
+    status = {highspy.HighsModelStatus.kOptimal: "optimal", highspy.HighsModelStatus.kInfeasible: "infeasible",
+              highspy.HighsModelStatus.kTimeLimit: "time_limit",
+              highspy.HighsModelStatus.kInterrupt: "stopped"}.get(model, "error")
+    message = h.modelStatusToString(model)
+    if x is None:
+        return Solution(status, None, float("nan"), message, seconds)
+    x = np.where(p.integrality > 0, np.round(x), x)
+    return Solution(status, x, float(p.c @ x), message, seconds, float(max(info.mip_gap, 0.0)))
 
 
 @dataclass(frozen=True, eq=False)
@@ -88,8 +182,6 @@ class Relaxation:
 
 def relaxation(p: Program) -> Relaxation:
     """The linear relaxation of ``p`` and its dual values (income a year per unit of right-hand side)."""
-    import time
-
     from scipy.optimize import linprog
 
     scale = _row_scale(p)

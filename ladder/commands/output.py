@@ -88,6 +88,18 @@ def emit(fmt_name: str, document, records=None, table=None) -> None:
         table()
 
 
+FULL_TABLE_UP_TO = 200   # rows a table of holdings shows in full; a larger one shows the largest
+LARGEST_SHOWN = 25
+
+
+def largest_caption(shown: int, total: int, what: str) -> str | None:
+    """The caption of a table cut to its ``shown`` largest rows of ``total`` (None when none is cut)."""
+    if shown >= total:
+        return None
+    return (f"The {shown} largest of {total:,} holdings by {what}; --all shows every row, --format json or csv "
+            "gives them all.")
+
+
 def print_whole(con, table) -> None:
     """Print a rich table at its natural width even on a narrow console, so numbers are never cut."""
     from rich.measure import Measurement

@@ -8,13 +8,12 @@ from ladder.analysis.records import holding_records, totals_record, valuation_do
 from ladder.analysis.valuation import value_book
 from ladder.folder.book_file import load_book
 from ladder.commands.common import add_book
-from ladder.commands.output import console, emit, fmt, print_caution, term
+from ladder.commands.output import (FULL_TABLE_UP_TO, LARGEST_SHOWN, console, emit, fmt, largest_caption,
+                                    print_caution, term)
 
 WIDE_TABLE = 190   # characters the full table needs; narrower terminals get the essential columns
 NARROW_COLUMNS = ("id", "maturity_date", "face", "clean_price", "yield_to_worst_pct", "effective_duration")
 HELP = "value every holding at a settlement date: prices, yields, duration, convexity, DV01, totals"
-FULL_TABLE_UP_TO = 200   # holdings a table shows in full; larger books show the largest positions
-LARGEST_SHOWN = 25
 DESCRIPTION = (HELP + f". The table shows every holding of a book of up to {FULL_TABLE_UP_TO}; for a larger "
                f"book it shows the totals and the {LARGEST_SHOWN} largest positions by market value (--all "
                "for every row). json and csv always hold every holding.")
@@ -50,8 +49,7 @@ def _shown_rows(valuation, every: bool):
     if every or n <= FULL_TABLE_UP_TO:
         return np.arange(n), None
     rows = np.argsort(-np.nan_to_num(valuation.market_value, nan=-np.inf), kind="stable")[:LARGEST_SHOWN]
-    return rows, (f"The {LARGEST_SHOWN} largest of {n:,} holdings by market value; --all shows every row, "
-                  "--format json or csv gives them all.")
+    return rows, largest_caption(len(rows), n, "market value")
 
 
 def _table(book, valuation, every: bool) -> None:

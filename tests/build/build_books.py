@@ -9,6 +9,7 @@ from __future__ import annotations
 
 from ladder.demo import demo_source, write_demo
 
+import re
 import shutil
 from pathlib import Path
 
@@ -69,8 +70,11 @@ OF-MMF,fund,Alpha Government Fund,,1000000,2026-12-01,,,,,,,,,,3.60,,,,,,,100000
 def make_book(folder: Path, duration: float = 1.5, need: float = 6_000_000) -> Path:
     """The small book in ``folder``; returns the folder."""
     folder.mkdir(parents=True, exist_ok=True)
-    for name in ("book.toml", "curve.csv", "scenarios.csv"):
+    for name in ("curve.csv", "scenarios.csv"):
         shutil.copy(DEMO / name, folder / name)
+    # the demo's book.toml without its [cash] table: this book has no cash account (the demo's is not in it)
+    demo_toml = (DEMO / "book.toml").read_text()
+    (folder / "book.toml").write_text(re.sub(r"(?m)^\[cash\][^\n]*\n(?:account\s*=[^\n]*\n)", "", demo_toml))
     (folder / "holdings.csv").write_text(HOLDINGS)
     (folder / "policy.toml").write_text(POLICY.format(duration=duration))
     (folder / "cash_needs.csv").write_text(CASH_NEEDS.format(need=need))
