@@ -1,8 +1,10 @@
 """Issue 18: ``ladder --help`` and ``ladder value`` start without the heavy libraries they do not use.
 
 Each command runs in a fresh interpreter (as ``python -m ladder.cli`` does) and then reports which of
-matplotlib (the report's charts), scipy.optimize (the builder's solver) and textual (the workstation)
-were loaded. The demo book has callable holdings, so ``value`` also solves option-adjusted spreads.
+matplotlib (the report's charts), scipy.optimize and highspy (the solvers) and textual (the
+workstation) were loaded. The demo book has callable holdings, so ``value`` also solves option-adjusted
+spreads; on a book without callables ``value`` loads no part of scipy (the tree's sparse steps) and not
+the book lock's filelock (it only reads).
 """
 
 import subprocess
@@ -12,20 +14,23 @@ import pytest
 
 from ladder.demo import write_demo
 
-HEAVY = ("matplotlib", "scipy.optimize", "textual")
-RUN_AND_LIST = (
-    "import sys\n"
-    "from ladder import cli\n"
-    "try:\n"
-    "    code = cli.main(sys.argv[1:])\n"
-    "except SystemExit as stop:\n"
-    "    code = stop.code\n"
-    f"print('LOADED', sorted(m for m in {HEAVY!r} if m in sys.modules), 'EXIT', code, file=sys.stderr)\n")
+HEAVY = ("matplotlib", "scipy.optimize", "highspy", "textual")
 
 
-def loaded(*args) -> str:
-    done = subprocess.run([sys.executable, "-c", RUN_AND_LIST, *map(str, args)], capture_output=True, text=True,
-                          timeout=300)
+def run_and_list(modules) -> str:
+    return (
+        "import sys\n"
+        "from ladder import cli\n"
+        "try:\n"
+        "    code = cli.main(sys.argv[1:])\n"
+        "except SystemExit as stop:\n"
+        "    code = stop.code\n"
+        f"print('LOADED', sorted(m for m in {modules!r} if m in sys.modules), 'EXIT', code, file=sys.stderr)\n")
+
+
+def loaded(*args, modules=HEAVY) -> str:
+    done = subprocess.run([sys.executable, "-c", run_and_list(modules), *map(str, args)], capture_output=True,
+                          text=True, timeout=300)
     return done.stderr.strip().splitlines()[-1]
 
 
@@ -35,6 +40,20 @@ def test_value_loads_no_heavy_library(tmp_path, fmt):
     assert loaded("value", tmp_path / "book", "--format", fmt) == "LOADED [] EXIT 0"
 
 
+def test_value_of_a_book_without_callables_loads_no_scipy(tmp_path):
+    import csv
+
+    book = tmp_path / "book"
+    write_demo(book)
+    with open(book / "holdings.csv", newline="") as handle:
+        rows = list(csv.DictReader(handle))
+    with open(book / "holdings.csv", "w", newline="") as handle:
+        writer = csv.DictWriter(handle, fieldnames=list(rows[0]))
+        writer.writeheader()
+        writer.writerows(row for row in rows if not row["first_call_date"])
+    assert loaded("value", book, modules=HEAVY + ("scipy", "filelock")) == "LOADED [] EXIT 0"
+
+
 def test_help_loads_no_heavy_library():
     assert loaded("--help") == "LOADED [] EXIT 0"
     assert loaded("value", "--help") == "LOADED [] EXIT 0"
@@ -42,6 +61,6 @@ def test_help_loads_no_heavy_library():
 
 def test_the_check_sees_a_heavy_library_when_one_is_loaded():
     # the builder's command does need scipy.optimize: the check above can tell
-    done = subprocess.run([sys.executable, "-c", "import scipy.optimize\n" + RUN_AND_LIST, "--help"],
+    done = subprocess.run([sys.executable, "-c", "import scipy.optimize\n" + run_and_list(HEAVY), "--help"],
                           capture_output=True, text=True, timeout=300)
     assert done.stderr.strip().splitlines()[-1] == "LOADED ['scipy.optimize'] EXIT 0"
