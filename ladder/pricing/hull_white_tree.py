@@ -40,6 +40,7 @@ from dataclasses import dataclass
 from typing import Callable
 
 import numpy as np
+from scipy import sparse
 
 Discount = Callable[[np.ndarray], np.ndarray]
 
@@ -81,8 +82,6 @@ class HullWhiteTree:
         """
         if a < 0 or sigma < 0 or dt <= 0 or n_steps < 1:
             raise ValueError("need a >= 0, sigma >= 0, dt > 0, n_steps >= 1")
-        from scipy import sparse   # here, not at the top: a book without callables never loads it
-
         m = math.expm1(-a * dt)
         variance = sigma * sigma * (-math.expm1(-2 * a * dt) / (2 * a) if a > 0 else dt)
         dx = math.sqrt(3.0 * variance)

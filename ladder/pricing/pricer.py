@@ -1,6 +1,6 @@
 """The repricing engine: every holding repriced off any curve, or a set of scenario curves, at held spreads.
 
-Option-free holdings are priced in one gather-and-sum over their distinct flow dates; callables go
+Option-free holdings are priced in one sparse product over their distinct flow dates; callables go
 through the Hull-White tree (``ladder.pricing.callable``) at their option-adjusted spread. Valuation,
 rate shocks, the cash plan and the builder all price through a ``Pricer``.
 """
@@ -11,6 +11,7 @@ from dataclasses import dataclass
 from functools import cached_property
 
 import numpy as np
+from scipy import sparse
 
 from ladder.book.holdings import Holdings
 from ladder.pricing.callable import HullWhiteParams, callable_prices
@@ -37,37 +38,32 @@ class Pricer:
     def _grids(self) -> dict:
         return {}
 
-    def _grid(self, curve_date) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    def _grid(self, curve_date) -> tuple[np.ndarray, sparse.csr_matrix, np.ndarray]:
         """The flows on one curve-time grid: the distinct flow and settlement times (U,), ACT/365F
-        years from ``curve_date``; each flow's grid column and weight (its amount per 100 times its
-        spread factor exp(-z t)), in holding order; where each holding's flows start (holdings with
-        flows only) and which holdings have flows; and each holding's settlement column."""
+        years from ``curve_date``; the (n, U) sparse weights, each flow's amount per 100 times its
+        spread factor exp(-z t) summed per holding and time; and each holding's settlement column."""
         key = np.datetime64(curve_date, "D")
         if key not in self._grids:
             cf = self.cash_flows
-            rows, slots = np.nonzero(cf.mask)          # row-major: each holding's flows together
+            rows, slots = np.nonzero(cf.mask)
             days = np.concatenate([(cf.dates[rows, slots] - key).astype(np.int64),
                                    (cf.settle - key).astype(np.int64)])
             unique, column = np.unique(days, return_inverse=True)
             weight = cf.amount[rows, slots] * np.exp(-self.spread[rows] * cf.years[rows, slots])
-            counts = np.bincount(rows, minlength=len(cf.settle))
-            starts = (np.cumsum(counts) - counts)[counts > 0]
-            self._grids[key] = (unique / 365.0, column[:len(rows)], weight, starts, counts > 0, column[len(rows):])
+            weights = sparse.csr_matrix((weight, (rows, column[:len(rows)])), shape=(len(cf.settle), len(unique)))
+            self._grids[key] = (unique / 365.0, weights, column[len(rows):])
         return self._grids[key]
 
     def dirty(self, curve) -> np.ndarray:
         """Dirty price per 100 of every holding on ``curve`` (a Curve: (n,); a CurveSet: (S, n)).
 
-        One evaluation of the discount factors on (curves x distinct flow dates), then each holding's
-        flows summed: price = sum amount * DF(t) / DF(t_settle) * exp(-z t), as ``dirty_at_spread``.
+        One evaluation of the discount factors on (curves x distinct flow dates), then one sparse
+        product: price = sum amount * DF(t) / DF(t_settle) * exp(-z t), as ``dirty_at_spread``.
         """
         many = isinstance(curve, CurveSet)
-        times, column, weight, starts, has_flows, settle_column = self._grid(curve.curve_date)
+        times, weights, settle_column = self._grid(curve.curve_date)
         discount = np.atleast_2d(curve.discount(times))                       # (S, U)
-        sums = np.zeros((len(discount), len(settle_column)))
-        if len(starts):
-            sums[:, has_flows] = np.add.reduceat(discount[:, column] * weight, starts, axis=1)
-        prices = sums / discount[:, settle_column]                            # (S, n)
+        prices = (weights @ discount.T).T / discount[:, settle_column]        # (S, n)
         if self.calls is not None and len(self.callable_rows):
             prices[:, self.callable_rows] = callable_prices(
                 self.calls.bonds, from_settle(curve, self.cash_flows.settle[0]), self.spread[self.callable_rows],
