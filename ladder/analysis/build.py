@@ -5,6 +5,11 @@ solves the mixed-integer program (``ladder.build``), and explains the answer: th
 before and after, the what-if policy check of the trades, the binding limits and what each costs in
 yield (from the linear relaxation's duals), the naive even ladder for comparison, or, when no ladder
 exists, the smallest relaxation that would admit one. ``apply_build`` gives the book after the trades and ``save_build`` writes it.
+
+While the solver runs, ``progress`` hears "solving: elapsed, best plan so far and its gap"
+(``solving_text``) and ``watch`` the same as a ``SolveProgress``; ``stop`` (a callable, e.g. a
+``threading.Event``'s ``is_set``) ends the search early, and the result is then the best plan found,
+marked as not proven optimal (``BuildResult.optimality_note``).
 """
 
 from __future__ import annotations
@@ -30,7 +35,8 @@ from ladder.build.naive import feasible, naive_ladder
 from ladder.build.positions import Positions
 from ladder.build.program import RUNG_BAND, Program, build_program
 from ladder.build.rungs import Rungs, make_rungs
-from ladder.build.solve import Binding, Conflict, Relaxation, Solution, binding, diagnose, relaxation, solve
+from ladder.build.solve import (Binding, Conflict, Relaxation, Solution, SolveProgress, binding, diagnose, relaxation,
+                                solve)
 from ladder.errors import Problems
 from ladder.policy.measures import cash_by_month
 from ladder.policy.trades import NEW_MONEY, Trades
@@ -39,6 +45,7 @@ VALUATION_FACE = 1_000_000.0   # face the candidates are valued at (results are 
 GENERIC_NOTE = ("generic: a stand-in for a security of that sector, rating and maturity from the curve and spread "
                 "table, not an offering; source a real issue (and issuer) before trading")
 Progress = Callable[[float, str], None]
+NOT_FOUND = ("time_limit", "stopped")   # statuses of a search that ended without a plan and without a proof
 
 
 @dataclass(frozen=True)
@@ -63,8 +70,9 @@ class LadderSummary:
 
 @dataclass(frozen=True, eq=False)
 class BuildResult:
-    """The outcome of a build. ``status``: "built"; "infeasible" (then ``conflicts`` says why); or
-    "time_limit" (the solver found no ladder in its time limit, nor proved there is none)."""
+    """The outcome of a build. ``status``: "built" (proven optimal unless ``optimality_note`` says
+    otherwise); "infeasible" (then ``conflicts`` says why); "time_limit" or "stopped" (the search
+    ended, at its time limit or when stopped, before it found a ladder or proved there is none)."""
 
     status: str
     as_of: dt.date
@@ -93,6 +101,21 @@ class BuildResult:
         if self.compliance is None:
             return None
         return self.compliance.check.status if isinstance(self.compliance, TradeWhatIf) else self.compliance.result.status
+
+    @property
+    def proven_optimal(self) -> bool:
+        return self.solution.proven_optimal
+
+    @property
+    def optimality_note(self) -> str | None:
+        """None for a proven optimum; else why the plan is not proven optimal and how far it may be."""
+        s = self.solution
+        if self.status != "built" or s.proven_optimal:
+            return None
+        why = {"stopped": f"the search was stopped after {s.seconds:.1f} s",
+               "time_limit": f"the search reached its time limit ({s.seconds:.0f} s)"}.get(s.status, s.message)
+        gap = "" if s.gap is None else f"; a better plan could earn at most {100 * s.gap:.3g}% more income"
+        return f"NOT PROVEN OPTIMAL: {why}; this is the best plan found{gap}"
 
     @property
     def generic_trades(self) -> np.ndarray:
@@ -125,6 +148,9 @@ class BuildResult:
                "solver": {"status": self.solution.status, "seconds": round(self.solution.seconds, 4),
                           "relaxation_seconds": round(self.relaxation.seconds, 4),
                           "income": clean_number(self.solution.income, 2),
+                          "proven_optimal": self.proven_optimal,
+                          "gap_pct": None if self.solution.gap is None else clean_number(100 * self.solution.gap, 8),
+                          "note": self.optimality_note,
                           "relaxation_income": clean_number(self.relaxation.income, 2)}}
         if self.status != "built":
             doc["conflicts"] = [{"rule": c.group, "text": c.text, "unit": c.unit,
@@ -244,15 +270,27 @@ def _no_trades_summary(book: Book, v: Valuation, months: int, rungs: Rungs) -> L
     return _summary(book.holdings, v, pos, book.holdings.face, rungs)
 
 
+def solving_text(g: SolveProgress) -> str:
+    """A running search in words: elapsed time, the best plan's income and its proven gap."""
+    if g.income is None:
+        return f"solving: {g.seconds:.1f} s, no plan yet"
+    gap = "" if g.gap is None else f", within {100 * g.gap:.2g}% of the best possible"
+    return f"solving: {g.seconds:.1f} s, best so far {g.income:,.0f} a year{gap}"
+
+
 def build_ladder(book: Book, cash, rungs: str | None = None, offerings=None, allow_sales: bool = False,
                  fresh: bool = False, at: dt.date | None = None, progress: Progress | None = None,
-                 rung_band: tuple[float, float] = RUNG_BAND) -> BuildResult:
+                 rung_band: tuple[float, float] = RUNG_BAND, watch: Callable[[SolveProgress], None] | None = None,
+                 stop: Callable[[], bool] | None = None) -> BuildResult:
     """Design the best policy-compliant ladder for ``cash`` (see the module docstring).
 
     ``rungs``: a specification (``12x3M``, ``5x1Y``, ``3M,6M,1Y,2Y``; default an even ladder to the
     policy's maximum maturity); ``offerings``: a path to an offerings file (default: generic
     candidates); ``rung_band``: each rung's share of what is bought, as multiples of the even share.
-    Raises ``InputError`` on bad input (nothing is computed)."""
+    ``progress(fraction, text)`` hears each step, and while solving ``solving_text`` about every
+    0.25 s; ``watch(SolveProgress)`` the same figures as numbers; ``stop()`` true ends the search with
+    the best plan so far (called from the thread that runs the build). Raises ``InputError`` on bad
+    input (nothing is computed)."""
     started = time.perf_counter()
     report = progress or (lambda fraction, text: None)
     cash = parse_cash(cash)
@@ -272,13 +310,19 @@ def build_ladder(book: Book, cash, rungs: str | None = None, offerings=None, all
                             allow_sales=allow_sales, fresh=fresh, rung_band=rung_band, families=book.families)
     report(0.45, "solving")
     relaxed = relaxation(program)
-    solution = solve(program) if relaxed.status == "optimal" else Solution(
+
+    def heard(g: SolveProgress) -> None:
+        report(0.45, solving_text(g))
+        if watch is not None:
+            watch(g)
+
+    solution = solve(program, watch=heard, stop=stop) if relaxed.status == "optimal" else Solution(
         "infeasible", None, float("nan"), "the linear relaxation has no solution", 0.0)
     common = dict(as_of=settle, cash=cash, fresh=fresh, allow_sales=allow_sales and not fresh, rungs=spec,
                   candidates=cands, program=program, solution=solution, relaxation=relaxed, min_fund=book.build.min_fund)
-    if solution.x is None and solution.status == "time_limit":
+    if solution.x is None and solution.status in NOT_FOUND:
         report(1.0, "done")
-        return BuildResult("time_limit", trades=None, invested=0.0, before=None, after=None, compliance=None,
+        return BuildResult(solution.status, trades=None, invested=0.0, before=None, after=None, compliance=None,
                            binding=(), conflicts=(), naive_yield=None, naive_feasible=None,
                            seconds=time.perf_counter() - started, **common)
     if solution.x is None:

@@ -17,13 +17,14 @@ def clean_number(value, digits: int = 10):
     return round(value, digits) if math.isfinite(value) else None
 
 
-def holding_records(v: Valuation) -> list[dict]:
-    """One record a holding: terms, prices per 100, money, yields in percent, risk in years."""
+def holding_records(v: Valuation, rows=None) -> list[dict]:
+    """One record a holding (every holding, or those at indices ``rows``, in that order): terms, prices
+    per 100, money, yields in percent, risk in years."""
     h, m = v.holdings, v.measures
     pct = lambda x: clean_number(100 * x, 8)  # noqa: E731
-    rows = []
-    for i in range(len(h)):
-        rows.append({
+    records = []
+    for i in range(len(h)) if rows is None else rows:
+        records.append({
             "id": h.id[i], "sector": h.sector[i], "issuer": h.issuer[i], "kind": h.kind[i],
             "maturity_date": str(h.maturity[i]), "coupon_pct": pct(h.coupon[i]), "face": clean_number(h.face[i], 2),
             "rating": h.rating[i], "short_rating": h.short_rating[i],
@@ -42,7 +43,7 @@ def holding_records(v: Valuation) -> list[dict]:
             "option_value": clean_number(v.option_value[i], 8),
             "yield_to_worst_pct": pct(v.yield_to_worst[i]), "yield_to_first_call_pct": pct(v.yield_to_first_call[i]),
         })
-    return rows
+    return records
 
 
 def totals_record(v: Valuation) -> dict:

@@ -274,12 +274,17 @@ def holding_shock_records(r: ShockResult) -> list[dict]:
              **{key: column[i] for key, column in columns.items()}} for i in range(len(h))]
 
 
-def spread_duration_records(r: ShockResult) -> list[dict]:
+def spread_duration_records(r: ShockResult, largest: int | None = None) -> list[dict]:
     """One record a holding with spread exposure: sector, rating bucket, spread (bp), spread duration
-    (years) and convexity (years^2), market value."""
+    (years) and convexity (years^2), market value. With ``largest``, only that many holdings of the
+    largest exposure (market value x spread duration: the value one basis point of spread moves),
+    largest first; else every one in book order."""
     v, h = r.valuation, r.valuation.holdings
     long_, short = rating_buckets(h)
     rows = np.flatnonzero(r.spread_duration != 0)
+    if largest is not None:
+        exposure = np.nan_to_num(np.abs(r.revaluation.base[rows] * r.spread_duration[rows]), nan=-np.inf)
+        rows = rows[np.argsort(-exposure, kind="stable")[:largest]]
     return [{"id": h.id[i], "sector": h.sector[i], "bucket": long_[i] or short[i] or "unrated",
              "spread_bp": clean_number(v.spread[i] * 1e4, 4), "spread_duration": clean_number(r.spread_duration[i], 8),
              "spread_convexity": clean_number(r.spread_convexity[i], 8),

@@ -18,8 +18,8 @@ from ladder.folder.book_file import Book
 from ladder.book.holdings import QUOTE_NONE, Holdings
 from ladder.errors import NothingToValue, Problems
 from ladder.market.dates import days_between
-from ladder.pricing.callable import (CallableBonds, HullWhiteParams, callable_prices, option_adjusted_spreads,
-                                     workout_yields)
+from ladder.pricing.callable import (CallableBonds, HullWhiteParams, bullet_prices, callable_prices,
+                                     option_adjusted_spreads, workout_yields)
 from ladder.pricing.callable_terms import CallTerms, call_terms
 from ladder.pricing.cashflows import cash_flows
 from ladder.pricing.curve import Curve, bootstrap
@@ -221,7 +221,7 @@ def _callables(book, cf, curve, quoted, dirty, spread, params):
         oas[q] = option_adjusted_spreads(_subset(terms, np.flatnonzero(q)), discount, dirty[rows][q], params)
     spread[rows] = oas
     price = callable_prices(terms.bonds, discount, oas, params)
-    bullet = callable_prices(terms.bonds, discount, oas, params, calls=False)
+    bullet = bullet_prices(terms.bonds, discount, oas)
     option_value[rows] = bullet - price
     worked = workout_yields(np.where(q, dirty[rows], price), sub.frequency, sub_cf.periods, sub_cf.amount,
                             sub_cf.mask, terms.periods, terms.prices, terms.accrued, terms.mask)

@@ -62,10 +62,9 @@ def _parse_rows(table: Table, valuation: dt.date, problems: Problems, cash_accou
         "quote", "book_price", "purchase_date", "first_call", "call_frequency", "call_price", "negotiable", "price_date",
         "row")}
     first_row_of: dict[str, int] = {}
-    for index in range(len(table.rows)):
+    at = {name: col.get(name, 0) for name in COLUMNS}
+    for index, text in enumerate(table.texts(COLUMNS)):
         row = index + 2
-        text = {name: table.cell(index, name) for name in COLUMNS}
-        at = {name: col.get(name, 0) for name in COLUMNS}
         record = _parse_row(cells, text, at, row, valuation, bool(cash_account) and text["id"] == cash_account)
         hid = text["id"]
         if not hid:

@@ -11,6 +11,7 @@ import difflib
 import zipfile
 import datetime as dt
 from dataclasses import dataclass
+from functools import cached_property
 from pathlib import Path
 
 from ladder.errors import Problems
@@ -25,9 +26,14 @@ class Table:
     header: list[str]
     rows: list[list[str]]
 
-    @property
+    @cached_property
     def column(self) -> dict[str, int]:
         return {name: i + 1 for i, name in enumerate(self.header)}
+
+    def texts(self, names) -> list[dict[str, str]]:
+        """Each data row as {name: text} for ``names`` ("" where a column is absent or a row is short)."""
+        where = [(name, self.column.get(name, 0) - 1) for name in names]
+        return [{name: row[i] if 0 <= i < len(row) else "" for name, i in where} for row in self.rows]
 
     def cell(self, row_index: int, name: str) -> str:
         """Text of column ``name`` in data row ``row_index`` (0-based), "" if the column is absent."""

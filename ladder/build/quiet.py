@@ -1,7 +1,8 @@
 """Keeping the solver's stray debugging lines off standard output.
 
 Some HiGHS builds print a debugging line (``HighsMipSolverData::...``) with C ``printf`` while they
-solve, which would corrupt ``--format json`` output. ``solver_output_filtered`` sends file
+solve, and ``highspy`` prints a banner when a solver is made, with C ``printf``; either would corrupt
+``--format json`` output. ``solver_output_filtered`` sends file
 descriptor 1 to a temporary file for the duration, then writes back everything else it caught (so
 other output is only delayed, never lost) and drops the solver's lines.
 """
@@ -15,7 +16,7 @@ import sys
 import tempfile
 import threading
 
-SOLVER_NOISE = (b"HighsMipSolverData::",)
+SOLVER_NOISE = (b"HighsMipSolverData::", b"Running HiGHS", b"Includes third-party")   # debugging lines, banner
 _LOCK = threading.Lock()
 
 

@@ -1,9 +1,13 @@
-"""Solving the builder's program with HiGHS (through scipy), and explaining the answer.
+"""Solving the builder's program with HiGHS, and explaining the answer.
 
-- ``solve``: the mixed-integer program (``scipy.optimize.milp``), to a relative gap of ``MIP_GAP``. A
-  semi-continuous or semi-integer variable x (0 or lb <= x <= ub) is given to the solver as x with a
-  binary z beside it, lb z <= x <= ub z (the textbook indicator form; HiGHS as called by scipy 1.17
-  stops with a solve error on its own semi-variable types).
+- ``solve``: the mixed-integer program, to a relative gap of ``MIP_GAP``, through HiGHS's own Python
+  interface (``highspy``), which reports each better plan found while it runs and can be stopped: a
+  ``watch`` callback hears the elapsed time, the best plan's income and its proven gap; a ``stop``
+  flag ends the search with the best plan found so far (marked as not proven optimal).
+  Funds are semi-continuous (0 or lb <= x <= ub), a type HiGHS solves natively.
+- ``semi_milp``: ``scipy.optimize.milp`` for the diagnosis's program, a semi-continuous or
+  semi-integer variable given as x with a binary z beside it, lb z <= x <= ub z (the textbook
+  indicator form; HiGHS as called by scipy 1.17 stops with a solve error on its own semi-variable types).
 - ``relaxation``: the linear relaxation (``scipy.optimize.linprog``, method "highs"): lots may be
   fractional and a semi-integer lot count may take any value from 0 to its maximum. Its dual values
   (``marginals``) say how much income a year one more unit of each row's right-hand side would
@@ -17,11 +21,12 @@
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+import time
+from dataclasses import dataclass, replace
+from typing import Callable
 
 import numpy as np
 from scipy import sparse
-from scipy.optimize import Bounds, LinearConstraint, linprog, milp
 
 from ladder.build.program import BUDGET, SENS_BUYS, SENS_ONE, Program
 from ladder.build.quiet import solver_output_filtered
@@ -30,17 +35,41 @@ MIP_GAP = 1e-6             # relative optimality gap of the integer program
 TIME_LIMIT_S = 120.0
 DIAGNOSE_GAP = 1e-4
 DIAGNOSE_TIME_LIMIT_S = 30.0
+WATCH_EVERY_S = 0.25       # seconds between two calls of ``watch`` (and two looks at ``stop``)
 _BINDING_DUAL = 1e-9
 
 
 @dataclass(frozen=True, eq=False)
 class Solution:
-    status: str           # "optimal" | "infeasible" | "time_limit" | "error"
+    """``status``: "optimal" (proven to ``MIP_GAP``), "stopped" (by the ``stop`` flag), "time_limit",
+    "infeasible" or "error". A stopped or timed-out search keeps its best plan in ``x`` (None if it had
+    found none) and ``gap``, the relative gap to the proven bound on income."""
+
+    status: str
     x: np.ndarray | None  # variable values (lots rounded to integers)
     income: float         # objective, currency a year
     message: str
     seconds: float
     gap: float | None = None
+
+    @property
+    def proven_optimal(self) -> bool:
+        return self.status == "optimal"
+
+
+@dataclass(frozen=True)
+class SolveProgress:
+    """Where a running search stands: ``income`` of the best plan so far (currency a year; None before
+    the first), ``bound`` the most any plan can earn as proven so far, ``gap`` (bound - income) / income
+    (None before the first plan)."""
+
+    seconds: float
+    income: float | None
+    bound: float | None
+    gap: float | None
+
+
+Watch = Callable[[SolveProgress], None]
 
 
 def _row_scale(p: Program) -> np.ndarray:
@@ -57,6 +86,8 @@ def _row_bounds(p: Program, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 def semi_milp(c, integrality, lb, ub, A, row_lower, row_upper, options):
     """``scipy.optimize.milp`` with the semi-variables (integrality 2, 3) in the indicator form (module
     docstring); returns the result with the indicators dropped from ``x``."""
+    from scipy.optimize import Bounds, LinearConstraint, milp
+
     semi = np.flatnonzero(integrality >= 2)
     k, m = len(c), len(semi)
     if m:
@@ -82,27 +113,95 @@ def semi_milp(c, integrality, lb, ub, A, row_lower, row_upper, options):
     return res
 
 
-def solve(p: Program, time_limit: float = TIME_LIMIT_S) -> Solution:
-    """The mixed-integer optimum of ``p``.
-
-    Rows are scaled to unit size; the objective is kept in currency a year (an objective scaled to
-    tiny numbers falls under the solver's optimality tolerances and its search stalls)."""
-    import time
+def _highs_model(p: Program):
+    """``p`` as a HiGHS model minimizing -income, rows scaled to unit size, columns stored by column."""
+    import highspy   # here, not at the top: the commands start without it
 
     scale = _row_scale(p)
+    A = sparse.csc_matrix(p.A / scale[:, None])
+    b = p.b / scale
+    lp = highspy.HighsLp()
+    lp.num_col_, lp.num_row_ = len(p.c), len(b)
+    lp.col_cost_, lp.col_lower_, lp.col_upper_ = -p.c, p.lb.astype(float), p.ub.astype(float)
+    lp.row_lower_, lp.row_upper_ = np.where(p.eq, b, -highspy.kHighsInf), b
+    lp.a_matrix_.format_ = highspy.MatrixFormat.kColwise
+    lp.a_matrix_.start_, lp.a_matrix_.index_, lp.a_matrix_.value_ = A.indptr, A.indices, A.data
+    lp.integrality_ = [highspy.HighsVarType(int(k)) for k in p.integrality]
+    return lp
+
+
+def _progress(data, seconds: float) -> SolveProgress:
+    """A ``SolveProgress`` from HiGHS's callback data (its objective is -income)."""
+    income, bound = -data.mip_primal_bound, -data.mip_dual_bound
+    found = np.isfinite(income)
+    return SolveProgress(seconds, float(income) if found else None, float(bound) if np.isfinite(bound) else None,
+                         float(max(data.mip_gap, 0.0)) if found and np.isfinite(data.mip_gap) else None)
+
+
+def solve(p: Program, time_limit: float = TIME_LIMIT_S, watch: Watch | None = None,
+          stop: Callable[[], bool] | None = None) -> Solution:
+    """The mixed-integer optimum of ``p``, or the best plan found when the search is stopped.
+
+    HiGHS searches in a thread of its own; the calling thread calls ``watch`` with a ``SolveProgress``
+    every ``WATCH_EVERY_S`` seconds and polls ``stop``; when ``stop()`` turns true, or ctrl+c
+    (KeyboardInterrupt) reaches the calling thread, the search ends at HiGHS's next check (a fraction
+    of a second to a few seconds) and the best plan so far is returned with status "stopped". Rows
+    are scaled to unit size; the objective is kept in currency a year (an objective scaled to tiny
+    numbers falls under the solver's optimality tolerances and its search stalls)."""
+    import threading
+
+    import highspy
+
     start = time.perf_counter()
+    stopping = threading.Event()
+    latest = [SolveProgress(0.0, None, None, None)]
+
+    def heard(event) -> None:   # in HiGHS's thread
+        latest[0] = _progress(event.data_out, time.perf_counter() - start)
+        if stopping.is_set() and event.data_in is not None:
+            event.interrupt()
+
     with solver_output_filtered():
-        res = semi_milp(-p.c, p.integrality, p.lb, p.ub, p.A / scale[:, None], *_row_bounds(p, p.b / scale),
-                    {"mip_rel_gap": MIP_GAP, "time_limit": time_limit, "presolve": True})
+        h = highspy.Highs()
+        h.setOptionValue("output_flag", False)
+        h.passModel(_highs_model(p))
+        for name, value in (("mip_rel_gap", MIP_GAP), ("time_limit", float(time_limit)), ("presolve", "on")):
+            h.setOptionValue(name, value)
+        h.cbMipImprovingSolution.subscribe(heard)
+        h.cbMipInterrupt.subscribe(heard)
+        done = threading.Event()   # not Thread.join: a ctrl+c during join can mark a running thread as ended
+
+        def search() -> None:
+            try:
+                h.run()
+            finally:
+                done.set()
+
+        threading.Thread(target=search, name="ladder-build-solve", daemon=True).start()
+        while not done.is_set():
+            try:
+                if done.wait(WATCH_EVERY_S):
+                    break
+                if stop is not None and stop():
+                    stopping.set()
+                if watch is not None:
+                    watch(replace(latest[0], seconds=time.perf_counter() - start))
+            except KeyboardInterrupt:
+                stopping.set()
+        model, info = h.getModelStatus(), h.getInfo()
+        found = info.primal_solution_status == 2     # kSolutionStatusFeasible
+        x = np.asarray(h.getSolution().col_value) if found else None
     seconds = time.perf_counter() - start
-    status = {0: "optimal", 1: "time_limit", 2: "infeasible"}.get(res.status, "error")
-    if res.x is None:
-        return Solution(status if status != "time_limit" else "time_limit", None, float("nan"), res.message, seconds)
-    x = np.where(np.isin(p.integrality, (1, 3)), np.round(res.x), res.x)
+    status = {highspy.HighsModelStatus.kOptimal: "optimal", highspy.HighsModelStatus.kInfeasible: "infeasible",
+              highspy.HighsModelStatus.kTimeLimit: "time_limit",
+              highspy.HighsModelStatus.kInterrupt: "stopped"}.get(model, "error")
+    message = h.modelStatusToString(model)
+    if x is None:
+        return Solution(status, None, float("nan"), message, seconds)
+    x = np.where(np.isin(p.integrality, (1, 3)), np.round(x), x)
     semi = p.integrality == 2                     # a fund the solver left at round-off above 0 is none
     x = _within_budget(p, np.where(semi & (x < 0.5 * p.lb), 0.0, x))
-    gap = getattr(res, "mip_gap", None)
-    return Solution(status, x, float(p.c @ x), res.message, seconds, None if gap is None else float(gap))
+    return Solution(status, x, float(p.c @ x), message, seconds, float(max(info.mip_gap, 0.0)))
 
 
 def _within_budget(p: Program, x: np.ndarray) -> np.ndarray:
@@ -135,7 +234,7 @@ class Relaxation:
 
 def relaxation(p: Program) -> Relaxation:
     """The linear relaxation of ``p`` and its dual values (income a year per unit of right-hand side)."""
-    import time
+    from scipy.optimize import linprog
 
     scale = _row_scale(p)
     A, b = p.A / scale[:, None], p.b / scale

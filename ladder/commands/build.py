@@ -25,11 +25,15 @@ HELP = "design a policy-compliant ladder for cash to invest, at the best yield t
 STEP_WORDS = {"pct": "1 percentage point", "years": "0.1 years", "days": "30 days",
               "currency": "1,000,000 less need", "buys_pct": "1 point of the buys",
               "face": "1,000,000 more face"}
+PROGRESS_WIDTH = 90   # characters of the live progress line
 UNIT_WORDS = {"pct": "percentage points", "years": "years", "days": "days", "currency": "", "buys_pct": "points of the buys"}
 
 
 def add_parser(subparsers) -> None:
-    parser = subparsers.add_parser("build", help=HELP, description=HELP + ". Exit status 1 when no ladder fits.")
+    parser = subparsers.add_parser(
+        "build", help=HELP, description=HELP + ". While it solves, a terminal shows the elapsed time, the best plan so "
+        "far and its gap; ctrl+c stops the search and returns that plan, marked as not proven optimal. Exit status 1 "
+        "when no ladder fits (or none was found before the search stopped).")
     add_book(parser, formats=("table", "json"))
     parser.add_argument("--cash", required=True, metavar="AMOUNT", help="cash to invest, currency units")
     parser.add_argument("--rungs", metavar="SPEC",
@@ -102,12 +106,15 @@ def run(args) -> int:
 def _run(args, band) -> int:
     book = load_book(args.book)
     progress = None
-    if args.format == "table" and sys.stderr.isatty():
-        progress = lambda fraction, text: print(f"\r{100 * fraction:3.0f}% {text:<50}", end="", file=sys.stderr)  # noqa: E731
+    if sys.stderr.isatty():   # a live line on the terminal: the step, and while solving the best plan and gap
+        progress = lambda fraction, text: print(f"\r{100 * fraction:3.0f}% {text:<{PROGRESS_WIDTH}}"[:PROGRESS_WIDTH + 5],  # noqa: E731
+                                                end="", file=sys.stderr, flush=True)
     result = build_ladder(book, args.cash, rungs=args.rungs, offerings=args.offerings, allow_sales=args.allow_sales,
                           fresh=args.fresh, at=args.at, progress=progress, rung_band=band)
     if progress:
-        print("\r" + " " * 56 + "\r", end="", file=sys.stderr)
+        print("\r" + " " * (PROGRESS_WIDTH + 5) + "\r", end="", file=sys.stderr)
+    if result.optimality_note:     # stopped (ctrl+c) or timed out with a plan: say so wherever the output goes
+        print(f"ladder: {result.optimality_note}", file=sys.stderr)
     if args.format == "json":
         write_json(result.to_json())
     else:
@@ -153,6 +160,11 @@ def _print(result: BuildResult) -> None:
                   "and could not prove that none exists; try fewer offerings or wider rungs.")
         print_caution(con)
         return
+    if result.status == "stopped":
+        con.print(f"[bold red]The search was stopped[/] after {result.solution.seconds:.1f} s, before it found a "
+                  "ladder or proved that none exists.")
+        print_caution(con)
+        return
     if result.status != "built":
         con.print("[bold red]No ladder satisfies every constraint.[/] The smallest relaxation that would admit one "
                   "(the budget and the candidates kept as given):")
@@ -179,6 +191,8 @@ def _print(result: BuildResult) -> None:
     con.print(f"Invested {fmt(result.invested, 2)} of {fmt(result.cash, 2)} (within one lot: largest lot "
               f"{fmt(result.largest_lot, 2)}); {fmt(result.left_as_cash, 2)} left as cash (a fund purchase is "
               f"none or at least {fmt(result.min_fund, 2)}, \\[build].min_fund).")
+    if result.optimality_note:
+        con.print(f"[bold red]{term(result.optimality_note)}.[/]")
     summary = Table(title="Ladder before and after", header_style="bold")
     summary.add_column("")
     for title in ("Before", "After"):

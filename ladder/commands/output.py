@@ -17,8 +17,22 @@ from ladder.neutralize import safe_cell, safe_terminal
 
 
 def write_json(document, out=None) -> None:
-    """The document as indented JSON, built whole and written once (NaN is refused)."""
-    (out or sys.stdout).write(json.dumps(document, indent=2, allow_nan=False) + "\n")
+    """The document as JSON, built whole and written once (NaN is refused): the document and its
+    sections are indented one item a line; each item (a holding's record, a scenario) is written on
+    one line by the json module's C encoder, which is not used once ``indent`` is set (then a
+    10,000-holding shock document takes about three times as long)."""
+    (out or sys.stdout).write(_dumps(document, 0) + "\n")
+
+
+def _dumps(value, depth: int) -> str:
+    inner = value.values() if isinstance(value, dict) else value if isinstance(value, list) else ()
+    if depth >= 2 or not any(isinstance(v, (dict, list)) for v in inner):
+        return json.dumps(value, allow_nan=False)
+    pad, end = "  " * (depth + 1), "  " * depth
+    if isinstance(value, dict):
+        items = [f"{pad}{json.dumps(str(k))}: {_dumps(v, depth + 1)}" for k, v in value.items()]
+        return "{\n" + ",\n".join(items) + "\n" + end + "}"
+    return "[\n" + ",\n".join(pad + _dumps(v, depth + 1) for v in value) + "\n" + end + "]"
 
 
 def write_csv(records: list[dict], out=None) -> None:
@@ -72,6 +86,18 @@ def emit(fmt_name: str, document, records=None, table=None) -> None:
         write_csv(records())
     else:
         table()
+
+
+FULL_TABLE_UP_TO = 200   # rows a table of holdings shows in full; a larger one shows the largest
+LARGEST_SHOWN = 25
+
+
+def largest_caption(shown: int, total: int, what: str) -> str | None:
+    """The caption of a table cut to its ``shown`` largest rows of ``total`` (None when none is cut)."""
+    if shown >= total:
+        return None
+    return (f"The {shown} largest of {total:,} holdings by {what}; --all shows every row, --format json or csv "
+            "gives them all.")
 
 
 def print_whole(con, table) -> None:

@@ -8,7 +8,8 @@ from pathlib import Path
 from ladder.analysis.shock import shock_book, shock_document, shock_rows, shock_scenarios, spread_duration_records
 from ladder.folder.book_file import load_book
 from ladder.commands.common import add_book
-from ladder.commands.output import console, emit, fmt, print_caution, print_whole, term
+from ladder.commands.output import (FULL_TABLE_UP_TO, LARGEST_SHOWN, console, emit, fmt, largest_caption,
+                                    print_caution, print_whole, term)
 from ladder.errors import InputError, Problems
 from ladder.risk.scenarios import parse_bp_list
 
@@ -18,7 +19,9 @@ DESCRIPTION = (
     HELP + ". A shift moves the quoted par yields and the curve is rebuilt; spreads are held unless the scenario "
     "moves them. By default: parallel moves of -300 to +300 bp, steepener, flattener, short-end and long-end "
     "moves, a twist, the credit set (non-government spreads +50, +100, +200 bp, more for lower ratings) and "
-    "the book's scenarios.csv. --bp and --scenarios run exactly the scenarios they name instead.")
+    "the book's scenarios.csv. --bp and --scenarios run exactly the scenarios they name instead. The table of "
+    f"spread duration by holding shows every holding of a book of up to {FULL_TABLE_UP_TO}, else the "
+    f"{LARGEST_SHOWN} of the largest spread exposure (--all for every row); json and csv hold every holding.")
 
 
 def add_parser(subparsers) -> None:
@@ -31,6 +34,7 @@ def add_parser(subparsers) -> None:
     # argparse takes "-300,-100" for an option unless it looks like a negative number: let a list
     # starting with a negative shift follow --bp after a space too.
     parser._negative_number_matcher = re.compile(r"^-\d[\d.,\s+-]*$")
+    parser.add_argument("--all", action="store_true", help="table: every holding, however many")
     parser.set_defaults(run=run)
 
 
@@ -54,11 +58,11 @@ def _inputs(args):
 def run(args) -> int:
     book, shifts = _inputs(args)
     result = shock_book(book, args.at, shock_scenarios(book, shifts, args.scenarios))
-    emit(args.format, lambda: shock_document(result), lambda: shock_rows(result), lambda: _tables(result))
+    emit(args.format, lambda: shock_document(result), lambda: shock_rows(result), lambda: _tables(result, args.all))
     return 0
 
 
-def _tables(r) -> None:
+def _tables(r, every: bool = False) -> None:
     from rich.table import Table
 
     con = console()
@@ -101,7 +105,7 @@ def _tables(r) -> None:
         for s, scenario in enumerate(r.scenarios):
             t.add_row(term(scenario.name), *[fmt(x, 0) for x in totals.change[:, s]])
         show(t)
-    _credit_tables(r, con, show)
+    _credit_tables(r, con, show, every)
     con.print("Estimates: parallel moves use the effective duration and convexity; other moves use the key-rate "
               "durations and the convexity on the exposure-weighted shift (in brackets). Error = estimate minus exact.")
     con.print("Spread moves add the spread duration and spread convexity terms; a holding's own spread (z-spread, "
@@ -109,16 +113,20 @@ def _tables(r) -> None:
     print_caution(con)
 
 
-def _credit_tables(r, con, show) -> None:
-    """Spread duration by holding and the scenarios that move spreads."""
+def _credit_tables(r, con, show, every: bool) -> None:
+    """Spread duration by holding (the largest exposures of a large book unless ``every``) and the
+    scenarios that move spreads."""
     from rich.table import Table
 
     con.print(f"Spread duration {fmt(r.portfolio_spread_duration, 3)}   spread convexity "
               f"{fmt(r.portfolio_spread_convexity, 3)}   (years, market-value weighted)")
-    t = Table(title="Spread duration by holding (own spread moved +/- 1 bp, curve held)", header_style="bold")
+    exposed = int((r.spread_duration != 0).sum())
+    records = spread_duration_records(r, None if every or exposed <= FULL_TABLE_UP_TO else LARGEST_SHOWN)
+    t = Table(title="Spread duration by holding (own spread moved +/- 1 bp, curve held)", header_style="bold",
+              caption=largest_caption(len(records), exposed, "spread exposure (value x spread duration)"))
     for title in ("Holding", "Sector", "Bucket", "Spread bp", "Spread dur.", "Spread conv.", "Value"):
         t.add_column(title, justify="left" if title in ("Holding", "Sector", "Bucket") else "right", no_wrap=True)
-    for x in spread_duration_records(r):
+    for x in records:
         t.add_row(x["id"], x["sector"], x["bucket"], fmt(x["spread_bp"], 1), fmt(x["spread_duration"], 3),
                   fmt(x["spread_convexity"], 3), fmt(x["base_value"], 0))
     show(t)

@@ -2,20 +2,27 @@
 
 from __future__ import annotations
 
+import numpy as np
+
 from ladder.analysis.records import holding_records, totals_record, valuation_document
 from ladder.analysis.valuation import value_book
 from ladder.folder.book_file import load_book
 from ladder.commands.common import add_book
-from ladder.commands.output import console, emit, fmt, print_caution, term
+from ladder.commands.output import (FULL_TABLE_UP_TO, LARGEST_SHOWN, console, emit, fmt, largest_caption,
+                                    print_caution, term)
 
 WIDE_TABLE = 190   # characters the full table needs; narrower terminals get the essential columns
 NARROW_COLUMNS = ("id", "maturity_date", "face", "clean_price", "yield_to_worst_pct", "effective_duration")
 HELP = "value every holding at a settlement date: prices, yields, duration, convexity, DV01, totals"
+DESCRIPTION = (HELP + f". The table shows every holding of a book of up to {FULL_TABLE_UP_TO}; for a larger "
+               f"book it shows the totals and the {LARGEST_SHOWN} largest positions by market value (--all "
+               "for every row). json and csv always hold every holding.")
 
 
 def add_parser(subparsers) -> None:
-    parser = subparsers.add_parser("value", help=HELP, description=HELP)
+    parser = subparsers.add_parser("value", help=HELP, description=DESCRIPTION)
     add_book(parser)
+    parser.add_argument("--all", action="store_true", help="table: every holding, however many")
     parser.set_defaults(run=run)
 
 
@@ -23,7 +30,7 @@ def run(args) -> int:
     book = load_book(args.book)
     valuation = value_book(book, args.at)
     emit(args.format, lambda: _with_cash(book, valuation_document(valuation)), lambda: holding_records(valuation),
-         lambda: _table(book, valuation))
+         lambda: _table(book, valuation, args.all))
     return 0
 
 
@@ -36,14 +43,23 @@ def _with_cash(book, document: dict) -> dict:
     return document
 
 
-def _table(book, valuation) -> None:
+def _shown_rows(valuation, every: bool):
+    """Row indices the table shows (all, or the largest by market value, largest first) and a caption."""
+    n = len(valuation.holdings)
+    if every or n <= FULL_TABLE_UP_TO:
+        return np.arange(n), None
+    rows = np.argsort(-np.nan_to_num(valuation.market_value, nan=-np.inf), kind="stable")[:LARGEST_SHOWN]
+    return rows, largest_caption(len(rows), n, "market value")
+
+
+def _table(book, valuation, every: bool) -> None:
+    from rich import box
     from rich.table import Table
 
     con = console()
-    from rich import box
-
-    table = Table(title=f"{term(book.name)}: valuation at {valuation.as_of}", header_style="bold", box=box.SIMPLE_HEAD,
-                  pad_edge=False)
+    rows, caption = _shown_rows(valuation, every)
+    table = Table(title=f"{term(book.name)}: valuation at {valuation.as_of}", header_style="bold",
+                  box=box.SIMPLE_HEAD, pad_edge=False, caption=caption)
     columns = [("id", "Id", None), ("sector", "Sector", None), ("maturity_date", "Maturity", None),
                ("coupon_pct", "Cpn %", 3), ("face", "Face", 0), ("clean_price", "Clean", 4),
                ("accrued", "Accrued", 4), ("market_value", "Market value", 0),
@@ -55,7 +71,7 @@ def _table(book, valuation) -> None:
         columns = [c for c in columns if c[0] in NARROW_COLUMNS]
     for key, title, digits in columns:
         table.add_column(title, justify="left" if digits is None else "right", no_wrap=True)
-    for record in holding_records(valuation):
+    for record in holding_records(valuation, rows):
         marks = ("*" if record["callable"] else "") + ("~" if record["priced_from"] == "curve" else "")
         table.add_row(*[term(str(record[key]) + (marks if key == "id" else "")) if digits is None
                         else fmt(record[key], digits) for key, _, digits in columns])

@@ -18,7 +18,6 @@ import socket
 from contextlib import contextmanager
 from pathlib import Path
 
-from filelock import FileLock, Timeout
 
 LOCK_FILE = ".ladder.lock"
 HOLDER_FILE = ".ladder.lock.holder"
@@ -65,6 +64,8 @@ def book_lock(folder, command: str, wait: float | None = None):
         finally:
             _held[key] -= 1
         return
+    from filelock import FileLock, Timeout   # here, not at the top: commands that only read start without it
+
     lock = FileLock(os.path.join(key, LOCK_FILE), timeout=lock_wait() if wait is None else wait)
     try:
         lock.acquire()

@@ -27,6 +27,7 @@ from __future__ import annotations
 
 import difflib
 import re
+from functools import lru_cache
 
 import numpy as np
 
@@ -119,11 +120,13 @@ def _explain(text: str, scale: dict[str, int], other: dict[str, int], term: str,
     return f"unknown {term} rating {t!r}{more}; separate several agencies' ratings with '{SEPARATOR}'"
 
 
+@lru_cache(maxsize=4096)   # a book repeats a few rating fields thousands of times
 def explain_long(text: str) -> str | None:
     """Why ``text`` is not a long-term rating field (with suggestions), or None if it is one."""
     return _explain(text, LONG_NOTCH, SHORT_NOTCH, "long-term", "short-term")
 
 
+@lru_cache(maxsize=4096)
 def explain_short(text: str) -> str | None:
     """Why ``text`` is not a short-term rating field (with suggestions), or None if it is one."""
     return _explain(text, SHORT_NOTCH, LONG_NOTCH, "short-term", "long-term")

@@ -34,7 +34,6 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import linprog
 
 SCALE = 1e6
 LONG_BONUS = 1.0
@@ -132,6 +131,8 @@ def place(cash: float, buffer: float, fund_rate: float, menu: Tenors, book: Outl
     c = np.concatenate([-(menu.y - fund_rate), c_soft])
     if menu.long_end >= 0:
         c[menu.long_end] -= LONG_BONUS
+    from scipy.optimize import linprog   # here, not at the top: the commands start without it
+
     result = linprog(c, A_ub=A, b_ub=b, bounds=(0, None), method="highs")
     if result.status != 0:
         return np.zeros(J)

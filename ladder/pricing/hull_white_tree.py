@@ -18,6 +18,17 @@ paper's 0.184 / (a dt) bound that keeps every probability positive. With a = 0 (
 bends. alpha(t_i) is fitted by forward induction on the Arrow-Debreu prices Q (paper, section "Second
 stage") so that the tree reprices the zero-coupon bond to every grid time exactly.
 
+One lattice for every curve: the tree's geometry (dx, branching, probabilities) does not depend on
+the curve, only alpha does, and alpha at a step multiplies every node's one-step discount factor by
+the same number exp(-alpha_i dt). So the lattice is built once with alpha = 0: ``steps[i]`` is the
+(nodes_i, nodes_{i+1}) matrix of branching probability times exp(-x_j dt), and ``arrow_debreu[i]``
+(Pi_ij) are its forward-induction prices. For a curve with discount factors DF, the fitted tree's
+Arrow-Debreu prices are Q_ij = D_i Pi_ij with D_i = DF(t_i) / sum_j Pi_ij (so sum_j Q_ij = DF(t_i)
+exactly) and exp(-alpha_i dt) = D_{i+1} / D_i. Values rolled back with ``steps`` alone are the fitted
+tree's values times D_i (U_i = D_i V_i satisfies U_i = steps[i] U_{i+1}); a cash flow at time t in
+step i enters U as amount * DF(t) * ``stub_weights(i, t)``, curve-free weights times the curve's
+discount factor. Any number of curves is therefore rolled back as extra columns of one array.
+
 Units: times in years on the curve's measure (ACT/365F from the valuation date), rates continuously
 compounded decimals, the rate r at a node applying over the step that starts there.
 """
@@ -29,22 +40,24 @@ from dataclasses import dataclass
 from typing import Callable
 
 import numpy as np
+from scipy import sparse
 
 Discount = Callable[[np.ndarray], np.ndarray]
 
 # Hull and White (1994): probabilities stay positive for j_max * |M| between 0.184 and 0.816.
 J_MAX_FACTOR = 0.184
+# Probability mass of the outermost nodes left out of each step (see HullWhiteTree.build).
+PRUNED_MASS = 1e-18
 
 
 @dataclass(frozen=True, eq=False)
 class HullWhiteTree:
-    """A fitted Hull-White trinomial tree on the uniform grid t_i = i * dt, i = 0..n_steps.
+    """The Hull-White trinomial lattice on the uniform grid t_i = i * dt, i = 0..n_steps, for any curve.
 
-    Node j of step i (j = -width(i)..width(i), stored at column j + width(i)) has short rate
-    ``alpha[i] + j * dx`` over [t_i, t_{i+1}]. ``state_prices[i, :2*width(i)+1]`` are the Arrow-Debreu
-    prices Q_ij (value today of 1 paid at node (i, j)); their sum is the curve's DF(t_i).
-    ``weights[i]`` is the triple (up, mid, down) of arrays over the nodes of step i: branching
-    probability times the node's one-step discount factor exp(-r dt).
+    Node j of step i (j = -width(i)..width(i), stored at row j + width(i)) has short rate
+    ``alpha_i + j * dx`` over [t_i, t_{i+1}], alpha_i fitted to a curve by ``alpha``.
+    ``steps[i]`` (nodes_i, nodes_{i+1}) sparse: branching probability times exp(-j dx dt) (alpha = 0).
+    ``arrow_debreu[i, :2*width(i)+1]``: Pi_ij, the forward-induction prices with alpha = 0.
     """
 
     a: float
@@ -53,17 +66,19 @@ class HullWhiteTree:
     n_steps: int
     dx: float
     j_max: int
-    alpha: np.ndarray          # (n_steps,)
-    state_prices: np.ndarray   # (n_steps + 1, 2 * min(n_steps, j_max) + 1), zero-padded
-    weights: tuple             # n_steps triples of (nodes_i,) arrays
-    discount: Discount
+    widths: np.ndarray         # (n_steps + 1,) largest |j| kept at each step
+    steps: tuple               # n_steps sparse.csr_matrix
+    arrow_debreu: np.ndarray   # (n_steps + 1, 2 * widths.max() + 1), zero-padded
 
     @staticmethod
-    def build(discount: Discount, a: float, sigma: float, dt: float, n_steps: int) -> "HullWhiteTree":
-        """Fit the tree to ``discount`` (vectorized DF of ACT/365F years) on ``n_steps`` steps of ``dt`` years.
+    def build(a: float, sigma: float, dt: float, n_steps: int) -> "HullWhiteTree":
+        """The lattice for mean reversion ``a`` (per year, >= 0) and absolute volatility ``sigma``
+        (decimal per sqrt(year), >= 0) on ``n_steps`` steps of ``dt`` years.
 
-        ``a`` is the mean reversion (per year, >= 0), ``sigma`` the absolute volatility of the short
-        rate (decimal per sqrt(year), >= 0).
+        Nodes that the tree reaches with probability below ``PRUNED_MASS`` in all (the outermost
+        nodes of each step, both sides together) are left out: the flows they would carry change a
+        price by less than that mass times the price at each step (below 1e-13 per 100 over a
+        thousand steps), and the curve is still matched exactly by the nodes kept.
         """
         if a < 0 or sigma < 0 or dt <= 0 or n_steps < 1:
             raise ValueError("need a >= 0, sigma >= 0, dt > 0, n_steps >= 1")
@@ -72,76 +87,74 @@ class HullWhiteTree:
         dx = math.sqrt(3.0 * variance)
         j_max = n_steps if m == 0 else min(n_steps, math.ceil(J_MAX_FACTOR / -m))
         probs = _branch_probabilities(j_max, m)
-        curve = np.asarray(discount(dt * np.arange(1, n_steps + 1)), dtype=float)
-
-        width = np.minimum(np.arange(n_steps + 1), j_max)
-        q = np.zeros((n_steps + 1, 2 * width[-1] + 1))
-        q[0, 0] = 1.0
-        alpha = np.empty(n_steps)
-        weights = []
+        full = np.minimum(np.arange(n_steps + 1), j_max)
+        kept = np.zeros(n_steps + 1, int)
+        reach = np.ones(1)                   # probability of each node of the full tree
+        steps, pi = [], [np.ones(1)]
         for i in range(n_steps):
-            w, w1 = width[i], width[i + 1]
-            x = dx * np.arange(-w, w + 1)
-            qi = q[i, : 2 * w + 1]
-            alpha[i] = math.log(np.dot(qi, np.exp(-x * dt)) / curve[i]) / dt
-            node_df = np.exp(-(alpha[i] + x) * dt)
+            w, w1 = full[i], full[i + 1]
             up, mid, down, centre = _step_branching(probs, j_max, w, w1)
-            weights.append((up * node_df, mid * node_df, down * node_df))
-            mass = qi * node_df
-            child = centre + w1  # column of the middle child in step i + 1
-            q[i + 1, : 2 * w1 + 1] = np.bincount(
-                np.concatenate((child + 1, child, child - 1)),
-                weights=np.concatenate((mass * up, mass * mid, mass * down)),
-                minlength=2 * w1 + 1,
-            )
-        return HullWhiteTree(a, sigma, dt, n_steps, dx, j_max, alpha, q, tuple(weights), discount)
+            p = np.stack((up, mid, down), axis=1)                        # (nodes_i, 3)
+            cols = (centre + w1)[:, None] + np.array([1, 0, -1])         # children, rows of step i + 1
+            reach = np.bincount(cols.ravel(), weights=(reach[:, None] * p).ravel(), minlength=2 * w1 + 1)
+            kept[i + 1] = w1 - int(np.count_nonzero(np.cumsum(reach[:w1] + reach[::-1][:w1]) < PRUNED_MASS))
+            k, k1 = kept[i], kept[i + 1]
+            cols = cols[w - k: w + k + 1] - (w1 - k1)
+            inside = (cols >= 0) & (cols <= 2 * k1)
+            weight = p[w - k: w + k + 1] * np.exp(-dx * np.arange(-k, k + 1) * dt)[:, None]
+            indptr = np.concatenate(([0], np.cumsum(inside.sum(axis=1))))
+            steps.append(sparse.csr_matrix((weight[inside], cols[inside], indptr), shape=(2 * k + 1, 2 * k1 + 1)))
+            pi.append(steps[-1].T @ pi[-1])
+        arrow_debreu = np.zeros((n_steps + 1, 2 * kept.max() + 1))
+        for i, row in enumerate(pi):
+            arrow_debreu[i, : len(row)] = row
+        return HullWhiteTree(a, sigma, dt, n_steps, dx, j_max, kept, tuple(steps), arrow_debreu)
 
     def width(self, i: int) -> int:
-        """Largest |j| at step ``i``."""
-        return min(i, self.j_max)
+        """Largest |j| kept at step ``i``."""
+        return int(self.widths[i])
+
+    def branching(self, i: int) -> tuple[np.ndarray, ...]:
+        """(up, mid, down, centre) over the nodes j = -min(i, j_max)..min(i, j_max) of step ``i`` of the
+        tree before pruning: the branching probabilities and the middle child's j."""
+        w, w1 = min(i, self.j_max), min(i + 1, self.j_max)
+        return _step_branching(_branch_probabilities(self.j_max, math.expm1(-self.a * self.dt)), self.j_max, w, w1)
 
     def nodes(self, i: int) -> np.ndarray:
         """x = j * dx at the nodes of step ``i`` (the short rate less alpha)."""
         w = self.width(i)
         return self.dx * np.arange(-w, w + 1)
 
-    def stub_discount(self, i: int, times: np.ndarray, curve_discount: np.ndarray | None = None) -> np.ndarray:
-        """Node discount factors from t_i to each of ``times`` (in [t_i, t_{i+1}]), shape (len(times), nodes_i).
+    def deflators(self, discount: Discount) -> np.ndarray:
+        """D_i = DF(t_i) / sum_j Pi_ij for i = 0..n_steps: (n_steps + 1,), or (S, n_steps + 1) when
+        ``discount`` gives S curves ((S, len(t)) for times t)."""
+        grid = self.dt * np.arange(self.n_steps + 1)
+        return np.asarray(discount(grid), float) / self.arrow_debreu.sum(axis=1)
 
-        Row k is exp(-(alpha_k + x_j) h_k) with h_k = times[k] - t_i and alpha_k fitted like alpha in the
-        forward induction, so that sum_j Q_ij * row_kj equals DF(times[k]): a cash flow between grid
-        times is discounted over its stub with the node's own rate and the curve is still matched
-        exactly. At h = dt the row is the node's one-step discount factor. ``curve_discount`` is
-        DF(times) when the caller has it already (one curve evaluation for many steps).
+    def alpha(self, discount: Discount) -> np.ndarray:
+        """The drift alpha_i fitted to ``discount`` (decimal): (n_steps,) or (S, n_steps)."""
+        d = np.log(self.deflators(discount))
+        return -np.diff(d, axis=-1) / self.dt
+
+    def state_prices(self, discount: Discount) -> np.ndarray:
+        """Arrow-Debreu prices Q_ij of the tree fitted to one curve: (n_steps + 1, nodes), zero-padded."""
+        return self.arrow_debreu * self.deflators(discount)[:, None]
+
+    def stub_weights(self, i: int, times: np.ndarray) -> np.ndarray:
+        """Curve-free weights (len(times), nodes_i) that bring 1 paid at each of ``times`` (in [t_i, t_{i+1}])
+        back to the nodes of step ``i``, in deflated values: times DF(t) they are D_i times the fitted
+        tree's node discount factors exp(-(alpha_k + x_j) h_k), h_k = times[k] - t_i, with alpha_k fitted
+        like alpha so that sum_j Q_ij * factor_kj = DF(times[k]). A cash flow between grid times is
+        discounted over its stub with the node's own rate and the curve is still matched exactly.
         """
         times = np.asarray(times, dtype=float)
-        h = times - i * self.dt
-        e = np.exp(-np.outer(h, self.nodes(i)))
+        e = np.exp(-np.outer(times - i * self.dt, self.nodes(i)))
         w = self.width(i)
-        fitted = e @ self.state_prices[i, : 2 * w + 1]
-        df = self.discount(times) if curve_discount is None else curve_discount
-        return e * (np.asarray(df, dtype=float) / fitted)[:, None]
+        return e / (e @ self.arrow_debreu[i, : 2 * w + 1])[:, None]
 
-    def roll_back(self, i: int, values: np.ndarray, out: np.ndarray) -> None:
-        """Discounted expectation at step ``i`` of ``values`` (rows, nodes_{i+1}) into ``out[:rows]``."""
-        up, mid, down = self.weights[i]
-        rows = values.shape[0]
-        if self.width(i + 1) > self.width(i):       # all branching normal: children j+1, j, j-1
-            _stencil(values, up, mid, down, out[:rows])
-            return
-        inner = out[:rows, 1:-1]                     # |j| < j_max normal, edges bend inwards
-        _stencil(values, up[1:-1], mid[1:-1], down[1:-1], inner)
-        out[:rows, -1] = values[:, -1] * up[-1] + values[:, -2] * mid[-1] + values[:, -3] * down[-1]
-        out[:rows, 0] = values[:, 2] * up[0] + values[:, 1] * mid[0] + values[:, 0] * down[0]
-
-
-def _stencil(values, up, mid, down, out) -> None:
-    """out = up * values[:, 2:] + mid * values[:, 1:-1] + down * values[:, :-2], with one temporary."""
-    np.multiply(values[:, 2:], up, out=out)
-    tmp = values[:, 1:-1] * mid
-    out += tmp
-    np.multiply(values[:, :-2], down, out=tmp)
-    out += tmp
+    def roll_back(self, i: int, values: np.ndarray) -> np.ndarray:
+        """Deflated values at step ``i`` from ``values`` (nodes_{i+1}, lanes) at step i + 1."""
+        return self.steps[i] @ values
 
 
 def _branch_probabilities(j_max: int, m: float) -> dict[str, np.ndarray]:

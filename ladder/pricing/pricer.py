@@ -65,41 +65,17 @@ class Pricer:
         discount = np.atleast_2d(curve.discount(times))                       # (S, U)
         prices = (weights @ discount.T).T / discount[:, settle_column]        # (S, n)
         if self.calls is not None and len(self.callable_rows):
-            settle = self.cash_flows.settle[0]
-            shared = _SharedDiscount(curve, settle) if many else None
-            discounts = [shared.of(s) for s in range(len(curve))] if many else [from_settle(curve, settle)]
-            prices[:, self.callable_rows] = np.stack(
-                [callable_prices(self.calls.bonds, d, self.spread[self.callable_rows], self.params)
-                 for d in discounts])
+            prices[:, self.callable_rows] = callable_prices(
+                self.calls.bonds, from_settle(curve, self.cash_flows.settle[0]), self.spread[self.callable_rows],
+                self.params)
         return prices if many else prices[0]
 
 
-class _SharedDiscount:
-    """Discount functions from ``settle`` (ACT/365F years) for every curve of a CurveSet.
-
-    The callable tree asks each curve for the same times; the first request for a set of times
-    evaluates it on all the curves at once and later requests are served from that evaluation.
-    """
-
-    def __init__(self, curves: CurveSet, settle):
-        self.curves = curves
-        self.t0 = float(curves.years(np.array([settle]))[0])
-        self.base = curves.discount(np.array([self.t0]))[:, 0]
-        self.cache: dict = {}
-
-    def of(self, s: int):
-        return lambda t: self(s, t)
-
-    def __call__(self, s: int, t) -> np.ndarray:
-        t = np.asarray(t, dtype=np.float64)
-        key = (t.shape, t.tobytes())
-        if key not in self.cache:
-            self.cache[key] = self.curves.discount(t + self.t0) / self.base.reshape((-1,) + (1,) * t.ndim)
-        return self.cache[key][s]
-
-
-def from_settle(curve: Curve, settle) -> callable:
-    """Discount function in ACT/365F years from ``settle`` (the callable model's clock)."""
+def from_settle(curve: Curve | CurveSet, settle) -> callable:
+    """Discount function in ACT/365F years from ``settle`` (the callable model's clock): for a Curve,
+    DF of the times' shape; for a CurveSet of S curves, (S, len(t)) for 1-D times."""
     t0 = float(curve.years(np.array([settle]))[0])
-    base = float(curve.discount(np.array([t0]))[0])
+    base = np.asarray(curve.discount(np.array([t0])))[..., 0]
+    if isinstance(curve, CurveSet):
+        return lambda t: curve.discount(np.asarray(t, dtype=np.float64) + t0) / base[:, None]
     return lambda t: curve.discount(np.asarray(t, dtype=np.float64) + t0) / base

@@ -2,7 +2,10 @@
 
 from __future__ import annotations
 
+import hashlib
 import io
+from importlib.metadata import version
+from pathlib import Path
 
 import numpy as np
 
@@ -10,6 +13,14 @@ from ladder.report.model import Chart
 
 DPI = 110
 SIZE = (7.5, 3.4)
+
+
+def chart_key(chart: Chart) -> str:
+    """A name for the chart's image that changes whenever the image would: a SHA-256 of the chart's
+    content (its repr: titles, categories, exact values), the size, this module's code and the
+    matplotlib version."""
+    content = repr((chart, DPI, SIZE, version("matplotlib"))).encode() + Path(__file__).read_bytes()
+    return hashlib.sha256(content).hexdigest()
 
 
 def chart_png(chart: Chart) -> bytes:

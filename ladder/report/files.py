@@ -13,13 +13,14 @@ from pathlib import Path
 
 from ladder.errors import naming
 from ladder.folder.save import write_atomic
-from ladder.report.charts import chart_png
+from ladder.report.charts import chart_key, chart_png
 from ladder.report.html import report_html
 from ladder.report.markdown import report_md
 from ladder.report.model import Report
 from ladder.report.xlsx import report_xlsx
 
 FORMATS = ("html", "xlsx", "md")
+CHART_CACHE = ".chart-cache"   # folder under the output folder: each chart's PNG, named by its content
 
 
 def write_bytes_atomic(path: Path, data: bytes) -> None:
@@ -50,15 +51,32 @@ def _put(path: Path, data: str | bytes) -> None:
             write_bytes_atomic(path, data)
 
 
+def cached_drawing(cache: Path):
+    """``chart_png`` through a folder of PNGs named by ``chart_key``: a chart is drawn once (matplotlib
+    takes seconds to start) and reused by every format and every later run until its content changes."""
+    def draw(chart) -> bytes:
+        path = cache / f"{chart_key(chart)}.png"
+        if path.is_file():
+            return path.read_bytes()
+        data = chart_png(chart)
+        with naming(cache):
+            cache.mkdir(exist_ok=True)
+        _put(path, data)
+        return data
+
+    return draw
+
+
 def write_report(report: Report, out: Path, fmt: str, folder_name: str) -> list[Path]:
     """Write ``report`` as ``fmt`` into ``out`` (created if needed); returns the files written."""
     out = Path(out)
     with naming(out):
         out.mkdir(parents=True, exist_ok=True)
     stem = report_stem(report, folder_name)
+    draw = cached_drawing(out / CHART_CACHE)
     if fmt == "html":
         path = out / f"{stem}.html"
-        _put(path, report_html(report))
+        _put(path, report_html(report, draw))
         return [path]
     if fmt == "xlsx":
         path = out / f"{stem}.xlsx"
@@ -70,7 +88,7 @@ def write_report(report: Report, out: Path, fmt: str, folder_name: str) -> list[
     for s in report.sections:
         for k, chart in enumerate(s.charts):
             image = out / f"{stem}-{s.key}-{k + 1}.png"
-            _put(image, chart_png(chart))
+            _put(image, draw(chart))
             names[(s.key, k)] = image.name
             written.append(image)
     path = out / f"{stem}.md"

@@ -41,12 +41,13 @@ def table_html(table: Table) -> str:
     return f"<h3>{escape(table.title)}</h3>\n<table><thead><tr>{head}</tr></thead><tbody>{body}</tbody></table>"
 
 
-def section_html(section: Section) -> str:
+def section_html(section: Section, draw=chart_png) -> str:
+    """One section; ``draw`` turns a chart into PNG bytes (``chart_png``, or a cached drawing)."""
     parts = [f'<section id="{escape(section.key)}"><h2>{escape(section.title)}</h2>']
     parts += [f"<p>{escape(note)}</p>" for note in section.notes[:1]]
     parts += [table_html(t) for t in section.tables]
     for chart in section.charts:
-        data = base64.b64encode(chart_png(chart)).decode("ascii")
+        data = base64.b64encode(draw(chart)).decode("ascii")
         parts.append(f'<figure><img src="data:image/png;base64,{data}" alt="{escape(chart.title)}">'
                      f"<figcaption>{escape(chart.title)}</figcaption></figure>")
     parts += [f"<p>{escape(note)}</p>" for note in section.notes[1:]]
@@ -60,9 +61,9 @@ def cautions_html(report: Report) -> str:
     return f'<div class="cautions"><strong>Cautions</strong><ul>{items}</ul></div>'
 
 
-def report_html(report: Report) -> str:
-    """The whole report; the cautions open and close it."""
-    body = "\n".join(section_html(s) for s in report.sections)
+def report_html(report: Report, draw=chart_png) -> str:
+    """The whole report; the cautions open and close it. ``draw``: as ``section_html``."""
+    body = "\n".join(section_html(s, draw) for s in report.sections)
     return (f'<!DOCTYPE html>\n<html lang="en"><head><meta charset="utf-8"><title>{escape(report.title)}</title>'
             f"<style>{STYLE}</style></head><body>\n<h1>{escape(report.title)}</h1>\n"
             f"<p>Period {report.period_start.isoformat()} (exclusive) to {report.as_of.isoformat()}.</p>\n"

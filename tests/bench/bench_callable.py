@@ -1,6 +1,11 @@
 """Benchmark: price, effective duration and effective convexity of many callables, next to QuantLib.
 
 Run as a script (not collected by pytest):  python tests/bench/bench_callable.py [--bonds 1000]
+
+Second part (issue 18): the same bonds under 61 scenario curves (the zero curve moved in parallel by
+-300 to +300 bp in 10 bp steps), every (bond, curve) pair rolled back together on one lattice,
+against QuantLib's tree engine bond by bond and curve by curve (a ZeroSpreadedTermStructure per
+shift) on a subset of pairs, scaled. Targets: under 1 s, and at least 50 times QuantLib.
 Invented bonds: semiannual 30/360 agency-style callables, coupons 3-6%, 1 to --max-years years,
 callable at 100 from 3 months to 2 years out, once or every 1, 3, 6 or 12 months. Both sides do three
 tree valuations per bond (base, curve +25 bp, curve -25 bp, OAS held) on the same Hull-White
@@ -21,10 +26,14 @@ import QuantLib as ql
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "pricing"))
 from test_callable_quantlib import (  # noqa: E402
-    CURVES, REF, discount_of, ladder_bonds, ql_callable, ql_curve, ql_dirty,
+    ACT365, CURVES, REF, discount_of, ladder_bonds, ql_callable, ql_curve, ql_dirty,
 )
 
-from ladder.pricing.callable import HullWhiteParams, option_adjusted_spreads, value_callables  # noqa: E402
+from ladder.pricing.callable import (  # noqa: E402
+    HullWhiteParams, callable_prices, option_adjusted_spreads, value_callables,
+)
+
+SHIFTS_BP = np.arange(-300.0, 301.0, 10.0)
 
 
 def invented_bonds(n: int, max_years: float, seed: int = 7):
@@ -87,7 +96,43 @@ def main() -> int:
     print(f"ladder OAS from price, all bonds:               {oas_s:8.3f} s  "
           f"(max error {np.nanmax(np.abs(solved - oas)):.1e})")
     print(f"largest gap on the subset: price {price_gap:.4f} per 100, duration {duration_gap:.4f} y")
-    return 0
+    return 0 if scenario_curves(args, params, zero, ql_bonds, bonds, oas) else 1
+
+
+def scenario_curves(args, params, zero, ql_bonds, bonds, oas) -> bool:
+    """Every bond under 61 parallel moves of the zero curve, ours batched, QuantLib pair by pair."""
+    a, sigma = params.mean_reversion, params.volatility
+    shifts = SHIFTS_BP / 1e4
+    many = lambda t: np.exp(-np.outer(shifts, t) - zero(np.asarray(t, float)) * np.asarray(t, float))
+    callable_prices(bonds, many, oas, params)                               # warm-up (lattice cached)
+    walls, cpus = [], []
+    for _ in range(args.repeat):
+        wall, cpu = time.perf_counter(), time.process_time()
+        ours = callable_prices(bonds, many, oas, params)
+        walls.append(time.perf_counter() - wall)
+        cpus.append(time.process_time() - cpu)
+    wall_s, cpu_s = min(walls), min(cpus)
+
+    base = ql_curve(zero)
+    pick_bonds = np.linspace(0, args.bonds - 1, min(args.subset, args.bonds)).astype(int)
+    pick_curves = np.linspace(0, len(shifts) - 1, 5).astype(int)
+    start, cpu = time.perf_counter(), time.process_time()
+    gap = 0.0
+    for s in pick_curves:
+        shifted = ql.YieldTermStructureHandle(ql.ZeroSpreadedTermStructure(
+            base, ql.QuoteHandle(ql.SimpleQuote(float(shifts[s]))), ql.Continuous, ql.NoFrequency, ACT365))
+        for i in pick_bonds:
+            steps = max(int(round(params.steps_per_year * bonds.maturity_years[i])), 1)
+            gap = max(gap, abs(ql_dirty(ql_bonds[i], shifted, a, sigma, steps, oas) - ours[s, i]))
+    pairs = len(pick_bonds) * len(pick_curves)
+    scale = len(shifts) * args.bonds / pairs
+    ql_wall, ql_cpu = (time.perf_counter() - start) * scale, (time.process_time() - cpu) * scale
+    print(f"\n{args.bonds} callables x {len(shifts)} curves ({args.bonds * len(shifts):,} pairs), one lattice:")
+    print(f"ladder: {wall_s:.3f} s wall, {cpu_s:.3f} s CPU (best of {args.repeat}; target < 1 s)")
+    print(f"QuantLib tree engine: {ql_wall:.1f} s wall, {ql_cpu:.1f} s CPU (measured on {pairs} pairs, scaled)")
+    print(f"ratio QuantLib / ladder: {ql_wall / wall_s:.0f}x wall, {ql_cpu / cpu_s:.0f}x CPU (target >= 50x); "
+          f"largest price gap on the pairs {gap:.4f} per 100")
+    return wall_s < 1.0 and ql_cpu / cpu_s >= 50
 
 
 if __name__ == "__main__":

@@ -124,3 +124,29 @@ def test_table_shows_spread_durations_and_a_combined_scenario(capsys, tmp_path):
     assert code == 0
     for text in ("Spread duration by holding", "Scenarios that move spreads", "sell-off", "DEMO-CORP-0601"):
         assert text in out
+
+
+def test_a_large_book_table_shows_the_largest_spread_exposures_and_all_on_request(capsys, monkeypatch):
+    """Issue 18: the table of spread duration by holding shows, for a large book, the holdings whose
+    value moves most with one basis point of their own spread (value x spread duration), said in a
+    caption; --all shows every row. The threshold is lowered so that the demo stands in for a large book."""
+    from ladder.analysis.shock import shock_book, spread_duration_records
+    from ladder.commands import shock
+    from ladder.folder.book_file import load_book
+
+    monkeypatch.setattr(shock, "FULL_TABLE_UP_TO", 10)
+    monkeypatch.setattr(shock, "LARGEST_SHOWN", 5)
+    monkeypatch.setenv("COLUMNS", "220")
+    records = spread_duration_records(shock_book(load_book(DEMO)))
+    ranked = sorted(records, key=lambda x: -abs(x["base_value"] * x["spread_duration"]))
+
+    def section(text: str) -> str:
+        return text.split("Spread duration by holding")[1].split("Scenarios that move spreads")[0]
+
+    code, out, _ = run(capsys)
+    shown = section(out)
+    assert code == 0 and f"The 5 largest of {len(records):,} holdings by spread exposure" in shown
+    assert all(x["id"] in shown for x in ranked[:5]) and not any(x["id"] in shown for x in ranked[5:])
+    code, out, _ = run(capsys, "--all")
+    every = section(out)
+    assert code == 0 and all(x["id"] in every for x in records) and "largest of" not in every

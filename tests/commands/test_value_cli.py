@@ -169,3 +169,27 @@ def test_bad_book_exits_2_with_every_problem_and_no_traceback(demo, tmp_path):
 def test_missing_book_folder_exits_2(tmp_path):
     done = ladder("value", tmp_path / "nowhere")
     assert done.returncode == 2 and "Traceback" not in done.stderr and "book.toml" in done.stderr
+
+
+def test_a_large_book_table_shows_the_largest_positions_and_all_on_request(demo, document, monkeypatch, capsys):
+    """Issue 18: past a few hundred holdings the table shows the totals and the largest positions by
+    market value (said in a caption); --all shows every row. Here the threshold is lowered to the
+    demo's size so that the demo stands in for a large book."""
+    from argparse import Namespace
+
+    from ladder.commands import value
+
+    monkeypatch.setattr(value, "FULL_TABLE_UP_TO", 10)
+    monkeypatch.setattr(value, "LARGEST_SHOWN", 5)
+    monkeypatch.setenv("COLUMNS", "220")
+    holdings = document["holdings"]
+    by_value = sorted(holdings, key=lambda r: -r["market_value"])
+    assert value.run(Namespace(book=demo, at=None, format="table", all=False)) == 0
+    shown = capsys.readouterr().out
+    assert all(r["id"] in shown for r in by_value[:5])
+    assert not any(re.search(rf"\b{re.escape(r['id'])}\b", shown) for r in by_value[5:])
+    assert f"The 5 largest of {len(holdings):,} holdings by market value" in shown
+    assert "Totals" in shown
+    assert value.run(Namespace(book=demo, at=None, format="table", all=True)) == 0
+    every = capsys.readouterr().out
+    assert all(r["id"] in every for r in holdings) and "largest of" not in every

@@ -119,7 +119,8 @@ def test_report_command_writes_every_format_and_reproduces(demo_copy, tmp_path):
         assert main(["report", str(demo_copy), "--format", "all", "--out", str(tmp_path / "r")]) == 0
         assert main(["report", str(demo_copy), "--at", "2026-11-30", "--reproduce", "--format", "md",
                      "--out", str(tmp_path / "again")]) == 0
-    names = sorted(p.name for p in (tmp_path / "r").iterdir())
+    names = sorted(p.name for p in (tmp_path / "r").iterdir() if p.name != ".chart-cache")
+    assert len(list((tmp_path / "r" / ".chart-cache").glob("*.png"))) == 3   # each chart drawn once, kept
     assert names == ["tessaline-report-2026-11-30-income-1.png", "tessaline-report-2026-11-30-maturities-1.png",
                      "tessaline-report-2026-11-30-shock-1.png", "tessaline-report-2026-11-30.html",
                      "tessaline-report-2026-11-30.md", "tessaline-report-2026-11-30.xlsx"]
