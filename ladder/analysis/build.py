@@ -93,6 +93,20 @@ class BuildResult:
         return self.compliance.check.status if isinstance(self.compliance, TradeWhatIf) else self.compliance.result.status
 
     @property
+    def trade_yields(self) -> np.ndarray | None:
+        """Each trade's expected yield (decimal; as ``LadderSummary.expected_yield``), in trade order."""
+        if self.trades is None or self.solution.x is None:
+            return None
+        return self.program.positions.yld[self.program.var_pos[_traded(self.solution.x)]]
+
+    @property
+    def gain_over_naive_bp(self) -> float | None:
+        """The built portfolio's expected yield less the naive even ladder's, basis points."""
+        if self.naive_yield is None or self.after is None:
+            return None
+        return (self.after.expected_yield - self.naive_yield) * 1e4
+
+    @property
     def largest_lot(self) -> float:
         """Market value of the largest single lot among the candidates bought (currency)."""
         p, x = self.program, self.solution.x
@@ -183,9 +197,14 @@ def candidates_for(book: Book, rungs: Rungs, at: dt.date, offerings=None) -> Can
     return eligible(book.policy, base, rungs, at)
 
 
+def _traded(x: np.ndarray) -> np.ndarray:
+    """Positions of the solution's variables that trade (the trades' order)."""
+    return np.flatnonzero(x > 1e-9)
+
+
 def _trades(p: Program, x: np.ndarray, at: dt.date) -> Trades:
     pos, face = p.positions, p.faces(x)
-    used = np.flatnonzero(x > 1e-9)
+    used = _traded(x)
     h = pos.holdings.take(p.var_pos[used])
     traded = np.round(face[used], 2)
     buy = p.var_sign[used] > 0

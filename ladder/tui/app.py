@@ -9,11 +9,13 @@ from __future__ import annotations
 
 import asyncio
 import dataclasses
+import time
 from pathlib import Path
 
 from textual import work
 from textual.app import App, ComposeResult, SystemCommand
 from textual.binding import Binding
+from textual.containers import Horizontal
 from textual.message import Message
 from textual.widgets import ContentSwitcher, Static
 from textual.worker import get_current_worker
@@ -50,6 +52,14 @@ VIEWS: tuple[tuple[str, str, type[View]], ...] = (
 
 
 VIEW_KEYS = Binding.Group("Views", compact=True)
+WIDE = 120     # columns: below it side-by-side panes stack and the view bar uses short names
+TALL = 30      # rows: below it charts and secondary panes fold away (g shows them)
+# Palette verbs (the command-line names): what each finds, and the view that shows it.
+VERBS = (("value", "holdings", "market value, yields, durations of every holding"),
+         ("check", "policy", "every policy rule against the book"),
+         ("shock", "rates", "the book under rate scenarios"),
+         ("plan", "plan", "cash against needs, period by period"),
+         ("build", "builder", "a ladder designed for new cash"))
 
 
 class Computed(Message):
@@ -63,10 +73,15 @@ class Computed(Message):
 class LadderApp(App[None]):
     CSS_PATH = "ladder.tcss"
     TITLE = "ladder"
+    HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (WIDE, "-wide")]
+    VERTICAL_BREAKPOINTS = [(0, "-short"), (TALL, "-tall")]
     BINDINGS = [
         *[Binding(key, f"show_view('{name}')", cls.TITLE, id=f"view.{name}", tooltip=f"Show the {cls.TITLE} view",
                   group=VIEW_KEYS) for name, key, cls in VIEWS],
-        Binding("question_mark", "keys", "Keys", id="app.keys", tooltip="Show or hide every key of this screen"),
+        Binding("question_mark", "keys", "Keys", id="app.keys",
+                tooltip="Show or hide every key of this screen and the caution in full"),
+        Binding("g", "more", "Charts", id="app.more",
+                tooltip="Show or fold the charts and side panes (folded on screens under 30 rows)"),
         Binding("ctrl+s", "save", "Save", id="app.save", tooltip="Write changes to the book (atomic, with backup)"),
         Binding("q", "quit", "Quit", id="app.quit", tooltip="Quit (asks first when there are unsaved changes)"),
     ]
@@ -80,16 +95,19 @@ class LadderApp(App[None]):
         self.unsaved: dict[str, str] = {}
         self.results = Results(0, book)
         self.options = tasks.Options()
+        self.started_at = time.monotonic()    # when the running computation began
 
     # ---- layout --------------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
-        yield Static(id="book-line")
+        with Horizontal(id="top-line"):
+            yield Static("UNSAVED", id="unsaved-badge")
+            yield Static(id="book-line")
         yield Static(id="view-bar")
         with ContentSwitcher(initial=VIEWS[0][0], id="views"):
             for name, _, cls in VIEWS:
                 yield cls(id=name)
         yield Static(CAUTION, id="caution", classes="caution")
-        yield KeyFooter()
+        yield KeyFooter(hidden_groups=(VIEW_KEYS.description,))
 
     def on_mount(self) -> None:
         asyncio.get_running_loop().set_default_executor(DaemonExecutor())
@@ -98,6 +116,7 @@ class LadderApp(App[None]):
         self.theme = THEMES[0].name
         self.recompute()
         self._show_bar()
+        self.set_interval(0.5, self._tick)
         self.current_view.query_one("FrameTable").focus()
 
     @property
@@ -107,30 +126,46 @@ class LadderApp(App[None]):
 
     def _show_bar(self) -> None:
         current = self.query_one("#views", ContentSwitcher).current
+        wide = self.size.width >= WIDE
         parts = []
         for name, key, cls in VIEWS:
-            label = f" {cls.TITLE} ({key}) "
-            parts.append(f"[reverse] {cls.TITLE} ({key}) [/reverse]" if name == current else label)
+            label = f"[b]{key}[/b] {cls.TITLE if wide else cls.SHORT}"
+            parts.append(f"[reverse] {label} [/reverse]" if name == current else f" {label} ")
         self.query_one("#view-bar", Static).update("".join(parts))
         r = self.results
         book = self.book
         state = []
         if r.pending:
-            state.append("computing " + ", ".join(t for t in TASKS if t in r.pending))
+            running = next(t for t in TASKS if t in r.pending)
+            done = len(TASKS) - len(r.pending)
+            state.append(f"computing {running} ({done + 1} of {len(TASKS)}), "
+                         f"{time.monotonic() - self.started_at:.1f} s")
         if r.errors:
             state.append("not available: " + ", ".join(sorted(r.errors)))
-        if self.unsaved:
-            state.append("UNSAVED: " + "; ".join(self.unsaved.values()))
-        line = f"{book.name} ({book.folder})  ·  valuation date {book.valuation_date}  ·  {book.currency}"
+        line = [f"{book.name}", f"valued {book.valuation_date}", book.currency]
+        if wide:
+            line.append(str(book.folder))
+        changes = ["changes: " + "; ".join(self.unsaved.values()) + " (ctrl+s saves)"] if self.unsaved else []
         bar = self.query_one("#book-line", Static)
-        bar.update(line + ("  ·  " + "  ·  ".join(state) if state else "  ·  figures current"))
-        bar.set_class(bool(self.unsaved), "-unsaved")
+        bar.update("  ·  ".join(state + line + changes) if state else
+                   "  ·  ".join(line + ["figures current"] + changes))
+        self.query_one("#unsaved-badge").display = bool(self.unsaved)
         bar.set_class(bool(r.pending), "-computing")
+
+    def _tick(self) -> None:
+        """Keep the elapsed time of a running computation current on the top line."""
+        if self.results.pending:
+            self._show_bar()
+
+    def on_resize(self) -> None:
+        self._show_bar()
+        self.refresh_bindings()
 
     # ---- computing -----------------------------------------------------------------------------
     def recompute(self) -> None:
         """Start every task for the current book; results of earlier books are dropped on arrival."""
-        self.results = Results(self.results.generation + 1, self.book).started(TASKS)
+        self.results = self.results.next_book(self.book).started(TASKS)
+        self.started_at = time.monotonic()
         self._hand_down()
         self.compute(self.results.generation, self.book, self.options)
 
@@ -140,6 +175,7 @@ class LadderApp(App[None]):
             self.recompute()      # a full run is under way: start it again with the new options
             return
         self.results = self.results.started([task])
+        self.started_at = time.monotonic()
         self._hand_down()
         self.compute(self.results.generation, self.book, self.options, (task,), self.results)
 
@@ -265,16 +301,25 @@ class LadderApp(App[None]):
                 break
 
     def action_keys(self) -> None:
-        if self.screen.query("HelpPanel"):
+        showing = bool(self.screen.query("HelpPanel"))
+        if showing:
             self.action_hide_help_panel()
         else:
             self.action_show_help_panel()
+        self.query_one("#caution").set_class(not showing, "-full")
+
+    def action_more(self) -> None:
+        self.screen.toggle_class("-more")
+
+    def action_report(self) -> None:
+        self.notify("The month-end report is written by the command line: ladder report BOOK_FOLDER "
+                    "(html by default; --format all for every format).", title="report", timeout=10)
 
     def check_action(self, action: str, parameters) -> bool | None:
         if action == "save":
             return bool(self.unsaved) or None
-        if action == "show_view" and parameters:
-            return True
+        if action == "more":
+            return self.screen.has_class("-short") or None
         return True
 
     def action_save(self) -> None:
@@ -317,6 +362,12 @@ class LadderApp(App[None]):
         self.push_screen(QuitScreen(list(self.unsaved.values())), answered)
 
     def get_system_commands(self, screen):
+        titles = {name: cls.TITLE for name, _, cls in VIEWS}
+        for verb, view, what in VERBS:
+            yield SystemCommand(f"{verb}: {what} ({titles[view]} view)", f"Open the {titles[view]} view",
+                                lambda view=view: self.action_show_view(view))
+        yield SystemCommand("report: the month-end report (a command-line command)",
+                            "Say which command writes the month-end report", self.action_report)
         for name, key, cls in VIEWS:
             yield SystemCommand(f"Show {cls.TITLE}", f"Switch to the {cls.TITLE} view (key {key})",
                                 lambda name=name: self.action_show_view(name))

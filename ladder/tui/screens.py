@@ -63,16 +63,16 @@ class DetailScreen(ModalScreen[None]):
             py = d.price_yield
             x = (py.yields * 100).tolist()
 
-            def paint(plt) -> None:
-                plt.plot(x, py.exact.tolist(), label="exact", marker="braille")
-                plt.plot(x, py.duration.tolist(), label="duration", marker="braille")
-                plt.plot(x, py.convexity.tolist(), label="duration + convexity", marker="braille")
+            def paint(plt, series) -> None:
+                plt.plot(x, py.exact.tolist(), label="exact", **series.line(0))
+                plt.plot(x, py.duration.tolist(), label="duration", **series.line(1))
+                plt.plot(x, py.convexity.tolist(), label="duration + convexity", **series.line(2))
                 plt.title("Dirty price per 100 against yield (%)")
 
-            def errors(plt) -> None:
-                plt.plot(x, (py.duration - py.exact).tolist(), label="duration - exact", marker="braille")
+            def errors(plt, series) -> None:
+                plt.plot(x, (py.duration - py.exact).tolist(), label="duration - exact", **series.line(1))
                 plt.plot(x, (py.convexity - py.exact).tolist(), label="duration + convexity - exact",
-                         marker="braille")
+                         **series.line(2))
                 plt.title("Estimation error per 100 against yield (%)")
 
             self.query_one("#detail-chart", Chart).draw(paint)

@@ -15,20 +15,24 @@ from ladder.tui import format as fmt
 from ladder.tui.frame import Column, Frame
 from ladder.tui.results import Results
 from ladder.tui.views.base import Notice, View
-from ladder.tui.widgets.chart import Chart
+from ladder.tui.widgets.chart import Chart, y_ticks
 from ladder.tui.widgets.frame_table import FrameTable
 
-COLUMNS = (Column("end", "Period end"), Column("status", "Status"), Column("opening", "Opening cash", True),
-           Column("coupons", "Coupons", True), Column("principal", "Principal", True),
-           Column("called", "Called", True), Column("fund", "Fund income", True), Column("needs", "Needs", True),
-           Column("available", "Before sales", True), Column("shortfall", "Shortfall", True),
-           Column("sales", "Sales", True), Column("unfunded", "Unfunded", True),
-           Column("reinvested", "Reinvested", True), Column("closing", "Closing cash", True),
-           Column("yield", "Reinvest yld %", True), Column("income", "Income", True))
+COLUMNS = (Column("end", "Period end"), Column("status", "Status"),
+           Column("opening", "Opening cash", True, priority=2), Column("coupons", "Coupons", True, priority=3),
+           Column("principal", "Principal (incl. called)", True, priority=3),
+           Column("called", "of it called", True, priority=4), Column("fund", "Fund income", True, priority=4),
+           Column("needs", "Needs", True), Column("available", "Cash before sales", True, priority=2),
+           Column("shortfall", "Shortfall", True, priority=2), Column("sales", "Sales", True, priority=3),
+           Column("unfunded", "Unfunded", True, priority=3), Column("reinvested", "Reinvested", True, priority=3),
+           Column("closing", "Closing cash", True), Column("yield", "Reinvest yield %", True, priority=4),
+           Column("income", "Income", True, priority=3))
 INCOME_COLUMNS = (Column("scenario", "Scenario", max_width=30), Column("income", "Income 12m", True),
-                  Column("change", "Change", True), Column("price", "Price change 12m", True),
-                  Column("total", "Total return 12m", True), Column("total_pct", "Return %", True),
-                  Column("calls", "Calls expected", True))
+                  Column("change", "Change", True), Column("price", "Price change 12m", True, priority=2),
+                  Column("total", "Total return 12m", True, priority=2), Column("total_pct", "Return %", True, priority=3),
+                  Column("calls", "Calls expected", True, priority=3))
+RATE_RULES = {"stay": "the curve moves by the scenario and then stays unchanged",
+              "forward": "the curve follows today's forward rates"}
 SCALE = 1e6
 
 
@@ -79,14 +83,16 @@ def summary_text(plan) -> str:
                  f"to raise by sales" + (f", {fmt.money(pr.unfunded[first])} UNFUNDED" if pr.unfunded[first] > 0 else "")
                  if first is not None else "no shortfall over the horizon")
     rule = r.rule.replace("_", " ") + (f" {r.tenor}" if r.tenor else "") + (f" ({r.sector})" if r.sector else "")
-    lines = [f"Scenario {plan.scenario}   {len(pr.periods)} {plan.options.period}s from {plan.as_of}   reinvest: "
-             f"{rule}, buffer {fmt.money(r.buffer)}   rates {plan.options.rates}", shortfall.capitalize()]
+    rates = RATE_RULES.get(plan.options.rates, plan.options.rates)
+    lines = [f"Scenario {plan.scenario} ({rates})   {len(pr.periods)} {plan.options.period}s from {plan.as_of}   "
+             f"reinvest: {rule}, buffer {fmt.money(r.buffer)}", shortfall.capitalize()]
     lines += [f"Note: {n}" for n in plan.notes]
     return "\n".join(lines)
 
 
 class CashPlanView(View):
     TITLE = "Cash plan"
+    SHORT = "Cash"
     NEEDS = ("plan",)
     BINDINGS = [Binding("n", "scenario", "Plan scenario", id="plan.scenario",
                         tooltip="Plan under another scenario: a name from the income table or a move in bp")]
@@ -100,7 +106,7 @@ class CashPlanView(View):
         yield Static(id="plan-summary", classes="totals")
         yield Notice(id="plan-notice")
         yield FrameTable(id="plan-table")
-        with Horizontal(id="plan-bottom"):
+        with Horizontal(id="plan-bottom", classes="secondary"):
             yield FrameTable(id="plan-income", classes="narrow")
             yield Chart(id="plan-chart")
         yield Input(placeholder="scenario name (e.g. +100 bp, bear-flattener, base) or a parallel move in bp",
@@ -111,13 +117,8 @@ class CashPlanView(View):
         self._plan = None
 
     def refresh_view(self, results: Results) -> None:
-        notice = self.query_one(Notice)
-        plan = results.get("plan")
-        if plan is None:
-            notice.say(self.state_text(results, "plan"), "error" if "plan" in results.errors else "computing")
-            return
-        notice.say("Recomputing…" if "plan" in results.pending else None, "stale")
-        if plan is self._plan:
+        plan = self.figures(results, "plan")
+        if plan is None or plan is self._plan:
             return
         self._plan = plan
         summary = self.query_one("#plan-summary", Static)
@@ -129,10 +130,12 @@ class CashPlanView(View):
         x = list(range(1, len(pr.periods) + 1))
         labels = [str(d)[:7] for d in pr.periods.end]
 
-        def paint(plt) -> None:
-            plt.bar(x, (pr.available / SCALE).tolist(), label="cash before sales")
-            plt.plot(x, (pr.needs / SCALE).tolist(), label="needs", marker="braille")
-            plt.plot(x, (pr.closing_cash / SCALE).tolist(), label="closing cash", marker="braille")
+        def paint(plt, series) -> None:
+            plt.bar(x, (pr.available / SCALE).tolist(), label="cash before sales", **series.bar(0))
+            plt.plot(x, (pr.needs / SCALE).tolist(), label="needs", **series.line(1))
+            plt.plot(x, (pr.closing_cash / SCALE).tolist(), label="closing cash", **series.line(2))
+            y_ticks(plt, float(min(0.0, pr.available.min(), pr.needs.min(), pr.closing_cash.min()) / SCALE),
+                    float(max(pr.available.max(), pr.needs.max(), pr.closing_cash.max()) / SCALE))
             step = max(1, len(x) // 8)
             plt.xticks(x[::step], labels[::step])
             plt.title(f"Cash by period, millions of {results.book.currency}")

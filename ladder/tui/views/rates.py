@@ -22,15 +22,15 @@ from ladder.tui import format as fmt
 from ladder.tui.frame import Column, Frame
 from ladder.tui.results import Results
 from ladder.tui.views.base import Notice, View
-from ladder.tui.widgets.chart import Chart
+from ladder.tui.widgets.chart import Chart, y_ticks
 from ladder.tui.widgets.frame_table import FrameTable
 
 COLUMNS = (
-    Column("name", "Scenario", max_width=30), Column("kind", "Kind"), Column("value", "Value", True),
-    Column("change", "Change", True), Column("change_pct", "Change %", True),
-    Column("est_d", "Est. duration", True), Column("err_d", "Error", True),
-    Column("est_dc", "Est. dur+convexity", True), Column("err_dc", "Error", True),
-    Column("income", "Income 12m chg", True),
+    Column("name", "Scenario", max_width=30), Column("kind", "Kind", priority=3), Column("value", "Value", True),
+    Column("change", "Change", True), Column("change_pct", "Change %", True, priority=2),
+    Column("est_d", "Est. by duration", True, priority=3), Column("err_d", "Its error", True, priority=3),
+    Column("est_dc", "Est. dur+convexity", True, priority=4), Column("err_dc", "Its error", True, priority=2),
+    Column("income", "Income chg 12m", True, priority=2),
 )
 SCENARIO_HELP = ("+75 (parallel bp) · steepener 50 · flattener 50 · twist -25/+25 [pivot 2Y] · short +50 · "
                  "long -50")
@@ -101,6 +101,7 @@ def scenario_text(r, s: int) -> str:
 
 class RatesView(View):
     TITLE = "Rates"
+    SHORT = "Rates"
     NEEDS = ("shock",)
     BINDINGS = [
         Binding("e", "edit", "Add scenario", id="rates.add", tooltip="Run a scenario of your own: " + SCENARIO_HELP),
@@ -117,10 +118,10 @@ class RatesView(View):
         yield Notice(id="rates-notice")
         with Horizontal(classes="split"):
             yield FrameTable(id="rates-table", classes="narrow")
-            with Vertical(classes="charts"):
+            with Vertical(classes="charts secondary"):
                 yield Chart(id="rates-value-chart")
                 yield Chart(id="rates-krd-chart")
-        yield Static(id="rates-picked", classes="totals")
+        yield Static(id="rates-picked", classes="totals secondary")
         yield Input(placeholder=SCENARIO_HELP, id="rates-input", classes="filter")
 
     def on_mount(self) -> None:
@@ -132,13 +133,10 @@ class RatesView(View):
         return self.query_one("#rates-table", FrameTable)
 
     def refresh_view(self, results: Results) -> None:
-        notice = self.query_one(Notice)
-        r = results.get("shock")
+        r = self.figures(results, "shock")
         if r is None:
-            notice.say(self.state_text(results, "shock"), "error" if "shock" in results.errors else "computing")
             return
-        notice.say("Recomputing…" if "shock" in results.pending else None, "stale")
-        plan = results.get("plan")
+        plan, _ = results.latest("plan")
         if (r, plan) == (self._result, self._plan):
             return
         self._result, self._plan = r, plan
@@ -157,18 +155,21 @@ class RatesView(View):
         rows = rows[np.argsort(bp[rows])]
         t = r.portfolio
 
-        def value_chart(plt) -> None:
+        def value_chart(plt, series) -> None:
             if len(rows):
                 x = bp[rows].tolist()
                 scale = 1e6
-                plt.plot(x, (t.value[0, rows] / scale).tolist(), label="exact", marker="braille")
-                plt.plot(x, (t.est_duration[0, rows] / scale).tolist(), label="duration", marker="braille")
-                plt.plot(x, (t.est_duration_convexity[0, rows] / scale).tolist(), label="duration + convexity",
-                         marker="braille")
+                lines = [t.value[0, rows] / scale, t.est_duration[0, rows] / scale,
+                         t.est_duration_convexity[0, rows] / scale]
+                for i, (y, label) in enumerate(zip(lines, ("exact", "duration", "duration + convexity"))):
+                    plt.plot(x, y.tolist(), label=label, **series.line(i))
+                y_ticks(plt, float(min(y.min() for y in lines)), float(max(y.max() for y in lines)))
             plt.title("Portfolio value (millions) against parallel shift (bp)")
 
-        def krd_chart(plt) -> None:
-            plt.bar(list(r.tenors), r.portfolio_key_rate_durations.tolist())
+        def krd_chart(plt, series) -> None:
+            krd = r.portfolio_key_rate_durations
+            plt.bar(list(r.tenors), krd.tolist(), **series.bar(0))
+            y_ticks(plt, min(0.0, float(krd.min())), float(krd.max()))
             plt.title("Key-rate durations (years) by tenor")
 
         self.query_one("#rates-value-chart", Chart).draw(value_chart)

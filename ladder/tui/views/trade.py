@@ -15,7 +15,7 @@ from textual.worker import get_current_worker
 from ladder.book.holdings import KINDS, SECTORS
 from ladder.tui import format as fmt
 from ladder.tui.frame import Column, Frame
-from ladder.tui.policy_text import headroom_text, value_text
+from ladder.tui.policy_text import rule_cells
 from ladder.tui.results import Results
 from ladder.tui.ticket import BUY_FIELDS, SELL_FIELDS, Ticket, booked_trades, check_ticket
 from ladder.tui.views.base import Notice, View
@@ -26,10 +26,10 @@ LABELS = {"id": "Id", "sector": "Sector", "issuer": "Issuer", "kind": "Kind", "f
           "maturity_date": "Maturity (YYYY-MM-DD)", "coupon_pct": "Coupon %", "rating": "Rating (long)",
           "short_rating": "Rating (short)", "price": "Clean price", "yield_pct": "or yield %"}
 CHOICES = {"sector": SECTORS, "kind": KINDS}
-COLUMNS = (Column("after", "After"), Column("before", "Before"), Column("rule", "Rule id", max_width=38),
-           Column("limit", "Limit", True), Column("actual_before", "Actual before", True),
-           Column("actual_after", "Actual after", True), Column("headroom", "Headroom after", True),
-           Column("new", "New breach"), Column("cause", "Caused by", max_width=30))
+COLUMNS = (Column("rule", "Rule id", max_width=38, min_width=24), Column("after", "After"), Column("before", "Before", priority=2),
+           Column("limit", "Limit", True), Column("actual_before", "Actual before", True, priority=3),
+           Column("actual_after", "Actual after", True), Column("headroom", "Headroom after", True, priority=2),
+           Column("new", "New breach"), Column("cause", "Caused by", max_width=30, priority=3))
 RISK = (("Market value", "market_value", 0, 1.0), ("Yield %", "ytm", 3, 100.0), ("Book yield %", "book_yield", 3, 100.0),
         ("Effective duration", "effective_duration", 3, 1.0), ("Modified duration", "modified_duration", 3, 1.0),
         ("Convexity", "convexity", 3, 1.0), ("DV01", "dv01", 0, 1.0), ("WAM days", "wam_days", 0, 1.0),
@@ -40,13 +40,15 @@ def changes_frame(check) -> Frame:
     c = check.changes
     after = [x.after for x in c]
     before = [x.before for x in c]
+    cells_after = np.array([rule_cells(a.limit, a.actual, a.headroom, a.unit) for a in after],
+                           dtype=object).reshape(-1, 3)
+    cells_before = np.array([rule_cells(b.limit, b.actual, b.headroom, b.unit) for b in before],
+                            dtype=object).reshape(-1, 3)
     text = {"after": np.array([status_word(a.status) for a in after], dtype=object),
             "before": np.array([status_word(b.status) for b in before], dtype=object),
             "rule": np.array([x.rule for x in c], dtype=object),
-            "limit": np.array([value_text(a.limit, a.unit) for a in after], dtype=object),
-            "actual_before": np.array([value_text(b.actual, b.unit) for b in before], dtype=object),
-            "actual_after": np.array([value_text(a.actual, a.unit) for a in after], dtype=object),
-            "headroom": np.array([headroom_text(a.headroom, a.unit) for a in after], dtype=object),
+            "limit": cells_after[:, 0], "actual_before": cells_before[:, 1], "actual_after": cells_after[:, 1],
+            "headroom": cells_after[:, 2],
             "new": np.array(["NEW BREACH" if x.new_breach else "" for x in c], dtype=object),
             "cause": np.array([", ".join(f"{t.action} {t.id}" for t in x.caused_by) for x in c], dtype=object)}
     sort = dict(text)
@@ -69,6 +71,7 @@ def risk_text(whatif) -> str:
 
 class TradeView(View):
     TITLE = "Trade ticket"
+    SHORT = "Ticket"
     NEEDS = ("valuation",)
     BINDINGS = [
         Binding("ctrl+t", "check_ticket", "Check trade", id="trade.check", tooltip="Every rule before and after"),
@@ -107,7 +110,7 @@ class TradeView(View):
                 yield Static("Fill in a trade and press ctrl+t: every rule and the risk before and after appear "
                              "here before anything is booked.", id="ticket-status", classes="totals")
                 yield FrameTable(id="ticket-table")
-                yield Static(id="ticket-risk", classes="pairs")
+                yield Static(id="ticket-risk", classes="pairs secondary")
 
     def on_mount(self) -> None:
         self.whatif = None
@@ -181,6 +184,7 @@ class TradeView(View):
         return True
 
     def action_form(self) -> None:
+        self.set_class(False, "-folded")
         self.query_one("#ticket-action").focus()
 
     def action_leave_form(self) -> None:
@@ -229,6 +233,7 @@ class TradeView(View):
         status.update(f"{self._ticket.label()}   before: {status_word(w.check.before.status)}   "
                       f"after: {status_word(w.check.status)}\n{words}")
         status.set_class(bool(new), "-breach")
+        self.set_class(True, "-folded")      # short screens fold the form under a result (f shows it)
         table = self.query_one("#ticket-table", FrameTable)
         table.show(changes_frame(w.check), keep_place=False)
         table.sort_by("after")
