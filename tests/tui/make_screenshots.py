@@ -1,4 +1,5 @@
-"""Save the SVG screenshots of docs/workstation.md: every view of the demo book, as Textual draws it.
+"""Save the SVG screenshots of docs/workstation.md: every view of the demo book, as Textual draws it,
+at 160x45 (``NAME.svg``) and at 80x24 (``NAME-80x24.svg``).
 
 Run from the repository root: ``python tests/tui/make_screenshots.py`` (not a test; pytest skips it).
 """
@@ -16,22 +17,27 @@ from conftest import settle  # noqa: E402
 from ladder.demo import demo_source  # noqa: E402
 
 OUT = Path(__file__).resolve().parents[2] / "docs" / "img"
-SIZE = (140, 42)
+SIZES = {(160, 45): "", (80, 24): "-80x24"}
 
 
 async def main() -> None:
+    for size, suffix in SIZES.items():
+        await shoot_all(size, suffix)
+
+
+async def shoot_all(size: tuple[int, int], suffix: str) -> None:
     from ladder.tui.app import make_app
 
     app = make_app(demo_source())
-    async with app.run_test(size=SIZE) as pilot:
+    async with app.run_test(size=size) as pilot:
         await settle(app, pilot)
 
         async def shoot(name: str, *keys: str) -> None:
             if keys:
                 await pilot.press(*keys)
             await settle(app, pilot)
-            app.save_screenshot(f"{name}.svg", str(OUT))
-            print("saved", OUT / f"{name}.svg")
+            app.save_screenshot(f"{name}{suffix}.svg", str(OUT))
+            print("saved", OUT / f"{name}{suffix}.svg")
 
         await shoot("holdings")
         await shoot("holding-detail", *["down"] * 24, "enter")

@@ -42,6 +42,7 @@ def test_holdings_show_the_valuation_sort_and_filter(demo_book):
         await pilot.press("slash", *"municipal")
         await pilot.pause()
         seen["filtered"] = cells(table, "sector")
+        seen["filtered_totals"] = str(app.query_one("#holdings-totals").render())
         await pilot.press("enter", "escape")
         await pilot.pause()
         seen["cleared"] = table.row_count
@@ -55,7 +56,10 @@ def test_holdings_show_the_valuation_sort_and_filter(demo_book):
     assert seen["sorted_desc"] == list(np.argsort(-v.market_value, kind="stable"))
     assert seen["sorted_asc"] == list(np.argsort(v.market_value, kind="stable"))
     assert seen["filtered"] and set(seen["filtered"]) == {"municipal"}
-    assert len(seen["filtered"]) == int((v.holdings.sector == "municipal").sum())
+    municipal = np.flatnonzero(v.holdings.sector == "municipal")
+    assert len(seen["filtered"]) == len(municipal)
+    assert f"{len(municipal)} of {len(v.holdings)} holdings" in seen["filtered_totals"]
+    assert f"market value {fmt.money(v.market_value[municipal].sum())}" in seen["filtered_totals"]
 
 
 def test_holding_detail_opens_with_terms_flows_chart_and_calls(demo_book):
