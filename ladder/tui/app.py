@@ -142,13 +142,11 @@ class LadderApp(App[None]):
                          f"{time.monotonic() - self.started_at:.1f} s")
         if r.errors:
             state.append("not available: " + ", ".join(sorted(r.errors)))
-        line = [f"{book.name}", f"valued {book.valuation_date}", book.currency]
-        if wide:
-            line.append(str(book.folder))
+        line = [f"{book.name}", f"valued {book.valuation_date}", book.currency] + ([] if state else ["figures current"])
         changes = ["changes: " + "; ".join(self.unsaved.values()) + " (ctrl+s saves)"] if self.unsaved else []
+        folder = [str(book.folder)] if wide else []
         bar = self.query_one("#book-line", Static)
-        bar.update("  ·  ".join(state + line + changes) if state else
-                   "  ·  ".join(line + ["figures current"] + changes))
+        bar.update("  ·  ".join(state + line + changes + folder))
         self.query_one("#unsaved-badge").display = bool(self.unsaved)
         bar.set_class(bool(r.pending), "-computing")
 

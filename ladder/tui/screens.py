@@ -11,7 +11,7 @@ from textual.widgets import Button, DataTable, Label, Static
 from ladder import CAUTION
 from ladder.tui import format as fmt
 from ladder.tui.holding_detail import Detail
-from ladder.tui.widgets.chart import Chart
+from ladder.tui.widgets.chart import Chart, y_ticks
 
 
 def pairs_text(pairs) -> str:
@@ -23,7 +23,9 @@ class DetailScreen(ModalScreen[None]):
     """One holding: terms, figures, cash-flow schedule, price against yield (and calls)."""
 
     BINDINGS = [Binding("escape", "dismiss", "Back", id="detail.back"),
-                Binding("q", "dismiss", "Back", id="detail.back_q", show=False)]
+                Binding("q", "dismiss", "Back", id="detail.back_q", show=False),
+                Binding("g", "app.more", "Charts", id="detail.charts",
+                        tooltip="Show or fold the charts (folded on screens under 30 rows)")]
 
     def __init__(self, detail: Detail, currency: str) -> None:
         super().__init__(classes="detail-screen")
@@ -32,7 +34,7 @@ class DetailScreen(ModalScreen[None]):
     def compose(self) -> ComposeResult:
         d = self.detail
         with Vertical(id="detail"):
-            yield Label(f"{d.id}: terms, cash flows and price against yield   (Esc to go back)", classes="title")
+            yield Label(f"{d.id} (Esc to go back): terms, cash flows and price against yield", classes="title")
             with Horizontal(id="detail-top"):
                 yield Static(pairs_text(d.terms), id="detail-terms", classes="pairs")
                 yield Static(pairs_text(d.figures), id="detail-figures", classes="pairs")
@@ -43,7 +45,7 @@ class DetailScreen(ModalScreen[None]):
             with Horizontal(id="detail-bottom"):
                 yield DataTable(id="detail-flows", cursor_type="row", zebra_stripes=True)
                 if d.price_yield is not None:
-                    with Vertical(id="detail-charts"):
+                    with Vertical(id="detail-charts", classes="secondary"):
                         yield Chart(id="detail-chart")
                         yield Chart(id="detail-error-chart")
                 else:
@@ -67,12 +69,16 @@ class DetailScreen(ModalScreen[None]):
                 plt.plot(x, py.exact.tolist(), label="exact", **series.line(0))
                 plt.plot(x, py.duration.tolist(), label="duration", **series.line(1))
                 plt.plot(x, py.convexity.tolist(), label="duration + convexity", **series.line(2))
+                y_ticks(plt, float(min(py.exact.min(), py.duration.min(), py.convexity.min())),
+                        float(max(py.exact.max(), py.duration.max(), py.convexity.max())))
                 plt.title("Dirty price per 100 against yield (%)")
 
             def errors(plt, series) -> None:
                 plt.plot(x, (py.duration - py.exact).tolist(), label="duration - exact", **series.line(1))
                 plt.plot(x, (py.convexity - py.exact).tolist(), label="duration + convexity - exact",
                          **series.line(2))
+                y_ticks(plt, float(min((py.duration - py.exact).min(), (py.convexity - py.exact).min())),
+                        float(max((py.duration - py.exact).max(), (py.convexity - py.exact).max())))
                 plt.title("Estimation error per 100 against yield (%)")
 
             self.query_one("#detail-chart", Chart).draw(paint)

@@ -116,7 +116,7 @@ class CurveView(View):
             plt.plot(x.tolist(), forward.tolist(), label="forward", **series.line(2))
             plt.xticks(place.tolist(), list(curve.par_curve.tenors))
             y_ticks(plt, float(min(par.min(), zero.min(), forward.min())), float(max(par.max(), zero.max(), forward.max())))
-            plt.title("Par, zero and forward rates (%) by tenor (tenors evenly spaced)")
+            plt.title("Par, zero and forward (%) by tenor, tenors evenly spaced")
 
         self.query_one("#curve-chart", Chart).draw(paint)
 

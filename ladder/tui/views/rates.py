@@ -164,7 +164,7 @@ class RatesView(View):
                 for i, (y, label) in enumerate(zip(lines, ("exact", "duration", "duration + convexity"))):
                     plt.plot(x, y.tolist(), label=label, **series.line(i))
                 y_ticks(plt, float(min(y.min() for y in lines)), float(max(y.max() for y in lines)))
-            plt.title("Portfolio value (millions) against parallel shift (bp)")
+            plt.title("Value (millions) by parallel shift (bp)")
 
         def krd_chart(plt, series) -> None:
             krd = r.portfolio_key_rate_durations
