@@ -9,7 +9,7 @@ from ladder.demo import demo_files, demo_source, write_demo
 def test_a_copy_leaves_behind_what_runs_wrote_beside_the_demo(tmp_path):
     source = tmp_path / "source"
     write_demo(source)
-    for leftover in ("journal.jsonl", "history.sqlite", "holdings.csv.bak"):
+    for leftover in ("journal.jsonl", "history.sqlite", ".ladder.lock"):
         (source / leftover).write_text("left by a run", encoding="utf-8")
     (source / "reports").mkdir()
     copy = write_demo(tmp_path / "copy", source)

@@ -12,19 +12,20 @@ from __future__ import annotations
 import datetime as dt
 import time
 from dataclasses import dataclass, replace
-from pathlib import Path
 from typing import Callable
 
 import numpy as np
 
-from ladder.analysis.booking import book_trades
+from ladder.analysis.booking import Booked, book_trades, settled_holdings
 from ladder.analysis.check import BookCheck, TradeWhatIf, check_book, check_proposed, coverage_months
 from ladder.analysis.records import clean_number
 from ladder.analysis.valuation import Valuation, settlement_date, value_book
 from ladder.folder.book_file import Book
+from ladder.book.cells import MAX_FACE, parse_number
 from ladder.book.holdings import Holdings
 from ladder.folder.save import holdings_rows
-from ladder.build.candidates import Candidates, eligible, fund_candidates, generic_candidates, read_offerings
+from ladder.build.candidates import (Candidates, eligible, fund_candidates, generic_candidates, read_offerings,
+                                    with_tickets)
 from ladder.build.naive import feasible, naive_ladder
 from ladder.build.positions import Positions
 from ladder.build.program import RUNG_BAND, Program, build_program
@@ -32,9 +33,11 @@ from ladder.build.rungs import Rungs, make_rungs
 from ladder.build.solve import Binding, Conflict, Relaxation, Solution, binding, diagnose, relaxation, solve
 from ladder.errors import Problems
 from ladder.policy.measures import cash_by_month
-from ladder.policy.trades import Trades, apply_trades
+from ladder.policy.trades import NEW_MONEY, Trades
 
 VALUATION_FACE = 1_000_000.0   # face the candidates are valued at (results are per unit face)
+GENERIC_NOTE = ("generic: a stand-in for a security of that sector, rating and maturity from the curve and spread "
+                "table, not an offering; source a real issue (and issuer) before trading")
 Progress = Callable[[float, str], None]
 
 
@@ -43,8 +46,7 @@ class LadderSummary:
     """A portfolio's figures: yields decimal (market-value weighted), durations years, shares percent."""
 
     market_value: float
-    expected_yield: float       # yield to worst for callables, else bond-equivalent yield; funds their yield
-    ytm: float                  # bond-equivalent yield to maturity (Totals.ytm)
+    yield_to_worst: float       # the portfolio's yield, as Totals.yield_to_worst (the builder's objective)
     effective_duration: float
     effective_convexity: float
     wam_days: float
@@ -52,8 +54,7 @@ class LadderSummary:
 
     def to_json(self) -> dict:
         return {"market_value": clean_number(self.market_value, 2),
-                "expected_yield_pct": clean_number(100 * self.expected_yield, 8),
-                "ytm_pct": clean_number(100 * self.ytm, 8),
+                "yield_to_worst_pct": clean_number(100 * self.yield_to_worst, 8),
                 "effective_duration": clean_number(self.effective_duration, 8),
                 "effective_convexity": clean_number(self.effective_convexity, 8),
                 "wam_days": clean_number(self.wam_days, 4),
@@ -82,7 +83,7 @@ class BuildResult:
     compliance: TradeWhatIf | BookCheck | None
     binding: tuple[Binding, ...]
     conflicts: tuple[Conflict, ...]
-    naive_yield: float | None            # expected yield of the portfolio after the naive even ladder
+    naive_yield: float | None            # yield to worst of the portfolio after the naive even ladder
     naive_feasible: bool | None          # whether the naive ladder meets every row of the program
     seconds: float
 
@@ -94,17 +95,24 @@ class BuildResult:
 
     @property
     def trade_yields(self) -> np.ndarray | None:
-        """Each trade's expected yield (decimal; as ``LadderSummary.expected_yield``), in trade order."""
+        """Each trade's yield to worst (decimal; as ``LadderSummary.yield_to_worst``), in trade order."""
         if self.trades is None or self.solution.x is None:
             return None
         return self.program.positions.yld[self.program.var_pos[_traded(self.solution.x)]]
 
     @property
     def gain_over_naive_bp(self) -> float | None:
-        """The built portfolio's expected yield less the naive even ladder's, basis points."""
+        """The built portfolio's yield to worst less the naive even ladder's, basis points."""
         if self.naive_yield is None or self.after is None:
             return None
-        return (self.after.expected_yield - self.naive_yield) * 1e4
+        return (self.after.yield_to_worst - self.naive_yield) * 1e4
+
+    @property
+    def generic_trades(self) -> np.ndarray:
+        """(t,) bool: which trades buy a generic candidate (a stand-in, see ``GENERIC_NOTE``)."""
+        if self.trades is None:
+            return np.zeros(0, bool)
+        return np.isin(self.trades.holdings.id, self.candidates.holdings.id[self.candidates.generic])
 
     @property
     def largest_lot(self) -> float:
@@ -133,9 +141,11 @@ class BuildResult:
                                 for c in self.conflicts]
             return doc
         doc.update({
-            "invested": clean_number(self.invested, 2), "trades": trade_records(self.trades),
+            "invested": clean_number(self.invested, 2),
+            "trades": [{**row, "generic": bool(g)} for row, g in zip(trade_records(self.trades), self.generic_trades)],
+            "generic_note": GENERIC_NOTE if self.generic_trades.any() else None,
             "before": self.before.to_json() if self.before else None, "after": self.after.to_json(),
-            "naive_even_ladder": {"expected_yield_pct": clean_number(100 * self.naive_yield, 8)
+            "naive_even_ladder": {"yield_to_worst_pct": clean_number(100 * self.naive_yield, 8)
                                   if self.naive_yield is not None else None, "meets_every_rule": self.naive_feasible},
             "compliance": self.compliance.check.to_json() if isinstance(self.compliance, TradeWhatIf)
             else self.compliance.result.to_json() if self.compliance else None,
@@ -146,24 +156,27 @@ class BuildResult:
 
 
 def trade_records(trades: Trades | None) -> list[dict]:
-    """The trades as rows of the trades file: the holdings columns plus ``action``."""
+    """The trades as rows of the trades file: the holdings columns plus ``action`` and ``funded_from``."""
     if trades is None:
         return []
-    return [{**row, "action": a} for row, a in zip(holdings_rows(trades.holdings), trades.action)]
+    funded = trades.funded_from if trades.funded_from is not None else [""] * len(trades)
+    return [{**row, "action": a, "funded_from": f} for row, a, f in zip(holdings_rows(trades.holdings), trades.action,
+                                                                         funded)]
 
 
 def parse_cash(text) -> float:
     """Cash to invest from user text ("50,000,000" or 5e7); InputError unless a finite number >= 0."""
     problems = Problems()
     try:
-        value = float(str(text).replace(",", "").replace("_", ""))
-    except ValueError:
+        value = parse_number(str(text))
+    except ValueError as why:
         value = None
-    if value is None or not np.isfinite(value):
-        problems.add("--cash", 0, 0, f"{text!r} is not an amount; write the cash to invest in currency units, "
+        problems.add("--cash", 0, 0, f"{why}; write the cash to invest in currency units, "
                                      "e.g. 25000000 or 25,000,000")
-    elif value < 0:
+    if value is not None and value < 0:
         problems.add("--cash", 0, 0, f"{text!r} is negative; the cash to invest must be zero or more")
+    elif value is not None and value > MAX_FACE:
+        problems.add("--cash", 0, 0, f"{text!r} is out of range; the cash to invest is at most {MAX_FACE:,.0f}")
     problems.raise_if_any()
     return float(value)
 
@@ -171,9 +184,7 @@ def parse_cash(text) -> float:
 def _positions(v: Valuation, months: int, purchase: bool) -> Positions:
     h = v.holdings
     face = h.face
-    ytw = v.yield_to_worst
-    yld = np.where(h.callable & np.isfinite(ytw), ytw, v.measures.bey)
-    yld = np.where(h.kind == "fund", h.quote, yld)
+    yld = v.yield_to_worst
     book = v.clean / 100.0 if purchase else v.book_value / face
     return Positions(h, v.dirty / 100.0, book, yld, v.effective_duration, v.days_to_maturity,
                      cash_by_month(v.pricer.cash_flows, np.ones(len(h)), v.as_of, months))
@@ -194,7 +205,7 @@ def candidates_for(book: Book, rungs: Rungs, at: dt.date, offerings=None) -> Can
     base = read_offerings(offerings, book) if offerings is not None else generic_candidates(book, rungs, at)
     if not base.fund.any():
         base = Candidates.concat([base, fund_candidates(book, at)])
-    return eligible(book.policy, base, rungs, at)
+    return eligible(book.policy, with_tickets(base, book.build), rungs, at)
 
 
 def _traded(x: np.ndarray) -> np.ndarray:
@@ -214,7 +225,10 @@ def _trades(p: Program, x: np.ndarray, at: dt.date) -> Trades:
                 book_price=np.where(buy & (h.kind != "fund"), np.round(clean, 6), np.where(buy, np.nan, clean)),
                 purchase_date=np.where(buy & (h.kind != "fund"), np.datetime64(at, "D"), h.purchase_date),
                 rating_at_purchase=np.where(buy, rating_now, h.rating_at_purchase))
-    return Trades(h, np.where(buy, "buy", "sell").astype(object), "build")
+    # The builder invests the new cash it was given (--cash) and, with sales, their proceeds: every trade is
+    # new money (a sale's proceeds go back out to pay the buys), so the cash account is left as it is.
+    return Trades(h, np.where(buy, "buy", "sell").astype(object), "build",
+                  funded_from=np.full(len(h), NEW_MONEY, dtype=object))
 
 
 def _summary(holdings: Holdings, v: Valuation, pos: Positions, faces: np.ndarray, rungs: Rungs) -> LadderSummary:
@@ -225,11 +239,11 @@ def _summary(holdings: Holdings, v: Valuation, pos: Positions, faces: np.ndarray
     shares = [(label, 100 * mv[(rung == k) & ~fund].sum() / total) for k, label in enumerate(rungs.labels)]
     shares += [("fund", 100 * mv[fund].sum() / total), ("beyond", 100 * mv[(rung < 0) & ~fund].sum() / total)]
     t = v.totals
-    return LadderSummary(float(total), float((pos.yld * mv).sum() / total), t.ytm, t.effective_duration,
+    return LadderSummary(float(total), t.yield_to_worst, t.effective_duration,
                          t.effective_convexity, t.wam_days, tuple(shares))
 
 
-def _expected_yield(p: Program, x: np.ndarray) -> float:
+def _yield_to_worst(p: Program, x: np.ndarray) -> float:
     pos = p.positions
     faces = p.face0.copy()
     np.add.at(faces, p.var_pos, p.faces(x) * p.var_sign)
@@ -267,7 +281,7 @@ def build_ladder(book: Book, cash, rungs: str | None = None, offerings=None, all
     existing = _positions(v_before, months, purchase=False) if v_before is not None else cand_pos.take([])
     report(0.35, "building the program")
     program = build_program(book.policy, book.cash_needs, settle, spec, existing, cands, cand_pos, cash,
-                            allow_sales=allow_sales, fresh=fresh, rung_band=rung_band)
+                            allow_sales=allow_sales, fresh=fresh, rung_band=rung_band, families=book.families)
     report(0.45, "solving")
     relaxed = relaxation(program)
     solution = solve(program) if relaxed.status == "optimal" else Solution(
@@ -311,7 +325,7 @@ def build_ladder(book: Book, cash, rungs: str | None = None, offerings=None, all
     total_after = float(program.positions.mv @ program.face0 + cash)
     result = BuildResult("built", trades=trades, invested=invested, before=before, after=after, compliance=compliance,
                          binding=binding(program, relaxed, total_after), conflicts=(),
-                         naive_yield=_expected_yield(program, naive_x),
+                         naive_yield=_yield_to_worst(program, naive_x),
                          naive_feasible=bool(feasible(program, naive_x).all()),
                          seconds=time.perf_counter() - started, **common)
     report(1.0, "done")
@@ -333,11 +347,11 @@ def apply_build(book: Book, result: BuildResult) -> Book:
         problems.add("--at", 0, 0, f"the build settles {result.as_of}, after the book's valuation date "
                                    f"{book.valuation_date}; its purchases cannot be booked yet")
     problems.raise_if_any()
-    return book.with_holdings(apply_trades(book.holdings, result.trades))
+    return book.with_holdings(settled_holdings(book, result.trades, where="--apply").holdings)
 
 
-def save_build(book: Book, result: BuildResult) -> Path:
-    """Apply the build: write the book's holdings file (atomic, the previous file kept as ``.bak``) and
-    journal every trade; returns the file written."""
+def save_build(book: Book, result: BuildResult) -> Booked:
+    """Apply the build: replace the book's holdings file and journal every trade, one transaction
+    (the previous file kept as a version); returns what was booked."""
     apply_build(book, result)            # refuses what cannot be booked
-    return book_trades(book, result.trades, f"ladder builder: {result.invested:,.2f} invested").path
+    return book_trades(book, result.trades, f"ladder builder: {result.invested:,.2f} invested", where="--apply")

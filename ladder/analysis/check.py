@@ -7,12 +7,13 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
+from ladder.analysis.settlement import Settlement, settle_trades
 from ladder.analysis.valuation import Valuation, value_book
 from ladder.folder.book_file import Book
 from ladder.policy.checker import check
 from ladder.policy.measures import PositionMeasures, cash_by_month
 from ladder.policy.results import CheckResult
-from ladder.policy.trades import Trades, apply_trades, read_trades
+from ladder.policy.trades import Trades, read_trades
 from ladder.policy.whatif import TradeCheck, check_trades
 
 
@@ -25,7 +26,8 @@ def position_measures(book: Book, v: Valuation) -> PositionMeasures:
     return PositionMeasures(v.holdings, np.datetime64(v.as_of), v.market_value, v.book_value, v.effective_duration,
                             v.days_to_maturity,
                             cash_by_month(v.pricer.cash_flows, v.holdings.face, v.as_of, coverage_months(book)),
-                            holdings_file=str(book.files["holdings"]))
+                            holdings_file=str(book.files["holdings"]),
+                            family=book.families.families(v.holdings.issuer))
 
 
 @dataclass(frozen=True, eq=False)
@@ -48,6 +50,25 @@ class TradeWhatIf:
     after: Valuation
     trades: Trades
     check: TradeCheck
+    settlement: Settlement
+
+    @property
+    def status(self) -> str:
+        """The check's status after the trades; ``breach`` too when the cash account cannot pay (the
+        built-in rule ``cash_account``)."""
+        return "breach" if self.settlement.shortfalls else self.check.status
+
+    def to_json(self) -> dict:
+        s = self.settlement
+        cash_rule = {"rule": "cash_account", "text": f"the cash account {s.account or '(none)'} pays every buy",
+                     "limit": 0.0, "actual": sum(t.shortfall for t in s.shortfalls),
+                     "status": "breach" if s.shortfalls else "pass",
+                     "holdings": [t.id for t in s.shortfalls]}
+        out = self.check.to_json()
+        return {"as_of": out.pop("as_of"), "status": self.status,
+                "economics": [t.to_json() for t in s.trades],
+                "cash": {"account": s.account, "before": s.cash_before, "after": s.cash_after},
+                **out, "status_check": self.check.status, "cash_rule": cash_rule}
 
 
 def _priced_buys(trades: Trades, after: Valuation) -> Valuation:
@@ -65,10 +86,11 @@ def check_proposed(book: Book, trades: Trades, at: dt.date | None = None,
                    before: Valuation | None = None) -> TradeWhatIf:
     """The what-if for ``trades`` (already read and validated against the book)."""
     before = before or value_book(book, at)
-    after = _priced_buys(trades, value_book(book.with_holdings(apply_trades(book.holdings, trades)), before.as_of))
+    settled = settle_trades(book, trades)
+    after = _priced_buys(trades, value_book(book.with_holdings(settled.holdings), before.as_of))
     result = check_trades(book.policy, position_measures(book, before), position_measures(book, after), trades,
                           book.cash_needs)
-    return TradeWhatIf(before, after, trades, result)
+    return TradeWhatIf(before, after, trades, result, settled)
 
 
 def check_trade_file(book: Book, path, at: dt.date | None = None) -> TradeWhatIf:

@@ -35,7 +35,8 @@ def holding_records(v: Valuation) -> list[dict]:
             "effective_duration": clean_number(v.effective_duration[i], 8),
             "effective_convexity": clean_number(v.effective_convexity[i], 8),
             "spread_bp": clean_number(v.spread[i] * 1e4, 4),
-            "book_value": clean_number(v.book_value[i], 2), "unrealized_gain": clean_number(v.unrealized_gain[i], 2),
+            "cost": clean_number(v.cost[i], 2), "book_value": clean_number(v.book_value[i], 2),
+            "unrealized_gain": clean_number(v.unrealized_gain[i], 2),
             "book_yield_pct": pct(v.book_yield[i]), "days_to_maturity": int(v.days_to_maturity[i]),
             "priced_from": v.priced_from[i], "callable": bool(h.callable[i]),
             "option_value": clean_number(v.option_value[i], 8),
@@ -48,8 +49,9 @@ def totals_record(v: Valuation) -> dict:
     t = v.totals
     return {
         "count": t.count, "face": clean_number(t.face, 2), "market_value": clean_number(t.market_value, 2),
-        "book_value": clean_number(t.book_value, 2), "unrealized_gain": clean_number(t.unrealized_gain, 2),
-        "accrued": clean_number(t.accrued, 2), "ytm_pct": clean_number(100 * t.ytm, 8),
+        "cost": clean_number(t.cost, 2), "book_value": clean_number(t.book_value, 2),
+        "unrealized_gain": clean_number(t.unrealized_gain, 2), "accrued": clean_number(t.accrued, 2),
+        "yield_to_worst_pct": clean_number(100 * t.yield_to_worst, 8),
         "book_yield_pct": clean_number(100 * t.book_yield, 8),
         "modified_duration": clean_number(t.modified_duration, 8),
         "effective_duration": clean_number(t.effective_duration, 8),

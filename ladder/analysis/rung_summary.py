@@ -9,7 +9,10 @@ rung to the last (the open-ended last rung has no length and gets no even share)
 - ``crowded``: a rung with more than ``CROWDED_SHARE`` times its even share (any holding in the
   open-ended rung beyond an even ladder's span counts as crowded only if its share is above the
   largest even share);
-- ``short of needs``: the net cash needed in the rung exceeds the face maturing in it.
+- ``short of needs``: by the rung's end, the cumulative net cash needs exceed the fund balances plus
+  the principal and coupons paid so far (``ladder.policy.liquidity.needs_coverage``, the answer the
+  checker's cash-needs rule and the cash plan give): a rung whose needs earlier rungs cover is not
+  marked.
 """
 
 from __future__ import annotations
@@ -18,6 +21,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ladder.policy.liquidity import COVERED, NeedsCoverage, needs_coverage
 from ladder.risk.rungs import RUNG_END_MONTHS, RUNGS, rung_index
 
 GAP_SHARE = 0.5
@@ -26,7 +30,8 @@ CROWDED_SHARE = 2.0
 
 @dataclass(frozen=True, eq=False)
 class RungSummary:
-    """Per rung (R,): holdings count, face and market value maturing, net cash needs, marks."""
+    """Per rung (R,): holdings count, face and market value maturing, net cash needs, the cumulative
+    coverage of the needs (``coverage``), marks."""
 
     rungs: tuple[str, ...]
     count: np.ndarray
@@ -35,6 +40,7 @@ class RungSummary:
     needs: np.ndarray
     share: np.ndarray          # market value share, decimal
     even_share: np.ndarray     # share of an evenly spread ladder over the held span, decimal
+    coverage: NeedsCoverage
     marks: tuple[tuple[str, ...], ...]
 
 
@@ -48,6 +54,14 @@ def rung_summary(v, cash_needs) -> RungSummary:
     mv = np.bincount(index, weights=v.market_value, minlength=r)
     future = cash_needs.date > settle
     needs = np.bincount(rung_index(settle, cash_needs.date[future]), weights=cash_needs.amount[future], minlength=r)
+    fund = v.holdings.kind == "fund"
+    cf = v.pricer.cash_flows
+    paid = cf.mask & (cf.pay_dates > settle) & ~fund[:, None]
+    flows = np.where(paid, cf.amount * v.holdings.face[:, None] / 100.0, 0.0)
+    rung_of_flow = rung_index(settle, np.where(paid, cf.pay_dates, settle + 1))
+    inflows = np.bincount(rung_of_flow[paid], weights=flows[paid], minlength=r)
+    coverage = needs_coverage(float(v.market_value[fund].sum()), inflows, needs)
+    covered = coverage.status == COVERED
     total = mv.sum()
     share = mv / total if total else np.zeros(r)
     held = np.flatnonzero(count)
@@ -64,7 +78,7 @@ def rung_summary(v, cash_needs) -> RungSummary:
             mark.append("gap")
         if share[k] > CROWDED_SHARE * (even[k] if k < r - 1 else even.max()):
             mark.append("crowded")
-        if needs[k] > face[k]:
+        if not covered[k]:
             mark.append("short of needs")
         marks.append(tuple(mark))
-    return RungSummary(RUNGS, count, face, mv, needs, share, even, tuple(marks))
+    return RungSummary(RUNGS, count, face, mv, needs, share, even, coverage, tuple(marks))

@@ -1,9 +1,12 @@
-"""Rate shocks: the whole book revalued exactly under rate scenarios, beside the estimates.
+"""Rate and credit shocks: the whole book revalued exactly under scenarios, beside the estimates.
 
 A scenario moves the quoted par yields (``ladder.risk.scenarios``); each scenario curve is rebuilt
 from them and every holding is repriced on it at its held spread by ``Valuation.pricer`` (z-spread,
 or option-adjusted spread through the Hull-White tree for callables). All scenarios and the key-rate
-bumps are bootstrapped together and repriced in one call. Estimates and their errors:
+bumps are bootstrapped together and repriced in one call; a scenario that moves spreads (alone or
+with rates) is repriced at its moved spreads through the same pricer, and each holding's spread
+duration and convexity come from its own spread moved by +/- 1 bp (``ladder.risk.credit``).
+Estimates and their errors:
 ``ladder.risk.revaluation``; breakdowns by maturity rung (``ladder.risk.rungs``) and by sector.
 
 Key-rate durations (T. S. Y. Ho, "Key Rate Durations: Measures of Interest Rate Risks", Journal of
@@ -36,6 +39,8 @@ from ladder.folder.book_file import Book
 from ladder.book.holdings import SECTORS
 from ladder.errors import Problems
 from ladder.pricing.curve import Curve, CurveSet
+from ladder.pricing.spreads import rating_buckets
+from ladder.risk.credit import credit_set, scenario_prices, spread_risk, spread_shifts
 from ladder.risk.revaluation import (Revaluation, ScenarioTotals, exposure_weighted_shifts, is_parallel,
                                      key_rate_durations, revalue)
 from ladder.risk.rungs import RUNGS, rung_index
@@ -52,11 +57,13 @@ IncomeModel = Callable[[Book, dt.date, tuple[Scenario, ...]], np.ndarray]
 
 
 def shock_scenarios(book: Book, shifts_bp: Sequence[float] | None = None, scenarios_file=None) -> tuple[Scenario, ...]:
-    """The scenarios to run: by default the default parallel set, the standard non-parallel set and
-    the book's own scenarios.csv; given ``shifts_bp`` (parallel moves, bp) and/or ``scenarios_file``
-    (``scenario,tenor,shift_bp``), exactly those. Raises InputError for a bad scenarios file."""
+    """The scenarios to run: by default the default parallel set, the standard non-parallel set, the
+    standard credit set and the book's own scenarios.csv; given ``shifts_bp`` (parallel moves, bp)
+    and/or ``scenarios_file`` (``scenario,tenor,shift_bp[,sector,bucket]``), exactly those. Raises
+    InputError for a bad scenarios file."""
     if shifts_bp is None and scenarios_file is None:
-        return parallel_set(book.curve) + standard_non_parallel(book.curve) + tuple(book.scenarios)
+        return (parallel_set(book.curve) + standard_non_parallel(book.curve) + credit_set(book.curve)
+                + tuple(book.scenarios))
     chosen = parallel_set(book.curve, shifts_bp) if shifts_bp is not None else ()
     return chosen + (read_scenarios(scenarios_file, book.curve) if scenarios_file is not None else ())
 
@@ -84,8 +91,10 @@ def _shift_matrix(scenarios: Sequence[Scenario], tenors: int) -> np.ndarray:
 @dataclass(frozen=True, eq=False)
 class ShockResult:
     """The book under every scenario. Per holding: ``key_rate_durations`` (n, K) years (K =
-    ``tenors``), ``rung`` (n,) index into RUNGS, ``revaluation`` (S, n) values; per scenario:
-    ``income_change`` (S,) from the cash plan's model, or None when none was given."""
+    ``tenors``), ``rung`` (n,) index into RUNGS, ``revaluation`` (S, n) values, ``spread_duration``
+    (n,) years and ``spread_convexity`` (n,) years^2, ``spread_shifts`` (S, n) each scenario's move
+    of its spread, decimal; per scenario: ``income_change`` (S,) from the cash plan's model, or None
+    when none was given."""
 
     book_name: str
     valuation: Valuation
@@ -94,6 +103,9 @@ class ShockResult:
     key_rate_durations: np.ndarray
     revaluation: Revaluation
     rung: np.ndarray
+    spread_duration: np.ndarray
+    spread_convexity: np.ndarray
+    spread_shifts: np.ndarray
     income_change: np.ndarray | None = None
 
     @property
@@ -107,9 +119,30 @@ class ShockResult:
 
     @property
     def parallel_bp(self) -> list[float | None]:
-        """The size of each parallel scenario (every tenor moved alike), bp; None for the others."""
-        return [float(s.shift_bp_by_tenor[0]) if p else None
+        """The size of each parallel rate scenario (every tenor moved alike, no spread moved), bp; None
+        for the others."""
+        return [float(s.shift_bp_by_tenor[0]) if p and not s.spread_moves else None
                 for s, p in zip(self.scenarios, is_parallel(self.tenor_shifts))]
+
+    @property
+    def portfolio_spread_duration(self) -> float:
+        """Years, market-value weighted like the effective duration."""
+        weights = self.revaluation.base
+        return float(weights @ self.spread_duration / weights.sum())
+
+    @property
+    def portfolio_spread_convexity(self) -> float:
+        """Years^2, market-value weighted."""
+        weights = self.revaluation.base
+        return float(weights @ self.spread_convexity / weights.sum())
+
+    @property
+    def equivalent_spread_shift(self) -> np.ndarray:
+        """Each scenario's spread move weighted by the holdings' spread exposure, market value times
+        spread duration (S,), decimal; 0 for a book without spread exposure."""
+        exposure = self.revaluation.base * self.spread_duration
+        total = exposure.sum()
+        return self.spread_shifts @ exposure / total if total else np.zeros(len(self.scenarios))
 
     @cached_property
     def portfolio(self) -> ScenarioTotals:
@@ -167,14 +200,18 @@ def shock_book(book: Book, at: dt.date | None = None, scenarios: Sequence[Scenar
     curves = _scenario_curves(valuation.curve, shifts, names, str(book.files["curve"]))
     pricer = valuation.pricer
     base_price = pricer.dirty(valuation.curve)
-    prices = pricer.dirty(curves)
     s = len(scenarios)
+    moves = spread_shifts(scenarios, book.holdings)
+    prices = scenario_prices(pricer, curves, np.vstack([moves, np.zeros((2 * k, len(book.holdings)))]))
     krd = key_rate_durations(base_price, prices[s:s + k], prices[s + k:], EFFECTIVE_SHIFT_BP / 1e4)
+    spread_duration, spread_convexity = spread_risk(pricer, valuation.curve)
     revaluation = revalue(valuation.market_value, base_price, prices[:s], book.holdings.face,
-                          valuation.effective_duration, valuation.effective_convexity, krd, shifts[:s] / 1e4)
+                          valuation.effective_duration, valuation.effective_convexity, krd, shifts[:s] / 1e4,
+                          spread_duration, spread_convexity, moves)
     income_change = None if income is None else np.asarray(income(book, valuation.as_of, scenarios), float)
     return ShockResult(book.name, valuation, scenarios, tenors, krd, revaluation,
-                       rung_index(np.datetime64(valuation.as_of), book.holdings.maturity), income_change)
+                       rung_index(np.datetime64(valuation.as_of), book.holdings.maturity), spread_duration,
+                       spread_convexity, moves, income_change)
 
 
 # ---- records for json and csv (percent and bp on output) ---------------------------------------
@@ -210,6 +247,9 @@ def scenario_records(r: ShockResult) -> list[dict]:
         record = {"name": scenario.name, "kind": scenario.kind, "shift_bp": bp,
                   "equivalent_shift_bp": clean_number(r.equivalent_shift[s] * 1e4, 6),
                   "shifts_bp": dict(zip(r.tenors, _numbers(scenario.shift_bp_by_tenor, 6))),
+                  "spread_moves_bp": [{"sector": m.sector, "bucket": m.bucket, "bp": clean_number(m.bp, 6)}
+                                      for m in scenario.spread_moves],
+                  "equivalent_spread_shift_bp": clean_number(r.equivalent_spread_shift[s] * 1e4, 6),
                   **_record(portfolio, 0, s)}
         if r.income_change is not None:
             record["income_change_12m"] = clean_number(r.income_change[s], 2)
@@ -226,10 +266,24 @@ def holding_shock_records(r: ShockResult) -> list[dict]:
     columns = {"value": _numbers(rv.value.T, 2), "est_duration": _numbers(rv.est_duration.T, 2),
                "est_duration_convexity": _numbers(rv.est_duration_convexity.T, 2)}
     ed, ec, base = _numbers(v.effective_duration, 8), _numbers(v.effective_convexity, 8), _numbers(rv.base, 2)
+    sd, sc, spread = _numbers(r.spread_duration, 8), _numbers(r.spread_convexity, 8), _numbers(v.spread * 1e4, 6)
     return [{"id": h.id[i], "sector": h.sector[i], "rung": RUNGS[r.rung[i]], "base_value": base[i],
              "effective_duration": ed[i], "effective_convexity": ec[i],
              "key_rate_durations": dict(zip(r.tenors, krd[i])),
+             "spread_bp": spread[i], "spread_duration": sd[i], "spread_convexity": sc[i],
              **{key: column[i] for key, column in columns.items()}} for i in range(len(h))]
+
+
+def spread_duration_records(r: ShockResult) -> list[dict]:
+    """One record a holding with spread exposure: sector, rating bucket, spread (bp), spread duration
+    (years) and convexity (years^2), market value."""
+    v, h = r.valuation, r.valuation.holdings
+    long_, short = rating_buckets(h)
+    rows = np.flatnonzero(r.spread_duration != 0)
+    return [{"id": h.id[i], "sector": h.sector[i], "bucket": long_[i] or short[i] or "unrated",
+             "spread_bp": clean_number(v.spread[i] * 1e4, 4), "spread_duration": clean_number(r.spread_duration[i], 8),
+             "spread_convexity": clean_number(r.spread_convexity[i], 8),
+             "base_value": clean_number(r.revaluation.base[i], 2)} for i in rows]
 
 
 def shock_document(r: ShockResult) -> dict:
@@ -240,6 +294,8 @@ def shock_document(r: ShockResult) -> dict:
             "effective_convexity": clean_number(r.effective_convexity, 8),
             "key_rate_durations": dict(zip(r.tenors, _numbers(krd, 8))),
             "key_rate_duration_sum": clean_number(krd.sum(), 8),
+            "spread_duration": clean_number(r.portfolio_spread_duration, 8),
+            "spread_convexity": clean_number(r.portfolio_spread_convexity, 8),
             "scenarios": scenario_records(r), "holdings": holding_shock_records(r)}
 
 
@@ -249,13 +305,15 @@ def shock_rows(r: ShockResult) -> list[dict]:
     holdings = ScenarioTotals(tuple(r.valuation.holdings.id), rv.base, rv.value.T, rv.est_duration.T,
                               rv.est_duration_convexity.T)
     names, parallel, equivalent = [x.name for x in r.scenarios], r.parallel_bp, _numbers(r.equivalent_shift * 1e4, 6)
+    spread_equivalent = _numbers(r.equivalent_spread_shift * 1e4, 6)
     rows = []
     for level, totals in (("portfolio", r.portfolio), ("rung", r.by_rung), ("sector", r.by_sector),
                           ("holding", holdings)):
         g, s = np.meshgrid(np.arange(len(totals.groups)), np.arange(len(r.scenarios)), indexing="ij")
         g, s = g.ravel().tolist(), s.ravel().tolist()
         columns = {"scenario": [names[j] for j in s], "shift_bp": [parallel[j] for j in s],
-                   "equivalent_shift_bp": [equivalent[j] for j in s], "level": [level] * len(g),
+                   "equivalent_shift_bp": [equivalent[j] for j in s],
+                   "equivalent_spread_shift_bp": [spread_equivalent[j] for j in s], "level": [level] * len(g),
                    "group": [totals.groups[i] for i in g],
                    **{key: _numbers(np.ravel(values), digits) for key, (values, digits) in _group_table(totals).items()}}
         rows.extend(dict(zip(columns, values)) for values in zip(*columns.values()))

@@ -13,9 +13,10 @@ from dataclasses import dataclass, field, fields, replace
 
 import numpy as np
 
+from ladder.analysis.amortized import amortized_cost, original_cost
 from ladder.folder.book_file import Book
 from ladder.book.holdings import QUOTE_NONE, Holdings
-from ladder.errors import Problems
+from ladder.errors import NothingToValue, Problems
 from ladder.market.dates import days_between
 from ladder.pricing.callable import (CallableBonds, HullWhiteParams, callable_prices, option_adjusted_spreads,
                                      workout_yields)
@@ -34,15 +35,17 @@ FUND_DAYS = 1.0
 
 @dataclass(frozen=True, eq=False)
 class Totals:
-    """Portfolio totals. Yields: market-value-weighted semiannual bond-equivalent; durations years."""
+    """Portfolio totals. Yields: market-value-weighted semiannual bond-equivalent, the portfolio's yield
+    being its yield to worst (``Valuation.yield_to_worst``); durations years."""
 
     count: int
     face: float
     market_value: float
-    book_value: float
+    book_value: float                # amortized cost (effective-interest method)
+    cost: float                      # original cost
     unrealized_gain: float
     accrued: float
-    ytm: float
+    yield_to_worst: float
     book_yield: float
     modified_duration: float
     effective_duration: float
@@ -66,8 +69,9 @@ class Valuation:
     market_value: np.ndarray
     measures: Measures
     dv01: np.ndarray
-    book_value: np.ndarray
-    unrealized_gain: np.ndarray
+    book_value: np.ndarray           # amortized cost, currency (ladder.analysis.amortized)
+    cost: np.ndarray                 # original cost: book price x face / 100, currency
+    unrealized_gain: np.ndarray      # market value - accrued - amortized cost
     book_yield: np.ndarray
     spread: np.ndarray
     effective_duration: np.ndarray
@@ -75,7 +79,7 @@ class Valuation:
     days_to_maturity: np.ndarray
     priced_from: np.ndarray          # "quote" | "curve"
     option_value: np.ndarray         # per 100, callables only (NaN otherwise)
-    yield_to_worst: np.ndarray
+    yield_to_worst: np.ndarray       # every holding: to worst for callables, else to maturity (see worst_yields)
     yield_to_first_call: np.ndarray
     totals: Totals = field(init=False)
 
@@ -99,9 +103,11 @@ def _totals(v: Valuation, rows: np.ndarray | None = None) -> Totals:
     mv, face, m = v.market_value[r], v.holdings.face[r], v.measures
     return Totals(
         count=len(r), face=float(face.sum()), market_value=float(mv.sum()),
-        book_value=float(np.nansum(v.book_value[r])), unrealized_gain=float(np.nansum(v.unrealized_gain[r])),
+        book_value=float(np.nansum(v.book_value[r])), cost=float(np.nansum(v.cost[r])),
+        unrealized_gain=float(np.nansum(v.unrealized_gain[r])),
         accrued=float((v.accrued[r] * face / 100).sum()),
-        ytm=_weighted(m.bey[r], mv), book_yield=_weighted(v.book_yield[r], np.nan_to_num(v.book_value[r])),
+        yield_to_worst=_weighted(v.yield_to_worst[r], mv),
+        book_yield=_weighted(v.book_yield[r], np.nan_to_num(v.book_value[r])),
         modified_duration=_weighted(m.modified[r], mv), effective_duration=_weighted(v.effective_duration[r], mv),
         convexity=_weighted(m.convexity[r], mv), effective_convexity=_weighted(v.effective_convexity[r], mv),
         dv01=float(v.dv01[r].sum()), wam_days=_weighted(v.days_to_maturity[r], mv),
@@ -147,14 +153,17 @@ def _spread_problems(book: Book, rows: np.ndarray) -> None:
 
 
 def value_book(book: Book, at: dt.date | None = None) -> Valuation:
-    """Value every holding of ``book`` at ``at`` (default: the valuation date)."""
+    """Value every holding of ``book`` at ``at`` (default: the valuation date); ``NothingToValue``
+    for a book without holdings (every figure would be empty)."""
     settle = settlement_date(book, at)
     h = book.holdings
+    if not len(h):
+        raise NothingToValue(book.files["holdings"])
     curve = bootstrap(book.curve, np.datetime64(book.valuation_date))
     cf = cash_flows(h, np.datetime64(settle))
     discount = settle_discount(curve, cf)
     quoted = h.quote_type != QUOTE_NONE
-    table_bp = table_spreads_bp(h, book.spreads)
+    table_bp = table_spreads_bp(h, book.spreads, settle)
     missing = np.flatnonzero(~quoted & np.isnan(table_bp) & (h.kind != "fund"))
     if len(missing):
         _spread_problems(book, missing)
@@ -179,15 +188,23 @@ def value_book(book: Book, at: dt.date | None = None) -> Valuation:
     measures = measures_from_dirty(h, cf, dirty)
     clean = dirty - cf.accrued
     face = h.face / 100.0
-    book_value = np.where(h.kind == "fund", h.face, h.book_price * face)
+    book_value = amortized_cost(h, settle)
     return Valuation(
         as_of=settle, holdings=h, curve=curve, pricer=pricer, clean=clean, accrued=cf.accrued, dirty=dirty,
         market_value=dirty * face, measures=measures, dv01=measures.modified * dirty * face * 1e-4,
-        book_value=book_value, unrealized_gain=clean * face - book_value, book_yield=_book_yields(h),
+        book_value=book_value, cost=original_cost(h), unrealized_gain=clean * face - book_value, book_yield=_book_yields(h),
         spread=spread, effective_duration=eff_dur, effective_convexity=eff_cx,
         days_to_maturity=np.where(h.kind == "fund", FUND_DAYS, days_between(np.datetime64(settle), h.maturity)),
         priced_from=np.where(quoted | (h.kind == "fund"), "quote", "curve").astype(object),
-        option_value=option_value, yield_to_worst=ytw, yield_to_first_call=ytfc)
+        option_value=option_value, yield_to_worst=worst_yields(h, measures, ytw), yield_to_first_call=ytfc)
+
+
+def worst_yields(h: Holdings, measures: Measures, callable_ytw: np.ndarray) -> np.ndarray:
+    """The yield every portfolio figure uses (decimal, bond-equivalent): yield to worst for a callable
+    (the lowest of the yields to each call date and to maturity), yield to maturity for the rest (a
+    fund: its stated yield). Common practice for a portfolio of callables: the yield to worst is the
+    yield an investor can count on."""
+    return np.where(h.callable & np.isfinite(callable_ytw), callable_ytw, measures.bey)
 
 
 def _callables(book, cf, curve, quoted, dirty, spread, params):

@@ -8,19 +8,18 @@ Every problem is reported as ``file:row:column`` (row 1 is the header) and the f
 from __future__ import annotations
 
 import datetime as dt
-import math
 import re
 from dataclasses import dataclass
 
 import numpy as np
 
+from ladder.book.cells import MAX_FACE, parse_number
 from ladder.book.table_file import read_rows
 from ladder.errors import Problems
 
 COLUMNS = ("date", "amount", "label")
 REQUIRED = ("date", "amount")
 _ISO_DATE = re.compile(r"^\d{4}-\d{2}-\d{2}$")
-_NUMBER = re.compile(r"^[+-]?(\d{1,3}(,\d{3})+|\d+)(\.\d*)?$|^[+-]?\.\d+$")
 
 
 @dataclass(frozen=True, eq=False)
@@ -49,14 +48,6 @@ class CashNeeds:
         return np.bincount(month[keep], weights=self.amount[keep], minlength=months)[:months]
 
 
-def _number(text: str) -> float | None:
-    text = text.strip()
-    if not _NUMBER.match(text):
-        return None
-    value = float(text.replace(",", ""))
-    return value if math.isfinite(value) else None
-
-
 def read_cash_needs(path) -> CashNeeds:
     """Read ``cash_needs.csv`` at ``path``; raises ``InputError`` listing every problem."""
     name = str(path)
@@ -73,10 +64,15 @@ def read_cash_needs(path) -> CashNeeds:
                 date = dt.date.fromisoformat(date_text)
             except ValueError:
                 problems.add(name, line, date_col, f"{date_text!r} is not a calendar date")
-        amount = _number(amount_text)
-        if amount is None:
-            problems.add(name, line, amount_col,
-                         f"amount {amount_text!r} is not a number (currency units; + needed, - inflow)")
+        try:
+            amount = parse_number(amount_text)
+        except ValueError as why:
+            amount = None
+            problems.add(name, line, amount_col, f"amount {why} (currency units; + needed, - inflow)")
+        if amount is not None and abs(amount) > MAX_FACE:
+            problems.add(name, line, amount_col, f"amount {amount_text} is out of range; at most {MAX_FACE:,.0f} "
+                                                 "either way")
+            amount = None
         if date is not None and amount is not None:
             dates.append(date)
             amounts.append(amount)

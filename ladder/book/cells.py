@@ -1,11 +1,40 @@
-"""Parsing one text cell into a date or a number, reporting a problem at its position if it fails."""
+"""Parsing one text cell into a date or a number, reporting a problem at its position if it fails.
+
+``parse_number`` is the one number reader of every input file (holdings, trades, offerings, cash
+needs, curve, scenarios): a plain number (``10000000``, ``-1.5``, ``1e6``) or one whose thousands are
+grouped by commas in their proper places (``10,000,000``, ``1,234.56``). Any other comma (``5,5``,
+``10,000,00``) is refused rather than guessed at: a decimal comma and a misplaced separator look alike.
+"""
 
 from __future__ import annotations
 
 import datetime as dt
 import math
+import re
 
 from ladder.errors import Problems
+
+_PLAIN = re.compile(r"[+-]?(\d+(\.\d*)?|\.\d+)([eE][+-]?\d+)?")
+_GROUPED = re.compile(r"[+-]?\d{1,3}(,\d{3})+(\.\d*)?")
+MAX_FACE = 1e13          # currency units: a face or amount above ten trillion is a typing error
+RATE_RANGE_PCT = (-5.0, 30.0)   # percent: a quoted yield or rate outside this is a typing error
+
+
+def parse_number(text: str) -> float:
+    """The finite number written in ``text``; ``ValueError`` saying why if it is not one."""
+    text = text.strip()
+    if _PLAIN.fullmatch(text):
+        value = float(text)
+    elif _GROUPED.fullmatch(text):
+        value = float(text.replace(",", ""))
+    elif "," in text and _PLAIN.fullmatch(text.replace(",", "")):
+        raise ValueError(f"{text!r} has a comma out of place; group thousands as 10,000,000 "
+                         "(a comma is never a decimal point), or write no commas")
+    else:
+        raise ValueError(f"{text!r} is not a number")
+    if not math.isfinite(value):
+        raise ValueError(f"{text!r} is not a finite number")
+    return value
 
 
 class CellReader:
@@ -33,12 +62,9 @@ class CellReader:
         if not text:
             return None
         try:
-            value = float(text.replace(",", "").replace("_", ""))
-        except ValueError:
-            self.error(row, column, f"{name} {text!r} is not a number")
-            return None
-        if not math.isfinite(value):
-            self.error(row, column, f"{name} {text!r} is not a finite number")
+            value = parse_number(text)
+        except ValueError as why:
+            self.error(row, column, f"{name} {why}")
             return None
         if (low is not None and value < low) or (high is not None and value > high):
             self.error(row, column, f"{name} {text} is out of range; {what or f'expected {low} to {high}'}")

@@ -36,6 +36,10 @@ SECTOR_DEFAULTS: dict[str, tuple[str, str]] = {
 # Discount instruments quoted by discount rate use ACT/360 whatever their sector (bills, CP).
 KIND_DAY_COUNT = {"discount": "ACT/360"}
 
+# Sectors whose holdings cannot be sold before maturity unless the holdings file says otherwise:
+# bank CDs and term deposits are usually held to maturity (common practice; a negotiable CD trades).
+NOT_NEGOTIABLE = ("cd", "deposit")
+
 QUOTE_NONE, QUOTE_PRICE, QUOTE_YIELD, QUOTE_DISCOUNT = "", "price", "yield", "discount"
 NO_CALL = -1
 
@@ -65,6 +69,8 @@ class Holdings:
     first_call: np.ndarray          # datetime64[D], NaT if not callable
     call_frequency: np.ndarray      # int64: NO_CALL, 0 = once, else calls a year
     call_price: np.ndarray          # float64, per 100
+    negotiable: np.ndarray          # bool: can be sold before maturity (see ``NOT_NEGOTIABLE``)
+    price_date: np.ndarray          # datetime64[D], date of the quote; NaT: the valuation date
     row: np.ndarray                 # int64, 1-based source row in the holdings file (0 if made in code)
 
     def __len__(self) -> int:
@@ -88,7 +94,7 @@ class Holdings:
 
 _TEXT_FIELDS = ("id", "sector", "issuer", "kind", "day_count", "rating", "short_rating",
                 "rating_at_purchase", "quote_type")
-_DATE_FIELDS = ("maturity", "issue_date", "first_coupon", "purchase_date", "first_call")
+_DATE_FIELDS = ("maturity", "issue_date", "first_coupon", "purchase_date", "first_call", "price_date")
 
 
 def make_holdings(**columns) -> Holdings:
@@ -96,7 +102,7 @@ def make_holdings(**columns) -> Holdings:
 
     Required: ``id``, ``sector``, ``face``, ``maturity``. Defaults: issuer = id, kind and day count
     from the sector (``SECTOR_DEFAULTS``), coupon 0, frequency 2 for ``fixed`` else 0, no quote,
-    no call, call price 100, row 0.
+    no call, call price 100, negotiable unless the sector is in ``NOT_NEGOTIABLE``, row 0.
     """
     n = len(columns["id"])
 
@@ -129,7 +135,16 @@ def make_holdings(**columns) -> Holdings:
         issue_date=dates("issue_date"), first_coupon=dates("first_coupon"),
         rating=text("rating"), short_rating=text("short_rating"), rating_at_purchase=text("rating_at_purchase"),
         quote_type=text("quote_type"), quote=numbers("quote", np.nan), book_price=numbers("book_price", np.nan),
-        purchase_date=dates("purchase_date"), first_call=dates("first_call"),
+        purchase_date=dates("purchase_date"), first_call=dates("first_call"), price_date=dates("price_date"),
         call_frequency=numbers("call_frequency", NO_CALL, np.int64), call_price=numbers("call_price", 100.0),
+        negotiable=_negotiable(columns.get("negotiable"), sector),
         row=numbers("row", 0, np.int64),
     )
+
+
+def _negotiable(values, sector: np.ndarray) -> np.ndarray:
+    """``values`` (True, False or None for the sector's default) as a bool array."""
+    default = ~np.isin(sector, NOT_NEGOTIABLE)
+    if values is None:
+        return default
+    return np.array([d if v is None else bool(v) for v, d in zip(values, default)], dtype=bool)

@@ -11,7 +11,7 @@ from pathlib import Path
 
 import numpy as np
 
-from ladder.book.cells import CellReader
+from ladder.book.cells import MAX_FACE, RATE_RANGE_PCT, CellReader
 from ladder.book.holdings import (DAY_COUNTS, FREQUENCIES, KIND_DAY_COUNT, KINDS, SECTOR_DEFAULTS, SECTORS,
                                   Holdings, make_holdings)
 from ladder.book.table_file import Table, check_columns, read_table
@@ -21,7 +21,8 @@ from ladder.market.ratings import explain_long, explain_short, tokens
 REQUIRED = ("id", "sector", "issuer", "face", "maturity_date")
 OPTIONAL = ("kind", "coupon_pct", "frequency", "day_count", "issue_date", "first_coupon_date",
             "rating", "short_rating", "rating_at_purchase", "price", "yield_pct", "discount_rate_pct",
-            "book_price", "purchase_date", "first_call_date", "call_frequency", "call_price")
+            "book_price", "purchase_date", "first_call_date", "call_frequency", "call_price", "negotiable",
+            "price_date")
 COLUMNS = REQUIRED + OPTIONAL
 QUOTE_COLUMNS = {"price": "price", "yield_pct": "yield", "discount_rate_pct": "discount"}
 CALL_FREQUENCIES = (0,) + FREQUENCIES
@@ -30,8 +31,10 @@ FRACTION_LOOKING_COUPON_PCT = 0.1
 
 
 def read_holdings(path: Path, valuation_date: dt.date, problems: Problems, label: str | None = None,
-                  extra_columns: tuple[str, ...] = ()) -> tuple[Holdings | None, dict[str, list[str]]]:
-    """Holdings in ``path`` (CSV or .xlsx), checked against ``valuation_date``.
+                  extra_columns: tuple[str, ...] = (), cash_account: str = "",
+                  ) -> tuple[Holdings | None, dict[str, list[str]]]:
+    """Holdings in ``path`` (CSV or .xlsx), checked against ``valuation_date``. The ``cash_account``
+    holding (a fund whose face is the book's cash balance) may hold 0 or be overdrawn (negative face).
 
     Returns (holdings, extras), extras holding the raw text of ``extra_columns`` by row; holdings is
     None if the file has any problem (all of them are in ``problems``).
@@ -43,26 +46,27 @@ def read_holdings(path: Path, valuation_date: dt.date, problems: Problems, label
     check_columns(table, COLUMNS + extra_columns, REQUIRED, problems)
     if len(problems.items) > before:
         return None, {}
-    columns = _parse_rows(table, valuation_date, problems)
+    columns = _parse_rows(table, valuation_date, problems, cash_account)
     extras = {name: [table.cell(i, name) for i in range(len(table.rows))] for name in extra_columns}
     if len(problems.items) > before:
         return None, extras
     return make_holdings(**columns), extras
 
 
-def _parse_rows(table: Table, valuation: dt.date, problems: Problems) -> dict[str, list]:
+def _parse_rows(table: Table, valuation: dt.date, problems: Problems, cash_account: str = "") -> dict[str, list]:
     cells = CellReader(table.path, problems)
     col = table.column
     out: dict[str, list] = {name: [] for name in (
         "id", "sector", "issuer", "kind", "face", "maturity", "coupon", "frequency", "day_count",
         "issue_date", "first_coupon", "rating", "short_rating", "rating_at_purchase", "quote_type",
-        "quote", "book_price", "purchase_date", "first_call", "call_frequency", "call_price", "row")}
+        "quote", "book_price", "purchase_date", "first_call", "call_frequency", "call_price", "negotiable", "price_date",
+        "row")}
     first_row_of: dict[str, int] = {}
     for index in range(len(table.rows)):
         row = index + 2
         text = {name: table.cell(index, name) for name in COLUMNS}
         at = {name: col.get(name, 0) for name in COLUMNS}
-        record = _parse_row(cells, text, at, row, valuation)
+        record = _parse_row(cells, text, at, row, valuation, bool(cash_account) and text["id"] == cash_account)
         hid = text["id"]
         if not hid:
             cells.error(row, at["id"], "id is empty; every holding needs a unique id")
@@ -75,7 +79,7 @@ def _parse_rows(table: Table, valuation: dt.date, problems: Problems) -> dict[st
     return out
 
 
-def _parse_row(cells: CellReader, text: dict, at: dict, row: int, valuation: dt.date) -> dict:
+def _parse_row(cells: CellReader, text: dict, at: dict, row: int, valuation: dt.date, balance: bool = False) -> dict:
     sector = cells.choice(text["sector"], row, at["sector"], "sector", SECTORS)
     if not text["sector"]:
         cells.error(row, at["sector"], f"sector is empty; one of {', '.join(SECTORS)}")
@@ -83,10 +87,11 @@ def _parse_row(cells: CellReader, text: dict, at: dict, row: int, valuation: dt.
         SECTOR_DEFAULTS[sector][0] if sector else "fixed")
     if not text["issuer"]:
         cells.error(row, at["issuer"], "issuer is empty; issuer limits need the issuer's name")
-    face = cells.number(text["face"], row, at["face"], "face", low=0.0, what="the par amount must be positive")
+    face = cells.number(text["face"], row, at["face"], "face", low=-MAX_FACE if balance else 0.0, high=MAX_FACE,
+                        what=f"the par amount must be positive and at most {MAX_FACE:,.0f}")
     if not text["face"]:
         cells.error(row, at["face"], "face is empty; give the par amount held")
-    elif face == 0:
+    elif face == 0 and not balance:
         cells.error(row, at["face"], "face is 0; the par amount must be positive")
     maturity = cells.date(text["maturity_date"], row, at["maturity_date"], "maturity_date")
     if not text["maturity_date"]:
@@ -122,12 +127,31 @@ def _parse_row(cells: CellReader, text: dict, at: dict, row: int, valuation: dt.
     if book_price is not None and not purchase:
         cells.error(row, at["purchase_date"] or at["book_price"], "book_price needs a purchase_date")
     first_call, call_frequency, call_price = _call(cells, text, at, row, kind, maturity)
+    negotiable = _negotiable(cells, text["negotiable"], row, at["negotiable"])
+    price_date = cells.date(text["price_date"], row, at["price_date"], "price_date")
+    if price_date and price_date > valuation:
+        cells.error(row, at["price_date"], f"price_date {price_date} is after the valuation date {valuation}")
     return dict(
-        id=text["id"], sector=sector or "", issuer=text["issuer"], kind=kind, face=face if face else np.nan,
+        id=text["id"], sector=sector or "", issuer=text["issuer"], kind=kind, face=face if face or (balance and face is not None) else np.nan,
         maturity=maturity, coupon=coupon, frequency=frequency, day_count=day_count or default_dc,
         issue_date=issue, first_coupon=first, quote_type=quote_type, quote=quote,
         book_price=np.nan if book_price is None else book_price, purchase_date=purchase,
-        first_call=first_call, call_frequency=call_frequency, call_price=call_price, row=row, **ratings)
+        first_call=first_call, call_frequency=call_frequency, call_price=call_price, negotiable=negotiable,
+        price_date=price_date, row=row, **ratings)
+
+
+NEGOTIABLE_WORDS = {"true": True, "false": False}
+
+
+def _negotiable(cells: CellReader, text: str, row: int, column: int) -> bool | None:
+    """``true``/``false`` (any case); None when empty (the sector's default)."""
+    if not text:
+        return None
+    value = NEGOTIABLE_WORDS.get(text.strip().casefold())
+    if value is None:
+        cells.error(row, column, f"negotiable {text!r} is not true or false; leave it empty for the sector's "
+                                 "default (CDs and deposits are held to maturity, everything else can be sold)")
+    return value
 
 
 def _explain_either(text: str) -> str | None:
@@ -193,7 +217,9 @@ def _quote(cells, text, at, row, kind) -> tuple[str, float]:
         value = cells.number(text[name], row, at[name], "price", low=1.0, high=200.0,
                              what="a clean price per 100 face, e.g. 99.875")
         return ("price", value) if value is not None else ("", np.nan)
-    value = cells.number(text[name], row, at[name], name, low=-5.0, high=30.0, what="a rate in percent")
+    low, high = RATE_RANGE_PCT
+    value = cells.number(text[name], row, at[name], name, low=low, high=high,
+                         what=f"a rate in percent from {low:g} to {high:g}")
     return (QUOTE_COLUMNS[name], value / 100.0) if value is not None else ("", np.nan)
 
 

@@ -8,11 +8,13 @@ from __future__ import annotations
 
 import csv
 import difflib
+import zipfile
 import datetime as dt
 from dataclasses import dataclass
 from pathlib import Path
 
 from ladder.errors import Problems
+from ladder.neutralize import read_cell
 
 
 @dataclass(frozen=True)
@@ -43,11 +45,12 @@ def _text(value) -> str:
         return value.isoformat()
     if isinstance(value, float) and value.is_integer():
         return str(int(value))
-    return str(value).strip()
+    return read_cell(str(value).strip())
 
 
 def read_table(path: Path, problems: Problems, label: str | None = None) -> Table | None:
-    """The table at ``path`` or None (with a problem added) if it cannot be read at all."""
+    """The table at ``path`` or None (with a problem added) if it is not a table (not UTF-8 text, a
+    damaged workbook). An error of the operating system (permission, a folder) is raised as it is."""
     label = label or str(path)
     if not path.exists():
         problems.add(label, 0, 0, "file not found")
@@ -61,9 +64,10 @@ def read_table(path: Path, problems: Problems, label: str | None = None) -> Tabl
             book.close()
         else:
             with path.open(newline="", encoding="utf-8-sig") as handle:
-                raw = [[cell.strip() for cell in row] for row in csv.reader(handle)]
-    except (OSError, UnicodeDecodeError, csv.Error, ValueError, KeyError) as exc:
-        problems.add(label, 0, 0, f"cannot be read: {exc}")
+                raw = [[read_cell(cell.strip()) for cell in row] for row in csv.reader(handle)]
+    except (UnicodeDecodeError, csv.Error, ValueError, KeyError, zipfile.BadZipFile) as exc:
+        what = "a damaged or not an .xlsx workbook" if path.suffix.lower() == ".xlsx" else "not UTF-8 CSV text"
+        problems.add(label, 0, 0, f"cannot be read ({exc}): {what}; save it again from the spreadsheet program")
         return None
     while raw and not any(raw[-1]):
         raw.pop()

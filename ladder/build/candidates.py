@@ -7,13 +7,17 @@ purchase is ``n * lot_increment`` face with ``n = 0`` or ``min_lot / lot_increme
 needs a quote (price, yield or discount rate): an offering is bought at its quoted price.
 
 Generic candidates (no offerings file) stand for "a security of this sector and rating maturing at
-this rung's end": one per rung, authorized sector and rating bucket of the book's spread table,
-priced from the curve plus that spread, with a coupon that puts it at par on the settlement date.
-Each sector and bucket is also offered maturing at the horizon of each liquidity floor of the policy
-of 28 days or more (a four-week bill is the shortest common Treasury bill), so the floors can be met
-with securities as well as funds.
-Their ids start ``GENERIC-`` and their issuer names with ``generic``; each is its own issuer, so a
-per-issuer cap applies to each generic line (the treasurer then sources a real issuer per line).
+this rung's end": one per rung, authorized sector and rating that occurs in the sector
+(``SECTOR_RATINGS``), priced from the curve plus the book's spread lookup
+(``ladder.pricing.spreads.table_spreads_bp``: by sector, rating and, where the table has them, tenor),
+with a coupon that puts it at par on the settlement date. Each sector and rating is also offered
+maturing at the horizon of each liquidity floor of the policy of 28 days or more (a four-week bill is
+the shortest common Treasury bill), so the floors can be met with securities as well as funds.
+Their ids start ``GENERIC-`` and their issuer names with ``generic``: every maturity of one sector and
+rating has one generic issuer (``generic agency AA+ issuer``), so issuer and family limits hold for
+it as for one real issuer (the treasurer then sources real issuers). A purchase is at least the book's
+minimum ticket, in its lots (``[build]`` of book.toml); an offering is bought in at least the minimum
+ticket too (rounded up to its own increments). Funds are bought in any amount.
 
 The residual cash goes to a fund: the offerings' fund rows, else the book's own funds offered again,
 else a generic government fund at the curve's one-month rate.
@@ -27,8 +31,9 @@ from pathlib import Path
 
 import numpy as np
 
-from ladder.folder.book_file import Book
+from ladder.folder.book_file import Book, BuildSettings
 from ladder.book.holdings import SECTORS, Holdings, make_holdings
+from ladder.book.cells import MAX_FACE, parse_number
 from ladder.book.holdings_file import read_holdings
 from ladder.book.table_file import read_table
 from ladder.build.rungs import Rungs
@@ -40,9 +45,19 @@ from ladder.pricing.curve import bootstrap
 from ladder.pricing.spreads import dirty_at_spread, settle_discount, table_spreads_bp
 
 OFFERING_COLUMNS = ("available_face", "min_lot", "lot_increment")
-GENERIC_LOT = 100_000.0        # face, the step of a generic purchase (common practice: 100,000 lots)
 GENERIC_PREFIX = "GENERIC-"
-LONG_BUCKETS = ("AAA", "AA", "A", "BBB")
+GENERIC_SOURCE = "generic stand-ins (curve + spread table), not offerings"
+SHORT_SYMBOLS = ("A-1+", "A-1", "A-2", "A-3")
+# The ratings a generic candidate of each sector may carry: those that occur in the sector (common
+# practice, US market). Treasuries carry the sovereign's standing and need no rating here; the US
+# agencies are rated with the sovereign (AAA by one agency, AA+ by another); supranationals are
+# nearly all AAA or AA+; high-grade municipals AAA to A; corporates AA to BBB (AAA corporates are a
+# handful of issuers); commercial paper, CDs and deposits carry short-term ratings (A-3 paper is rare).
+SECTOR_RATINGS: dict[str, tuple[str, ...]] = {
+    "treasury": ("",), "agency": ("AAA", "AA+"), "supranational": ("AAA", "AA+"),
+    "municipal": ("AAA", "AA", "A"), "corporate": ("AA", "A", "BBB"),
+    "commercial_paper": ("A-1+", "A-1", "A-2"), "cd": ("A-1+", "A-1", "A-2"), "deposit": ("A-1+", "A-1", "A-2"),
+}
 BILL_MONTHS = 12               # a generic Treasury maturing within a year is a bill (discount)
 SHORTEST_DAYS = 28             # the shortest generic maturity (a four-week bill)
 
@@ -54,9 +69,9 @@ class Candidates:
     holdings: Holdings
     available: np.ndarray   # (n,) face that can be bought, inf when unlimited
     min_lot: np.ndarray     # (n,) face
-    lot: np.ndarray         # (n,) face increment; funds are bought in any amount (lot 0.01)
+    lot: np.ndarray         # (n,) face increment; funds are bought in any amount from min_lot (lot 0.01)
     generic: np.ndarray     # (n,) bool
-    source: str             # the offerings file, or "generic (curve + spread table)"
+    source: str             # the offerings file, or GENERIC_SOURCE
     left_out: tuple[tuple[str, int], ...] = ()   # (reason, count) of candidates the policy rules out
 
     def __len__(self) -> int:
@@ -84,10 +99,10 @@ def _face_numbers(texts: list[str]) -> tuple[np.ndarray, list[int]]:
     values, bad = [], []
     for i, text in enumerate(texts):
         try:
-            value = float(text.replace(",", "")) if text.strip() else np.nan
+            value = parse_number(text) if text.strip() else np.nan
         except ValueError:
             value = np.nan
-        if not np.isfinite(value) or value <= 0:
+        if not np.isfinite(value) or not 0 < value <= MAX_FACE:
             bad.append(i)
         values.append(value)
     return np.array(values, dtype=np.float64), bad
@@ -111,7 +126,8 @@ def read_offerings(path, book: Book) -> Candidates:
     for name in OFFERING_COLUMNS:
         numbers[name], bad = _face_numbers(extras[name])
         for i in bad:
-            problems.add(label, int(h.row[i]), col[name], f"{name} {extras[name][i]!r} is not a positive face amount")
+            problems.add(label, int(h.row[i]), col[name], f"{name} {extras[name][i]!r} is not a positive face amount "
+                                                             f"of at most {MAX_FACE:,.0f}")
     held = set(book.holdings.id)
     for i in range(len(h)):
         row = int(h.row[i])
@@ -166,7 +182,7 @@ def unique_ids(ids, taken) -> list[str]:
 
 
 def generic_candidates(book: Book, rungs: Rungs, settle: dt.date) -> Candidates:
-    """One generic security per rung, authorized sector and spread-table bucket (see module docstring)."""
+    """One generic security per rung, authorized sector and rating of the sector (see module docstring)."""
     policy = book.policy
     settle64 = np.datetime64(settle, "D")
     rows: dict[str, list] = {k: [] for k in ("id", "sector", "issuer", "kind", "maturity", "rating", "short_rating",
@@ -178,8 +194,8 @@ def generic_candidates(book: Book, rungs: Rungs, settle: dt.date) -> Candidates:
         rule = policy.sector(sector)
         limit = rule.max_maturity if rule is not None else None
         latest = settle64 + limit.days(settle64) if limit is not None else None
-        for bucket in book.spreads.get(sector, {}):
-            long_, short = (bucket, "") if bucket in LONG_BUCKETS else ("", "" if bucket == "default" else bucket)
+        for rating in SECTOR_RATINGS.get(sector, ()):
+            long_, short = ("", rating) if rating in SHORT_SYMBOLS else (rating, "")
             terms = [(end, label, months, start) for start, end, label, months in
                      zip(starts, rungs.ends, rungs.labels, rungs.months)]
             terms += [(end, label, 0, settle64) for end, label in floor_terms]
@@ -189,9 +205,9 @@ def generic_candidates(book: Book, rungs: Rungs, settle: dt.date) -> Candidates:
                     continue
                 bill = sector == "treasury" and months <= BILL_MONTHS
                 kind = "discount" if bill else ""
-                rows["id"].append(f"{GENERIC_PREFIX}{sector}-{bucket}-{label}")
+                rows["id"].append(f"{GENERIC_PREFIX}{sector}-{rating or 'gov'}-{label}")
                 rows["sector"].append(sector)
-                rows["issuer"].append(f"generic {sector} {bucket} issuer, {'rung ' if months else ''}{label}")
+                rows["issuer"].append(f"generic {sector}{' ' + rating if rating else ''} issuer")
                 rows["kind"].append(kind)
                 rows["maturity"].append(maturity)
                 rows["rating"].append(long_)
@@ -200,12 +216,26 @@ def generic_candidates(book: Book, rungs: Rungs, settle: dt.date) -> Candidates:
                 rows["frequency"].append(-1)
     n = len(rows["id"])
     rows["id"] = unique_ids(rows["id"], book.holdings.id)
-    h = make_holdings(**rows, face=np.full(n, GENERIC_LOT))
+    ticket = book.build
+    h = make_holdings(**rows, face=np.full(n, ticket.min_ticket))
+    spread_bp = table_spreads_bp(h, book.spreads, settle64)
+    priced = np.isfinite(spread_bp)
+    h, spread_bp = h.take(priced), spread_bp[priced]
     curve = bootstrap(book.curve, np.datetime64(book.valuation_date))
-    spread_bp = table_spreads_bp(h, book.spreads)
     h = replace(h, coupon=_par_coupons(h, curve, settle64, spread_bp))
-    return Candidates(h, np.full(n, np.inf), np.full(n, GENERIC_LOT), np.full(n, GENERIC_LOT), np.ones(n, bool),
-                      "generic (curve + spread table)")
+    m = len(h)
+    left = (("no spread in book.toml [spreads] for the sector and rating", n - m),) if m < n else ()
+    return Candidates(h, np.full(m, np.inf), np.full(m, ticket.min_ticket), np.full(m, ticket.lot), np.ones(m, bool),
+                      GENERIC_SOURCE, left)
+
+
+def with_tickets(c: Candidates, ticket: BuildSettings) -> Candidates:
+    """``c`` with every security bought in at least the minimum ticket: its ``min_lot`` raised to the
+    ticket rounded up to its own increments (funds unchanged)."""
+    fund = c.fund
+    steps = np.where(fund, 1.0, c.lot)
+    raised = np.maximum(c.min_lot, np.ceil(ticket.min_ticket / steps - 1e-9) * steps)
+    return replace(c, min_lot=np.where(fund, c.min_lot, raised))
 
 
 def fund_candidates(book: Book, settle: dt.date) -> Candidates:

@@ -1,6 +1,6 @@
 """The naive even ladder, the yardstick for the optimizer: the cash split equally among the rungs,
-each rung's share split equally among every candidate maturing in it, each rounded down to whole
-lots (a share below a candidate's minimum lot buys none of it), and the rest in the first fund."""
+each rung's share split equally among the candidates maturing in it (as many of them, in order, as
+the share buys a minimum lot of each), each rounded down to whole lots, and the rest in the first fund."""
 
 from __future__ import annotations
 
@@ -22,7 +22,10 @@ def naive_ladder(p: Program, rungs: Rungs) -> np.ndarray:
         members = np.flatnonzero(buy & ~fund & (rung == k))
         if not len(members):
             continue
-        each = p.cash / len(rungs) / len(members)
+        share = p.cash / len(rungs)
+        smallest = cost[members] * np.maximum(p.lb[members], 1)
+        members = members[:max(1, int(share // smallest.max()))]
+        each = share / len(members)
         lots = np.minimum(np.floor(each / cost[members]), p.ub[members])
         lots = np.where(lots >= np.maximum(p.lb[members], 1), lots, 0.0)
         x[members] = lots

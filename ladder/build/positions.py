@@ -21,7 +21,7 @@ class Positions:
     holdings: Holdings
     mv: np.ndarray          # dirty price per unit face (a fund: 1)
     book: np.ndarray        # book value per unit face (a purchase: its clean price)
-    yld: np.ndarray         # expected yield, decimal: yield to worst for callables, else bond-equivalent
+    yld: np.ndarray         # yield to worst, decimal (``Valuation.yield_to_worst``): to worst for callables, else to maturity
     duration: np.ndarray    # effective duration, years
     days: np.ndarray        # calendar days to final maturity (a fund: 1)
     flows: np.ndarray       # (n, months) principal + coupons per unit face in each coverage month

@@ -12,10 +12,11 @@ faces f, "group G is at most p% of the portfolio" is sum (100 [p in G] - p) W f 
 effective duration is at most D" is sum (d - D) W f <= 0, and a floor flips the sign. Existing
 holdings enter with their face (a constant) unless the build is ``fresh``.
 
-Under at-purchase testing (``policy.testing = "at_purchase"``) a share or average already past its
-limit before the trades may stay there but must not get worse (the what-if check calls a worsened
-violation a breach): its row uses the current value as the limit. Cash-needs coverage, maturities
-and ratings hold in every mode; maturities, ratings and authorized sectors are met by choosing only
+Under at-purchase testing (the rule's ``testing``, ``ladder.policy.rules``) a share or average already
+past its limit before the trades may stay there but must not get worse (the what-if check calls a
+worsened violation a breach): its row uses the current value as the limit. Rules tested continuously
+(by default liquidity floors, duration and WAM) hold as stated. Cash-needs coverage, maturities and
+ratings hold in every mode; issuer limits hold per issuer family unless the rule says ``per = "issuer"``; maturities, ratings and authorized sectors are met by choosing only
 eligible candidates (``ladder.build.candidates.eligible``).
 
 Each limit is tightened by a tiny margin (``MARGIN``) so that the solver's feasibility tolerance
@@ -32,19 +33,22 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ladder.book.cash_needs import CashNeeds
+from ladder.book.families import Families
 from ladder.build.candidates import Candidates
 from ladder.build.positions import Positions
 from ladder.build.rungs import Rungs
 from ladder.policy.measures import coverage_start
 from ladder.policy.model import Policy, issuer_key
+from ladder.policy.rules import compile_rules
 
 SELL_UNIT = 1_000.0          # face: sales in whole thousands (common practice: minimum denomination)
 RUNG_BAND = (0.5, 1.5)       # each rung between half and one and a half times the even share
-MARGIN = {"pct": 1e-7, "years": 1e-8, "days": 1e-6, "currency": 0.01, "buys_pct": 1e-7}
+MARGIN = {"pct": 1e-5, "years": 1e-8, "days": 1e-6, "currency": 0.01, "buys_pct": 1e-7}
 # How a row's right-hand side moves when its limit moves by one unit (for the cost of a limit):
 SENS_TOTAL, SENS_BUYS, SENS_ONE = "total", "buys", "one"
 BUDGET = "budget"
 RUNG_GROUP = "rung shares"
+PER_WORDS = {"family": "issuer family", "issuer": "issuer"}
 
 
 @dataclass(frozen=True, eq=False)
@@ -135,9 +139,10 @@ def _variables(pos: Positions, cands: Candidates, n_existing: int, cash: float, 
 
 def build_program(policy: Policy, cash_needs: CashNeeds | None, settle, rungs: Rungs, existing: Positions,
                   candidates: Candidates, cand_pos: Positions, cash: float, allow_sales: bool = False,
-                  fresh: bool = False, rung_band: tuple[float, float] = RUNG_BAND) -> Program:
+                  fresh: bool = False, rung_band: tuple[float, float] = RUNG_BAND,
+                  families: Families = Families.none()) -> Program:
     """The program for buying ``candidates`` (valued in ``cand_pos``) with ``cash`` on top of
-    ``existing`` (ignored when ``fresh``)."""
+    ``existing`` (ignored when ``fresh``); ``families`` groups issuers for issuer limits."""
     if fresh:
         existing = existing.take(np.zeros(len(existing), bool))
         allow_sales = False
@@ -146,7 +151,7 @@ def build_program(policy: Policy, cash_needs: CashNeeds | None, settle, rungs: R
     face0 = np.concatenate([existing.holdings.face, np.zeros(len(cand_pos))])
     var_pos, var_unit, var_sign, lb, ub, integ, offered = _variables(pos, candidates, n_e, cash, allow_sales, face0)
     r = _Rows(pos, face0, var_pos, var_unit, var_sign)
-    _policy_rows(r, policy, cash_needs, settle, allow_sales)
+    _policy_rows(r, policy, cash_needs, settle, allow_sales, families)
     _rung_rows(r, rungs, rung_band)
     has_fund = bool(np.any(pos.fund[var_pos] & (var_sign > 0) & (ub > 0)))
     r.add(BUDGET, "", "currency", cash, pos.mv, cash, SENS_ONE, scope="traded", eq=has_fund)
@@ -165,35 +170,47 @@ def _touched(r: _Rows, mask: np.ndarray, allow_sales: bool) -> bool:
     return allow_sales or bool(np.any(mask[r.var_pos] & (r.var_sign > 0)))
 
 
-def _policy_rows(r: _Rows, policy: Policy, cash_needs: CashNeeds | None, settle, allow_sales: bool) -> None:
+def _policy_rows(r: _Rows, policy: Policy, cash_needs: CashNeeds | None, settle, allow_sales: bool,
+                 families: Families) -> None:
     pos = r.pos
     W = pos.basis(policy.basis)
     total0 = r.value(W)
-    lenient = policy.testing == "at_purchase"
+    rules = {rule.key: rule for rule in compile_rules(policy)}
+
+    def lenient(key) -> bool:
+        return rules[key].testing == "at_purchase"
 
     def share_cap(key, text, limit, mask, label=""):
         if not _touched(r, mask, allow_sales):
             return
         now = 100.0 * r.value(W * mask) / total0 if total0 > 0 else 0.0
-        eff = max(limit, now) if lenient else limit
+        eff = max(limit, now) if lenient(key) else limit
         r.add(key, label, "pct", limit, (100.0 * mask - (eff - MARGIN["pct"])) * W)
         r.text.setdefault(key, text)
 
     def share_floor(key, text, limit, mask, label=""):
         now = 100.0 * r.value(W * mask) / total0 if total0 > 0 else limit
-        eff = min(limit, now) if lenient else limit
+        eff = min(limit, now) if lenient(key) else limit
         r.add(key, label, "pct", limit, ((eff + MARGIN["pct"]) - 100.0 * mask) * W)
         r.text.setdefault(key, text)
 
     def average_cap(key, text, limit, values, unit):
         now = r.value(W * values) / total0 if total0 > 0 else 0.0
-        eff = max(limit, now) if lenient else limit
+        eff = max(limit, now) if lenient(key) else limit
         r.add(key, "", unit, limit, (values - (eff - MARGIN[unit])) * W)
         r.text[key] = text
 
     pf = policy.portfolio
     sector = pos.holdings.sector
     keys = pos.issuer_keys
+    family_names = families.families(pos.holdings.issuer)
+    family_keys = np.array([issuer_key(x) for x in family_names], dtype=object)
+
+    def groups(key):
+        """Each position's group under issuer limit ``key`` (family or issuer key), and a display name."""
+        if rules[key].per == "family":
+            return family_keys, lambda k: _family_display(pos, family_keys, family_names, k)
+        return keys, lambda k: _display(pos, keys, k)
     if pf.max_effective_duration is not None:
         average_cap("portfolio.max_effective_duration", f"effective duration at most {pf.max_effective_duration:g} "
                     "years", pf.max_effective_duration, pos.duration, "years")
@@ -201,12 +218,14 @@ def _policy_rows(r: _Rows, policy: Policy, cash_needs: CashNeeds | None, settle,
         average_cap("portfolio.max_wam_days", f"WAM at most {pf.max_wam_days:g} days", pf.max_wam_days,
                     pos.days.astype(float), "days")
     if pf.issuer_max_pct is not None:
+        key = "portfolio.issuer_max_pct"
+        group, display = groups(key)
         exempt = [s.name for s in policy.sectors if s.issuer_cap_exempt]
         named = [issuer_key(i.name) for i in policy.issuers]
-        scope = ~np.isin(sector, exempt) & ~np.isin(keys, named)
-        for name in np.unique(keys[scope]):
-            share_cap("portfolio.issuer_max_pct", f"no issuer above {pf.issuer_max_pct:g}%", pf.issuer_max_pct,
-                      scope & (keys == name), _display(pos, keys, name))
+        scope = ~np.isin(sector, exempt) & ~np.isin(group, group[np.isin(keys, named)])
+        for name in np.unique(group[scope]):
+            share_cap(key, f"no {PER_WORDS[rules[key].per]} above {pf.issuer_max_pct:g}%", pf.issuer_max_pct,
+                      scope & (group == name), display(name))
     if pf.callable_max_pct is not None:
         share_cap("portfolio.callable_max_pct", f"callables at most {pf.callable_max_pct:g}%", pf.callable_max_pct,
                   pos.holdings.callable)
@@ -225,20 +244,31 @@ def _policy_rows(r: _Rows, policy: Policy, cash_needs: CashNeeds | None, settle,
         if s.min_pct is not None:
             share_floor(s.key("min_pct"), f"{s.name} at least {s.min_pct:g}%", s.min_pct, here, s.name)
         if s.issuer_max_pct is not None:
-            for name in np.unique(keys[here]):
-                share_cap(s.key("issuer_max_pct"), f"no issuer above {s.issuer_max_pct:g}% in {s.name}",
-                          s.issuer_max_pct, here & (keys == name), _display(pos, keys, name))
+            key = s.key("issuer_max_pct")
+            group, display = groups(key)
+            for name in np.unique(group[here]):
+                share_cap(key, f"no {PER_WORDS[rules[key].per]} above {s.issuer_max_pct:g}% in {s.name}",
+                          s.issuer_max_pct, here & (group == name), display(name))
         if s.callable_max_pct is not None:
             share_cap(s.key("callable_max_pct"), f"callable {s.name} at most {s.callable_max_pct:g}%",
                       s.callable_max_pct, here & pos.holdings.callable, s.name)
     for i in policy.issuers:
         if i.max_pct is not None:
-            mask = keys == issuer_key(i.name)
+            group, _ = groups(i.key("max_pct"))
+            mask = np.isin(group, group[keys == issuer_key(i.name)])
             share_cap(i.key("max_pct"), f"{i.name} at most {i.max_pct:g}%", i.max_pct, mask, i.name)
 
 
 def _display(pos: Positions, keys: np.ndarray, key: str) -> str:
     return str(pos.holdings.issuer[np.flatnonzero(keys == key)[0]])
+
+
+def _family_display(pos: Positions, family_keys: np.ndarray, family_names: np.ndarray, key: str) -> str:
+    """The family's name, with its members among the positions: "Parent (family: A, B)"."""
+    inside = family_keys == key
+    name = str(family_names[np.flatnonzero(inside)[0]])
+    members = sorted(set(map(str, pos.holdings.issuer[inside])))
+    return name if members == [name] else f"{name} (family: {', '.join(members)})"
 
 
 def _coverage_rows(r: _Rows, horizon: int, cash_needs: CashNeeds, settle) -> None:

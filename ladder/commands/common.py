@@ -3,7 +3,9 @@
 from __future__ import annotations
 
 import argparse
+import contextlib
 import datetime as dt
+from pathlib import Path
 
 
 def iso_date(text: str) -> dt.date:
@@ -19,3 +21,13 @@ def add_book(parser: argparse.ArgumentParser, formats=("table", "json", "csv")) 
     parser.add_argument("--at", type=iso_date, metavar="YYYY-MM-DD",
                         help="settlement date (default: the book's valuation date)")
     parser.add_argument("--format", choices=formats, default="table", help="output format (default: table)")
+
+
+def writing(book: str, command: str):
+    """The book's lock (``ladder.folder.lock.book_lock``) for a command that changes the book, held
+    from loading it to the commit; no lock when there is no such folder (loading it says why)."""
+    from ladder.folder.lock import book_lock
+
+    folder = Path(book)
+    folder = folder.parent if folder.is_file() else folder
+    return book_lock(folder, command) if folder.is_dir() else contextlib.nullcontext()

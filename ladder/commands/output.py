@@ -1,4 +1,9 @@
-"""Writing results: rich tables for people, json and csv for programs; spreadsheet-safe csv cells."""
+"""Writing results: rich tables for people, json and csv for programs; spreadsheet-safe csv cells.
+
+Everything the console prints passes ``safe_terminal`` (no control character reaches the terminal);
+text that came from an input file is also given to rich through ``term`` so that brackets in it are
+shown, not read as rich markup.
+"""
 
 from __future__ import annotations
 
@@ -8,8 +13,7 @@ import json
 import sys
 
 from ladder import CAUTION
-from ladder.neutralize import safe_cell
-
+from ladder.neutralize import safe_cell, safe_terminal
 
 
 def write_json(document, out=None) -> None:
@@ -31,9 +35,21 @@ def write_csv(records: list[dict], out=None) -> None:
 
 
 def console():
+    """A rich console that removes control characters from every text it renders."""
     from rich.console import Console
 
-    return Console()
+    class TerminalConsole(Console):
+        def render_str(self, text: str, **options):
+            return super().render_str(safe_terminal(text), **options)
+
+    return TerminalConsole()
+
+
+def term(text) -> str:
+    """Text from an input file (an id, an issuer, a name) for a rich table or markup line."""
+    from rich.markup import escape
+
+    return escape(safe_terminal(text))
 
 
 def print_caution(con) -> None:

@@ -36,9 +36,18 @@ def _past(args, folder: Path):
     return past_report(folder, args.at), snapshot
 
 
+def _refuse_out(out: Path) -> None:
+    """--out must be a folder (or not exist yet): checked before anything is computed or recorded."""
+    if out.exists() and not out.is_dir():
+        raise InputError([Problem(str(out), 0, 0, "--out names a file; name a folder for the report files")])
+
+
 def run(args) -> int:
     folder = Path(args.book)
+    out = args.out or folder / "reports"
+    _refuse_out(out)
     con = console()
+    m = None
     if args.reproduce:
         report, snapshot = _past(args, folder)
         con.print(f"Recorded {snapshot.recorded}; inputs: "
@@ -48,13 +57,20 @@ def run(args) -> int:
         with con.status("Valuing, testing the policy, shocking rates and planning cash for the month-end..."):
             m = month_end_report(book, args.at)
         report = m.report
-        if not args.no_record:
-            con.print(f"Recorded the month-end {report.as_of} in {record_month_end(book, m)}")
-        activity = len(report.section("activity").tables[0].rows)
-        con.print(f"Activity: {activity} entr{'y' if activity == 1 else 'ies'} from {journal_path(book).name}")
-    out = args.out or folder / "reports"
+        rows = report.section("activity").tables[0].column("source")
+        journaled = sum(s != "holdings" for s in rows)
+        r = m.roll_forward
+        con.print(f"Activity: {journaled} entr{'y' if journaled == 1 else 'ies'} from {journal_path(book).name}"
+                  f" ({len(r.unexplained_entries)} unexplained), {len(rows) - journaled} purchase(s) taken from "
+                  "the holdings")
+        tied = abs(r.unexplained) < 0.005 and abs(r.unexplained_market_value) < 0.005
+        con.print("Roll-forward from the last month-end: " + ("ties to the cent." if tied else
+                  f"does NOT tie: unexplained {r.unexplained:,.2f} of amortized cost, "
+                  f"{r.unexplained_market_value:,.2f} of market value (shown in the report)."))
     for fmt in (FORMATS if args.format == "all" else (args.format,)):
         for path in write_report(report, out, fmt, folder.resolve().name):
             con.print(f"Wrote {path}")
+    if m is not None and not args.no_record:     # only once every file of the report is written
+        con.print(f"Recorded the month-end {report.as_of} in {record_month_end(book, m)}")
     print_caution(con)
     return 0

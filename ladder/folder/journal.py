@@ -1,9 +1,10 @@
 """The activity journal of a book: every change made through the tool, appended, never edited.
 
 ``journal.jsonl`` in the book folder holds one JSON object a line (date, action, holding id, face,
-amount, price, reason, recorded). Lines are only ever added: an append rewrites the file through
-``write_atomic`` with the previous text kept byte for byte in front of the new lines, so a failure
-midway leaves the journal as it was. Money in currency units, prices clean per 100 face.
+amount, price, reason, recorded, book value). Lines are only ever added, by a book transaction
+(``ladder.folder.transaction.commit``) together with the files they explain: the new lines are
+appended after the previous bytes, never rewriting them. Money in currency units, prices clean per
+100 face.
 """
 
 from __future__ import annotations
@@ -11,22 +12,24 @@ from __future__ import annotations
 import datetime as dt
 import json
 import math
-import os
 from dataclasses import asdict, dataclass
 from pathlib import Path
 
-from ladder.folder.save import write_atomic
 from ladder.errors import Problems
 
 JOURNAL_FILE = "journal.jsonl"
-ACTIONS = ("buy", "sell", "mature", "call", "add", "remove", "change", "note")
+ACTIONS = ("buy", "sell", "mature", "call", "coupon", "dividend", "deposit", "withdraw", "add", "remove", "change",
+           "note", "restore")
 
 
 @dataclass(frozen=True)
 class JournalEntry:
-    """One change: ``date`` it took effect, ``action`` (one of ACTIONS), the holding it touched,
-    ``face`` (currency units, NaN if none), ``amount`` (cash in (+) or out (-), currency units, NaN if
-    none), ``price`` (clean per 100, NaN if none), ``reason`` in words and when it was ``recorded``."""
+    """One change: ``date`` it took effect (settlement), ``action`` (one of ACTIONS), the holding it
+    touched, ``face`` (currency units, NaN if none), ``amount`` (cash into (+) or out of (-) the book's
+    cash account, currency units, NaN if none), ``price`` (clean per 100, NaN if none), ``reason`` in words,
+    when it was ``recorded``, and ``book_value`` (amortized cost of what left or arrived on ``date``,
+    currency units: for a sale, maturity or call the realized gain is ``amount`` less accrued less
+    ``book_value``; NaN if none)."""
 
     date: dt.date
     action: str
@@ -36,11 +39,12 @@ class JournalEntry:
     price: float = math.nan
     reason: str = ""
     recorded: str = ""
+    book_value: float = math.nan
 
     def to_json(self) -> dict:
         out = asdict(self)
         out["date"] = self.date.isoformat()
-        for key in ("face", "amount", "price"):
+        for key in ("face", "amount", "price", "book_value"):
             out[key] = None if not math.isfinite(out[key]) else out[key]
         return out
 
@@ -68,59 +72,43 @@ def read_journal(book_or_folder) -> tuple[JournalEntry, ...]:
             entries.append(JournalEntry(dt.date.fromisoformat(data["date"]), str(data["action"]),
                                         str(data.get("holding", "")), _number(data.get("face")),
                                         _number(data.get("amount")), _number(data.get("price")),
-                                        str(data.get("reason", "")), str(data.get("recorded", ""))))
+                                        str(data.get("reason", "")), str(data.get("recorded", "")),
+                                        _number(data.get("book_value"))))
         except (ValueError, KeyError, TypeError) as error:
             problems.add(str(path), line_no, 1, f"not a journal entry: {error}")
     problems.raise_if_any()
     return tuple(entries)
 
 
-def _validate(entries, path: Path) -> None:
+def _validate(entries, label: str) -> None:
     problems = Problems()
     for i, e in enumerate(entries, start=1):
         if e.action not in ACTIONS:
-            problems.add(str(path), 0, 0, f"new entry {i}: action {e.action!r} is not one of {', '.join(ACTIONS)}")
+            problems.add(label, 0, 0, f"new entry {i}: action {e.action!r} is not one of {', '.join(ACTIONS)}")
         if not isinstance(e.date, dt.date):
-            problems.add(str(path), 0, 0, f"new entry {i}: date {e.date!r} is not a date")
+            problems.add(label, 0, 0, f"new entry {i}: date {e.date!r} is not a date")
     problems.raise_if_any()
 
 
-def append_journal(book_or_folder, entries) -> tuple[JournalEntry, ...]:
-    """Append ``entries`` (JournalEntry) to the book's journal; returns them as recorded (with the
-    UTC time of recording filled in where it was empty). The previous lines are left untouched."""
-    path = journal_path(book_or_folder)
+def journal_lines(entries) -> tuple[tuple[JournalEntry, ...], bytes]:
+    """``entries`` checked (InputError) and as recorded (the UTC time of recording filled in where it
+    was empty), and their lines as the journal's bytes."""
     entries = tuple(entries)
-    _validate(entries, path)
+    _validate(entries, JOURNAL_FILE)
     now = dt.datetime.now(dt.timezone.utc).isoformat(timespec="seconds")
     recorded = tuple(e if e.recorded else JournalEntry(**{**asdict(e), "recorded": now}) for e in entries)
-    old = path.read_text(encoding="utf-8") if path.exists() else ""
-    if old and not old.endswith("\n"):
-        old += "\n"
-    new = "".join(json.dumps(e.to_json(), allow_nan=False) + "\n" for e in recorded)
-    write_atomic(path, old + new)
-    return recorded
+    text = "".join(json.dumps(e.to_json(), allow_nan=False) + "\n" for e in recorded)
+    return recorded, text.encode("utf-8")
+
+
+def append_journal(book_or_folder, entries, reason: str = "journal entries") -> tuple[JournalEntry, ...]:
+    """Append ``entries`` (JournalEntry) to the book's journal (a transaction with no file replaced);
+    returns them as recorded. The previous lines are left untouched."""
+    from ladder.folder.transaction import commit   # the transaction writes journal lines made here
+
+    return commit(book_or_folder, {}, entries, reason).entries
 
 
 def entries_between(entries, start: dt.date | None, end: dt.date) -> tuple[JournalEntry, ...]:
     """The entries dated in (start, end] (every one up to ``end`` when ``start`` is None), in file order."""
     return tuple(e for e in entries if (start is None or e.date > start) and e.date <= end)
-
-
-def save_with_journal(book, holdings, entries) -> Path:
-    """Write ``holdings`` as the book's holdings file and append ``entries`` to its journal.
-
-    The holdings are written first (atomically, the previous file kept as ``.bak``); if the journal
-    cannot be written, the previous holdings file is put back, so the book and its journal never
-    disagree. Returns the holdings file written.
-    """
-    from ladder.folder.save import save_holdings
-
-    path = save_holdings(book, holdings)
-    backup = path.with_name(path.name + ".bak")
-    try:
-        append_journal(book, entries)
-    except BaseException:
-        if backup.exists():
-            os.replace(backup, path)
-        raise
-    return path

@@ -1,23 +1,31 @@
-"""Writing a book's holdings back to its folder: atomically, keeping the previous file as a backup.
+"""The bytes of a book's files as the book reads them, and atomic writes of the tool's output files.
 
-The new file is written to a temporary file in the same folder, flushed to disk, and moved over the
-old one with ``os.replace`` (atomic on POSIX and Windows); the old file is first copied to
-``<name>.bak``. A failure at any point leaves the old file as it was.
+``holdings_change`` and ``curve_change`` give a change's replacements (path -> bytes) for
+``ladder.folder.transaction.commit``: the holdings are written to the file the book reads, in its
+format (a workbook as a workbook with the CSV's columns, anything else as CSV, which is how the
+reader reads it). ``write_atomic`` replaces an output file outside a book (a report, a trades file).
 """
 
 from __future__ import annotations
 
 import csv
+import datetime as dt
 import io
 import os
-import shutil
+import stat
 import tempfile
 from pathlib import Path
 
 import numpy as np
 
-from ladder.book.holdings import QUOTE_DISCOUNT, QUOTE_PRICE, QUOTE_YIELD, Holdings
+from ladder.book.holdings import NOT_NEGOTIABLE, QUOTE_DISCOUNT, QUOTE_PRICE, QUOTE_YIELD, Holdings
 from ladder.book.holdings_file import COLUMNS
+from ladder.errors import InputError, Problem
+from ladder.neutralize import safe_cell
+
+NUMBER_COLUMNS = ("face", "coupon_pct", "frequency", "price", "yield_pct", "discount_rate_pct", "book_price",
+                  "call_frequency", "call_price", "par_yield_pct")
+CURVE_COLUMNS = ("tenor", "par_yield_pct")
 
 
 def _date(value) -> str:
@@ -26,6 +34,12 @@ def _date(value) -> str:
 
 def _number(value, scale: float = 1.0) -> str:
     return "" if not np.isfinite(value) else f"{value * scale:.10g}"
+
+
+def _face(value) -> str:
+    """A face (currency units) to the cent: ten significant digits would drop the cents of a balance of
+    100 million or more."""
+    return "" if not np.isfinite(value) else f"{value:.2f}".rstrip("0").rstrip(".")
 
 
 def holdings_rows(h: Holdings) -> list[dict[str, str]]:
@@ -37,7 +51,7 @@ def holdings_rows(h: Holdings) -> list[dict[str, str]]:
         callable_ = not np.isnat(h.first_call[i])
         row = {
             "id": h.id[i], "sector": h.sector[i], "issuer": h.issuer[i], "kind": h.kind[i],
-            "face": _number(h.face[i]), "maturity_date": _date(h.maturity[i]),
+            "face": _face(h.face[i]), "maturity_date": _date(h.maturity[i]),
             "coupon_pct": _number(h.coupon[i], 100.0) if h.kind[i] in ("fixed", "at_maturity") else "",
             "frequency": str(h.frequency[i]) if h.kind[i] == "fixed" else "",
             "day_count": h.day_count[i], "issue_date": _date(h.issue_date[i]),
@@ -48,6 +62,8 @@ def holdings_rows(h: Holdings) -> list[dict[str, str]]:
             "first_call_date": _date(h.first_call[i]),
             "call_frequency": str(h.call_frequency[i]) if callable_ else "",
             "call_price": _number(h.call_price[i]) if callable_ else "",
+            "negotiable": "" if h.negotiable[i] == (h.sector[i] not in NOT_NEGOTIABLE) else str(bool(h.negotiable[i])).lower(),
+            "price_date": _date(h.price_date[i]),
         }
         if quote:
             row[quote[0]] = _number(h.quote[i], quote[1])
@@ -55,8 +71,9 @@ def holdings_rows(h: Holdings) -> list[dict[str, str]]:
     return rows
 
 
-def write_atomic(path: Path, text: str, backup: bool = True) -> None:
-    """Replace ``path`` with ``text`` atomically; the previous file (if any) is kept as ``path.bak``."""
+def write_atomic(path: Path, text: str) -> None:
+    """Replace the output file ``path`` with ``text`` atomically (temporary file in the same folder,
+    flushed, ``os.replace``); a replaced file keeps its mode, a new one follows the umask."""
     path = Path(path)
     handle, temporary = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
     try:
@@ -64,40 +81,78 @@ def write_atomic(path: Path, text: str, backup: bool = True) -> None:
             out.write(text)
             out.flush()
             os.fsync(out.fileno())
-        if backup and path.exists():
-            shutil.copy2(path, path.with_name(path.name + ".bak"))
+        try:
+            mode = stat.S_IMODE(os.stat(path).st_mode)
+        except FileNotFoundError:
+            umask = os.umask(0)
+            os.umask(umask)
+            mode = 0o666 & ~umask
+        os.chmod(temporary, mode)            # mkstemp makes 0600
         os.replace(temporary, path)
     except BaseException:
         Path(temporary).unlink(missing_ok=True)
         raise
 
 
-def holdings_csv(h: Holdings) -> str:
-    """The text of a ``holdings.csv`` for ``h``."""
-    buffer = io.StringIO()
-    writer = csv.DictWriter(buffer, fieldnames=list(COLUMNS), lineterminator="\n")
-    writer.writeheader()
-    writer.writerows(holdings_rows(h))
+def _workbook(columns, rows: list[dict[str, str]], title: str) -> bytes:
+    """A workbook of one sheet with ``columns`` and the rows' cells: numbers as numbers, dates as dates."""
+    import openpyxl  # only when a workbook book is written
+
+    book = openpyxl.Workbook()
+    sheet = book.active
+    sheet.title = title
+    sheet.append(list(columns))
+    for row in rows:
+        sheet.append([_cell(name, row[name]) for name in columns])
+    buffer = io.BytesIO()
+    book.save(buffer)
     return buffer.getvalue()
 
 
-def save_holdings(book, holdings: Holdings) -> Path:
-    """Write ``holdings`` as the book's holdings file (CSV; an .xlsx book gets a holdings.csv beside it)."""
+def _cell(name: str, text: str):
+    if not text:
+        return None
+    if name.endswith("_date"):
+        return dt.date.fromisoformat(text)
+    return float(text) if name in NUMBER_COLUMNS else text
+
+
+def _refuse_workbook_with_other_sheets(path: Path) -> None:
+    """A workbook whose other sheets a rewrite would lose is left alone (InputError)."""
+    import openpyxl
+
+    if path.exists():
+        book = openpyxl.load_workbook(path, read_only=True)
+        names = book.sheetnames
+        book.close()
+        if len(names) > 1:
+            raise InputError([Problem(str(path), 0, 0, f"the workbook has {len(names)} sheets ({', '.join(names)}); "
+                                      "the tool writes only its first sheet and would lose the others, so "
+                                      "nothing was changed. Keep this table in a workbook of its own.")])
+
+
+def _table_bytes(path: Path, columns, rows: list[dict[str, str]]) -> bytes:
+    """The file of a table in ``path``'s format: a workbook for .xlsx, else CSV (as the reader reads it);
+    text cells through ``safe_cell`` so that no cell is read as a formula."""
+    rows = [{k: safe_cell(v) for k, v in row.items()} for row in rows]
+    if path.suffix.lower() == ".xlsx":
+        _refuse_workbook_with_other_sheets(path)
+        return _workbook(columns, rows, path.stem)
+    buffer = io.StringIO()
+    writer = csv.DictWriter(buffer, fieldnames=list(columns), lineterminator="\n")
+    writer.writeheader()
+    writer.writerows(rows)
+    return buffer.getvalue().encode("utf-8")
+
+
+def holdings_change(book, holdings: Holdings) -> dict[Path, bytes]:
+    """The replacement of the book's holdings file with ``holdings``, in that file's format."""
     target = Path(book.files["holdings"])
-    if target.suffix.lower() != ".csv":
-        target = target.with_suffix(".csv")
-    write_atomic(target, holdings_csv(holdings))
-    return target
+    return {target: _table_bytes(target, COLUMNS, holdings_rows(holdings))}
 
 
-def curve_csv(par_curve) -> str:
-    """The text of a ``curve.csv`` for a par curve (yields in percent)."""
-    lines = ["tenor,par_yield_pct"] + [f"{t},{y * 100:.10g}" for t, y in zip(par_curve.tenors, par_curve.par_yields)]
-    return "\n".join(lines) + "\n"
-
-
-def save_curve(book, par_curve) -> Path:
-    """Write ``par_curve`` as the book's curve file (atomic, previous file kept as ``.bak``)."""
+def curve_change(book, par_curve) -> dict[Path, bytes]:
+    """The replacement of the book's curve file with ``par_curve`` (par yields in percent)."""
     target = Path(book.files["curve"])
-    write_atomic(target, curve_csv(par_curve))
-    return target
+    rows = [{"tenor": t, "par_yield_pct": f"{y * 100:.10g}"} for t, y in zip(par_curve.tenors, par_curve.par_yields)]
+    return {target: _table_bytes(target, CURVE_COLUMNS, rows)}

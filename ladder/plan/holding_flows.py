@@ -25,7 +25,8 @@ class HoldingCash:
     ``coupon``, ``principal`` (n, P): cash received; ``called`` (n, P): the part of ``principal``
     repaid by a call; ``income`` (n, P): interest earned (accrual basis); ``cost``, ``accrued``
     (n, P+1): clean amortized cost and accrued interest per 100 at each period boundary (0 once
-    repaid); ``end_date`` (n,): the accrual date of the final repayment (maturity or call).
+    repaid); ``end_date`` (n,): the accrual date of the final repayment (maturity or call);
+    ``flows``: the workout flows per 100 (to the expected call or maturity) that price a sale.
     """
 
     coupon: np.ndarray
@@ -35,6 +36,7 @@ class HoldingCash:
     cost: np.ndarray
     accrued: np.ndarray
     end_date: np.ndarray
+    flows: CashFlows
 
 
 def holding_cash(h: Holdings, cf: CashFlows, periods: Periods, amortization: Amortization) -> HoldingCash:
@@ -60,4 +62,5 @@ def holding_cash(h: Holdings, cf: CashFlows, periods: Periods, amortization: Amo
         coupon=bucket(work.coupon), principal=bucket(work.principal),
         called=bucket(np.where(is_call, work.principal, 0.0)), income=earned.total * face,
         cost=np.nan_to_num(amortization.cost(periods.boundaries)),
-        accrued=np.nan_to_num(amortization.accrued(periods.boundaries)), end_date=amortization.end_date)
+        accrued=np.nan_to_num(amortization.accrued(periods.boundaries)), end_date=amortization.end_date,
+        flows=work)

@@ -7,12 +7,15 @@ Rules (``book.toml`` ``[reinvest].rule``, overridden by ``--reinvest``):
   The tenor is cut back to the longest within the policy's maximum maturity when it is longer (whole
   months up to a year, whole half-years beyond); a book of funds alone buys 3M;
 - ``target_tenor``: buy at ``target_tenor``; a tenor beyond the policy's maximum maturity is refused;
-- ``fund``: hold it in the fund sector (the cash stays in the fund and earns its yield).
+- ``fund``: hold it in the fund sector (the cash stays in the fund and earns its yield);
+- ``match_needs`` (the default): maturities placed to arrive by the cash needs the ladder does not
+  already cover, the rest at the ``longest_rung`` tenor (``ladder.plan.matching``); its menu is
+  ``MENU_MONTHS`` and the long-end tenor, each within the policy's maximum maturity for the sector.
 The bought security is a par security of ``sector`` (default: treasury) bought at 100, priced on the
 scenario's curve at that sector's spread (``ladder.plan.rates.RatePath.purchase_terms``). The spread
 is the face-weighted average spread of the book's own (non-callable) holdings of that sector as the
 valuation found it (the z-spread solved from a quote, or the ``[spreads]`` table); when the book
-holds none, the sector's ``[spreads]`` entry (``default``, else the first bucket given); for
+holds none, the sector's ``[spreads]`` entry (``default``, else the first bucket given) at the bought tenor; for
 Treasuries with neither, 0 (the curve is the government curve). ``spread_bp`` is NaN until
 ``with_spread`` fills it from the valuation.
 """
@@ -34,6 +37,7 @@ from ladder.plan.rates import SINGLE_PAYMENT_MAX_MONTHS
 from ladder.risk.rungs import RUNG_END_MONTHS, rung_index
 
 DEFAULT_SECTOR = "treasury"
+MENU_MONTHS = (1, 3, 6, 9, 12, 24, 36)   # bills up to a year, then 2Y and 3Y notes (common practice)
 
 
 @dataclass(frozen=True)
@@ -47,6 +51,12 @@ class Reinvestment:
     spread_bp: float
     buffer: float
     note: str = ""
+    tenors: tuple[int, ...] = ()
+
+    @property
+    def menu(self) -> tuple[int, ...]:
+        """Every tenor (months) the rule may buy: the menu for ``match_needs``, else its one tenor."""
+        return self.tenors if self.tenors else ((self.months,) if self.months else ())
 
     @property
     def tenor(self) -> str:
@@ -87,10 +97,11 @@ def _cut_to(months: int, limit_days: int, as_of: dt.date) -> int:
     return max(fits, default=1)
 
 
-def sector_spread_bp(book: Book, sector: str, spreads: np.ndarray) -> float | None:
+def sector_spread_bp(book: Book, sector: str, spreads: np.ndarray, months: int) -> float | None:
     """The bought sector's spread in bp (see the module docstring), None if there is none.
 
-    ``spreads`` (n,) decimal: each holding's spread from the valuation (z-spread or, from the table).
+    ``spreads`` (n,) decimal: each holding's spread from the valuation (z-spread or, from the table);
+    ``months`` the bought tenor, where the table's curve is read.
     """
     h = book.holdings
     rows = (h.sector == sector) & (h.kind != "fund") & ~h.callable & np.isfinite(spreads)
@@ -99,7 +110,7 @@ def sector_spread_bp(book: Book, sector: str, spreads: np.ndarray) -> float | No
     table = book.spreads.get(sector, {})
     for bucket in ("default", *SPREAD_BUCKETS):
         if bucket in table:
-            return float(table[bucket])
+            return float(table[bucket].at(months / 12.0))
     return 0.0 if sector == "treasury" else None
 
 
@@ -153,7 +164,11 @@ def resolve_reinvestment(book: Book, as_of: dt.date, rule: str | None = None, te
                     f"of {limit_rule.describe()} ({limit_rule.key}); buying {tenor_label(cut)} instead")
             months = cut
     problems.raise_if_any()
-    return Reinvestment(rule, months, sector, float("nan"), buffer, note)
+    tenors = ()
+    if rule == "match_needs":
+        tenors = tuple(sorted({m for m in MENU_MONTHS if m < months and (limit is None or _tenor_days(as_of, m) <= limit)}
+                              | {months}))
+    return Reinvestment(rule, months, sector, float("nan"), buffer, note, tenors)
 
 
 def with_spread(reinvestment: Reinvestment, book: Book, spreads: np.ndarray) -> Reinvestment:
@@ -161,7 +176,7 @@ def with_spread(reinvestment: Reinvestment, book: Book, spreads: np.ndarray) -> 
     raises ``InputError`` when the sector has none."""
     if reinvestment.rule == "fund":
         return replace(reinvestment, spread_bp=0.0)
-    spread = sector_spread_bp(book, reinvestment.sector, spreads)
+    spread = sector_spread_bp(book, reinvestment.sector, spreads, reinvestment.months)
     if spread is None:
         problems = Problems()
         problems.add(str(book.folder / "book.toml"), 0, 0,

@@ -24,24 +24,26 @@ from ladder.market.dates import days_between, to_days
 from ladder.plan.rates import RatePath
 from ladder.pricing.callable import HullWhiteParams, callable_prices
 from ladder.pricing.callable_terms import call_terms
-from ladder.pricing.cashflows import cash_flows
+from ladder.pricing.cashflows import CashFlows, cash_flows
+from ladder.pricing.quotes import cf_rows
 
 
 def holdings_value(h: Holdings, face: np.ndarray, end_date: np.ndarray, spread: np.ndarray, path: RatePath,
-                   at, params: HullWhiteParams, source: str = "holdings.csv") -> float:
+                   at, params: HullWhiteParams, source: str = "holdings.csv", flows: CashFlows | None = None) -> float:
     """Dirty value on ``at`` of ``face`` (n,) of each holding still running then (``end_date`` after
-    ``at``), at ``spread`` (n,) decimal; callables on the tree fitted to the curve seen on ``at``."""
+    ``at``), at ``spread`` (n,) decimal; callables on the tree fitted to the curve seen on ``at``.
+    ``flows``: the cash-flow matrix of every holding of ``h`` settled on ``at``, if already built."""
     at = np.datetime64(at, "D")
     rows = np.flatnonzero((face > 0) & (to_days(end_date) > at) & (h.kind != "fund"))
     if not len(rows):
         return 0.0
     sub = h.take(rows)
-    cf = cash_flows(sub, at)
+    cf = cash_flows(sub, at) if flows is None else cf_rows(flows, rows)
     df = path.discount(at, np.where(cf.mask, cf.years, 0.0)) * np.exp(-spread[rows, None] * cf.years)
     dirty = np.where(cf.mask, cf.amount * df, 0.0).sum(axis=1)
     tree = np.flatnonzero(sub.callable)
     if len(tree):
-        terms = call_terms(sub.take(tree), cash_flows(sub.take(tree), at), source)
+        terms = call_terms(sub.take(tree), cf_rows(cf, tree), source)
         dirty[tree] = callable_prices(terms.bonds, lambda t: path.discount(at, t), spread[rows][tree], params)
     return float((dirty * face[rows] / 100.0).sum())
 

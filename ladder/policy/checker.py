@@ -1,13 +1,15 @@
 """Grade every rule of a policy against a book: ``pass``, ``near``, ``review`` or ``breach``.
 
 For each group a rule measures, headroom = limit - value for a maximum (value - limit for a minimum);
-negative headroom is a violation (with a relative tolerance of 1e-9 for rounding). A violation is:
-- ``review`` when the holding met a rating minimum at purchase (``rating_at_purchase``) and was
-  downgraded since, in either testing mode;
-- ``review`` when the policy tests limits ``at_purchase`` and the rule is a share or an average that
-  moves after purchase (sector, issuer and callable shares, liquidity floors, duration, WAM): a drift;
-- ``breach`` otherwise (maturities, ratings bought below the minimum, forbidden sectors, cash-needs
-  coverage, and every limit when testing ``at_all_times``).
+negative headroom is a violation (with a relative tolerance of 1e-9 for rounding). Each rule has a
+testing mode (``Rule.testing``). A violation is:
+- ``review`` under ``at_purchase`` testing when the holding met a rating minimum at purchase
+  (``rating_at_purchase``) and was downgraded since;
+- ``review`` under ``at_purchase`` testing when the rule is a share or an average that moves after
+  purchase (sector, issuer and callable shares, liquidity floors, duration, WAM, cash-needs
+  coverage): a drift;
+- ``breach`` otherwise (maturities, ratings bought below the minimum, forbidden sectors, and every
+  violation of a rule tested ``continuous``ly).
 A group within its limit is ``near`` when the rule has a warning band and headroom is less than
 (100 - near_pct)% of the limit's size; otherwise ``pass``. Ratings, maturities and forbidden sectors
 have no ``near`` band.
@@ -59,7 +61,7 @@ def grade(policy: Policy, rule: Rule, m: Measured, escalate: np.ndarray | None =
     """Status of each group; ``escalate`` (g,) marks violations a proposed trade caused: breach."""
     head = headroom(rule, m)
     violated = head < -tolerance(m.limits)
-    soft = m.excused | (rule.drifts and policy.testing == "at_purchase")
+    soft = (m.excused | rule.drifts) & (rule.testing == "at_purchase")
     if escalate is not None:
         soft = soft & ~escalate
     band = (1.0 - policy.near_pct / 100.0) * np.abs(m.limits)
@@ -98,7 +100,8 @@ def to_result(policy: Policy, g: Graded, view: BookView) -> RuleResult:
         actual = rule.empty_actual
         room = None if actual is None or isinstance(rule.limit, str) else _finite(
             (rule.limit - actual) if rule.upper else (actual - rule.limit))
-        return RuleResult(rule.key, rule.text, rule.limit, actual, room, STATUSES[0], (), basis, rule.unit)
+        return RuleResult(rule.key, rule.text, rule.limit, actual, room, STATUSES[0], (), basis, rule.unit,
+                          testing=rule.testing, per=rule.per)
     relative = g.headroom / np.maximum(np.abs(m.limits), 1e-12)
     order = np.lexsort((relative, -g.codes))
     flagged = order[g.codes[order] >= NEAR_CODE]
@@ -106,7 +109,8 @@ def to_result(policy: Policy, g: Graded, view: BookView) -> RuleResult:
     rating_rule = rule.unit.endswith("_rating")
     findings = tuple(
         Finding(str(m.keys[i]), rule.limit if rating_rule else float(m.limits[i]), _display(rule, m.values[i]),
-                _finite(g.headroom[i]), STATUSES[int(g.codes[i])], members.get(int(i), ()))
+                _finite(g.headroom[i]), STATUSES[int(g.codes[i])], members.get(int(i), ()),
+                () if m.members is None else m.members[i])
         for i in flagged)
     in_flagged = m.member >= 0
     in_flagged[in_flagged] = g.codes[m.member[in_flagged]] >= NEAR_CODE
@@ -117,7 +121,8 @@ def to_result(policy: Policy, g: Graded, view: BookView) -> RuleResult:
         cure_by = (view.as_of + policy.cure_days).astype(object)
     return RuleResult(rule.key, rule.text, rule.limit if rating_rule else float(m.limits[w]),
                       _display(rule, m.values[w]), _finite(g.headroom[w]), status, tuple(view.ids[in_flagged]),
-                      basis, rule.unit, findings, cure_by)
+                      basis, rule.unit, findings, cure_by, rule.testing, rule.per,
+                      () if m.members is None else m.members[w], str(m.keys[w]))
 
 
 def summarize(policy: Policy, as_of, results) -> CheckResult:

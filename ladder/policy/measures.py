@@ -66,6 +66,7 @@ class PositionMeasures:
       M must reach the policy's ``cash_needs_horizon_months``. Fund rows are ignored there: a fund
       counts with its market value from month 0.
     holdings_file: names the holdings file in problems about a holding's data.
+    family: each holding's issuer family (``ladder.book.families``); default its own issuer.
     """
 
     holdings: Holdings
@@ -76,9 +77,12 @@ class PositionMeasures:
     days_to_maturity: np.ndarray
     cash_by_month: np.ndarray
     holdings_file: str = "holdings.csv"
+    family: np.ndarray | None = None
 
     def __post_init__(self) -> None:
         n = len(self.holdings)
+        family = self.holdings.issuer if self.family is None else self.family
+        object.__setattr__(self, "family", np.asarray(family, dtype=object))
         object.__setattr__(self, "as_of", np.datetime64(self.as_of, "D"))
         for name in ("market_value", "book_value", "effective_duration", "days_to_maturity"):
             value = np.asarray(getattr(self, name), dtype=np.float64)

@@ -16,7 +16,9 @@ import numpy as np
 from ladder.market.dates import add_months
 
 BASES = ("market", "book", "face")
-TESTING_MODES = ("at_purchase", "at_all_times")
+TESTING_MODES = ("at_purchase", "continuous")
+OLD_TESTING_NAMES = {"at_all_times": "continuous"}   # the earlier name of continuous testing, still read
+FAMILY_SCOPES = ("family", "issuer")
 _BARE_KEY = re.compile(r"^[A-Za-z0-9_-]+$")
 
 
@@ -120,7 +122,9 @@ class Policy:
     version: str
     adopted: dt.date
     basis: str = "market"            # one of BASES
-    testing: str = "at_all_times"    # one of TESTING_MODES
+    testing: str = "continuous"      # one of TESTING_MODES: the default for share limits
+    rule_testing: tuple[tuple[str, str], ...] = ()   # (rule id, mode) from the [rules] tables
+    rule_per: tuple[tuple[str, str], ...] = ()       # (rule id, "family" | "issuer") from the [rules] tables
     near_pct: float = 90.0           # near when headroom is under (100 - near_pct)% of the limit
     cure_days: int | None = None
     split: str = "lowest"            # ladder.market.ratings.SPLIT_RULES
@@ -132,6 +136,15 @@ class Policy:
 
     def sector(self, name: str) -> SectorRule | None:
         return next((s for s in self.sectors if s.name == name), None)
+
+    def testing_of(self, key: str, default: str | None) -> str:
+        """The testing mode of rule ``key``: its [rules] table's, else ``default`` (the rule kind's),
+        else the policy's own ``testing``."""
+        return dict(self.rule_testing).get(key) or default or self.testing
+
+    def per_of(self, key: str) -> str:
+        """Whether issuer limit ``key`` applies per issuer family (the default) or per single issuer."""
+        return dict(self.rule_per).get(key, "family")
 
     def line(self, key: str) -> int:
         """Line of ``key`` in the policy file (0 if unknown)."""

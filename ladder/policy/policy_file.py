@@ -11,20 +11,22 @@ import datetime as dt
 import difflib
 import re
 import tomllib
+from dataclasses import replace
 from pathlib import Path
 
 from ladder.book.holdings import SECTORS
 from ladder.errors import Problems
 from ladder.market import ratings
 from ladder.policy.model import (
-    BASES, TESTING_MODES, IssuerRule, LiquidityFloor, MaturityLimit, Policy, PortfolioRules, SectorRule,
+    BASES, FAMILY_SCOPES, OLD_TESTING_NAMES, TESTING_MODES, IssuerRule, LiquidityFloor, MaturityLimit, Policy, PortfolioRules, SectorRule,
     issuer_key, key_path,
 )
+from ladder.policy.rules import compile_rules
 from ladder.policy.toml_lines import KeyLines
 
 _TOML_POSITION = re.compile(r"\s*\(at line (\d+), column (\d+)\)\s*$")
 _MISSING = object()
-_TOP = ("policy", "ratings", "portfolio", "sectors", "issuers")
+_TOP = ("policy", "ratings", "portfolio", "sectors", "issuers", "rules")
 
 
 def load_policy(path) -> Policy:
@@ -49,6 +51,11 @@ def parse_policy(text: str, file: str = "policy.toml") -> Policy:
         where = _TOML_POSITION.search(message)
         line, column = (int(where.group(1)), int(where.group(2))) if where else (0, 0)
         problems.add(file, line, column, f"not valid TOML: {_TOML_POSITION.sub('', message)}")
+        problems.raise_if_any()
+    except RecursionError:
+        problems = Problems()
+        problems.add(file, 0, 0, "not valid as a policy: tables or arrays are nested too deeply "
+                                 "(a policy needs at most four levels; see docs/policy.md)")
         problems.raise_if_any()
     reader = _Reader(file, KeyLines(text))
     policy = reader.policy(data)
@@ -138,11 +145,11 @@ class _Reader:
         if isinstance(value, bool) or not isinstance(value, (int, float)):
             self.add(where, f"expected {'a whole number' if integer else 'a number'}{unit}, got {_kind_of(value)}")
             return None
-        if integer and value != int(value):
-            self.add(where, f"expected a whole number{unit}, got {value!r}")
-            return None
         if value != value or value in (float("inf"), float("-inf")):
             self.add(where, f"expected a finite number{unit}, got {value!r}")
+            return None
+        if integer and value != int(value):
+            self.add(where, f"expected a whole number{unit}, got {value!r}")
             return None
         if low is not None and (value <= low if low_open else value < low):
             self.add(where, f"must be {'above' if low_open else 'at least'} {low!r}{unit}, got {value!r}")
@@ -221,7 +228,9 @@ class _Reader:
         version = self.text(head, p, "version", required=present)
         adopted = self.date(head, p, "adopted") if present else None
         basis = self.text(head, p, "basis", choices=BASES, default="market")
-        testing = self.text(head, p, "testing", choices=TESTING_MODES, default="at_all_times")
+        testing = self.text(head, p, "testing", choices=TESTING_MODES + tuple(OLD_TESTING_NAMES),
+                            default="continuous")
+        testing = OLD_TESTING_NAMES.get(testing, testing)
         near = self.number(head, p, "near_pct", 0, 100, low_open=True, unit=" (percent of a limit)")
         cure = self.number(head, p, "cure_days", 0, integer=True, unit=" days")
         self.leftovers(head, p, ("name", "version", "adopted", "basis", "testing", "near_pct", "cure_days"))
@@ -233,12 +242,43 @@ class _Reader:
         portfolio = self.portfolio(self.table(data, (), "portfolio"))
         sectors = self.sectors(self.table(data, (), "sectors"))
         issuers = self.issuers(self.table(data, (), "issuers"))
+        options = self.rule_options(self.table(data, (), "rules"))
         self.leftovers(data, (), _TOP)
         self.contradictions(portfolio, sectors, issuers)
         lines = tuple((key_path(*path), line) for path, (line, _) in self.lines.positions.items())
-        return Policy(name=name or "", version=version or "", adopted=adopted or dt.date.min, basis=basis,
-                      testing=testing, near_pct=90.0 if near is None else near, cure_days=cure, split=split,
-                      portfolio=portfolio, sectors=sectors, issuers=issuers, source=self.file, lines=lines)
+        policy = Policy(name=name or "", version=version or "", adopted=adopted or dt.date.min, basis=basis,
+                        testing=testing, near_pct=90.0 if near is None else near, cure_days=cure, split=split,
+                        portfolio=portfolio, sectors=sectors, issuers=issuers, source=self.file, lines=lines)
+        return self.with_options(policy, options)
+
+    def rule_options(self, t: dict) -> dict[str, dict[str, str]]:
+        """``[rules."<rule id>"]`` tables: ``testing`` and, for an issuer limit, ``per``."""
+        out = {}
+        for rule_id, body in t.items():
+            where = ("rules", rule_id)
+            if not isinstance(body, dict):
+                self.add(where, f'expected a table [rules."{rule_id}"] with testing and/or per, got {_kind_of(body)}')
+                continue
+            body = dict(body)
+            got = {"testing": self.text(body, where, "testing", choices=TESTING_MODES),
+                   "per": self.text(body, where, "per", choices=FAMILY_SCOPES)}
+            self.leftovers(body, where, ("testing", "per"))
+            out[rule_id] = {k: v for k, v in got.items() if v is not None}
+        return out
+
+    def with_options(self, policy: Policy, options: dict[str, dict[str, str]]) -> Policy:
+        """The policy with its [rules] options, each checked against the rules the policy states."""
+        if not options:
+            return policy
+        rules = {r.key: r for r in compile_rules(policy)}
+        for rule_id, got in options.items():
+            if rule_id not in rules:
+                self.add(("rules", rule_id), f"the policy states no rule {rule_id!r}{_hint(rule_id, rules)}; "
+                                             "a rule id is its key path, as check results show it")
+            elif "per" in got and rules[rule_id].per is None:
+                self.add(("rules", rule_id, "per"), "per applies only to issuer limits")
+        return replace(policy, rule_testing=tuple((k, v["testing"]) for k, v in options.items() if "testing" in v),
+                       rule_per=tuple((k, v["per"]) for k, v in options.items() if "per" in v))
 
     def portfolio(self, t: dict) -> PortfolioRules:
         p = ("portfolio",)

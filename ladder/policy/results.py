@@ -35,9 +35,18 @@ def json_value(value):
     return value
 
 
+def group_label(group: str, members) -> str:
+    """``"Greystone Bank (family: Greystone Bank, Greystone Sweep)"``; the group alone when it has no
+    other member than itself."""
+    if not members or list(members) == [group]:
+        return group
+    return f"{group} (family: {', '.join(members)})"
+
+
 @dataclass(frozen=True)
 class Finding:
-    """One group a rule measures (an issuer, a sector, a holding, a month, or the portfolio)."""
+    """One group a rule measures (an issuer family or issuer, a sector, a holding, a month, or the
+    portfolio); ``members`` are the issuers of a family group."""
 
     group: str
     limit: Value
@@ -45,10 +54,17 @@ class Finding:
     headroom: float | None
     status: str
     holdings: tuple[str, ...]
+    members: tuple[str, ...] = ()
+
+    @property
+    def label(self) -> str:
+        """The group's name, with the members of a family other than the family's own name."""
+        return group_label(self.group, self.members)
 
     def to_json(self) -> dict:
-        return {"group": self.group, "limit": json_value(self.limit), "actual": json_value(self.actual),
-                "headroom": json_value(self.headroom), "status": self.status, "holdings": list(self.holdings)}
+        return {"group": self.group, "members": list(self.members), "limit": json_value(self.limit),
+                "actual": json_value(self.actual), "headroom": json_value(self.headroom), "status": self.status,
+                "holdings": list(self.holdings)}
 
 
 @dataclass(frozen=True)
@@ -58,7 +74,9 @@ class RuleResult:
     ``limit``/``actual``/``headroom`` are those of the worst group (headroom > 0 is room left);
     ``holdings`` are the ids behind every group that is not ``pass``; ``findings`` lists those groups,
     worst first. ``basis`` is the percentage basis for rules measured on it (else None).
-    ``cure_by`` is the check date plus the policy's cure period, for a ``review``.
+    ``cure_by`` is the check date plus the policy's cure period, for a ``review``. ``testing`` is the
+    rule's testing mode; ``group`` the worst group's name; ``per`` ("family" | "issuer") and
+    ``members`` (the worst family's issuers) are set for an issuer limit.
     """
 
     rule: str
@@ -72,11 +90,21 @@ class RuleResult:
     unit: str
     findings: tuple[Finding, ...] = ()
     cure_by: dt.date | None = None
+    testing: str = "continuous"
+    per: str | None = None
+    members: tuple[str, ...] = ()
+    group: str = ""
+
+    @property
+    def worst_group(self) -> str:
+        """The worst group's name with a family's members ("" for a rule with one group)."""
+        return group_label(self.group, self.members) if self.group != "portfolio" else ""
 
     def to_json(self) -> dict:
         return {"rule": self.rule, "text": self.text, "limit": json_value(self.limit),
                 "actual": json_value(self.actual), "headroom": json_value(self.headroom),
                 "status": self.status, "holdings": list(self.holdings), "basis": self.basis, "unit": self.unit,
+                "testing": self.testing, "per": self.per, "group": self.group, "members": list(self.members),
                 "cure_by": json_value(self.cure_by), "findings": [f.to_json() for f in self.findings]}
 
 

@@ -8,23 +8,24 @@ measures (all percentages of the whole portfolio on the policy's basis):
 - portfolio.max_wam_days: basis-weighted average days to final maturity.
 - portfolio.max_maturity_days|years, sectors.X.max_maturity_days|years: each holding's days to final
   maturity (years are counted on the calendar from the check date).
-- portfolio.issuer_max_pct: each issuer's share, leaving out holdings in sectors with
-  ``issuer_cap_exempt`` and issuers named under [issuers]; issuers."N".max_pct: N's share in every sector.
+- portfolio.issuer_max_pct: each issuer family's share (``PositionMeasures.family``; each issuer's
+  with ``per = "issuer"``), leaving out holdings in sectors with ``issuer_cap_exempt`` and the
+  families of issuers named under [issuers]; issuers."N".max_pct: N's family's share in every sector.
 - portfolio.callable_max_pct, sectors.X.callable_max_pct: share of callable holdings.
 - portfolio.liquidity[i].min_pct: share maturing within ``within_days`` days.
 - portfolio.cash_needs_horizon_months: for each month of the horizon, fund balances plus cumulative
-  principal and coupons against cumulative net cash needs.
+  principal and coupons against cumulative net cash needs (``ladder.policy.liquidity``).
 - sectors: share of each sector the policy does not name (only when it names any); sectors.X.allowed:
   share of a sector the policy forbids (limit 0).
-- sectors.X.max_pct / min_pct: the sector's share; sectors.X.issuer_max_pct: each issuer's share
-  within the sector.
+- sectors.X.max_pct / min_pct: the sector's share; sectors.X.issuer_max_pct: each issuer family's
+  (or issuer's) share within the sector.
 - sectors.X.min_long_rating / min_short_rating: each holding's notch after the split-rating rule
   (unrated fails); a holding whose ``rating_at_purchase`` met the minimum is excused to ``review``.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Callable
 
 import numpy as np
@@ -32,9 +33,11 @@ import numpy as np
 from ladder.book.cash_needs import CashNeeds
 from ladder.errors import Problems
 from ladder.market import ratings
+from ladder.policy.liquidity import needs_coverage
 from ladder.policy.measures import PositionMeasures, coverage_start
 from ladder.policy.model import MaturityLimit, Policy, issuer_key
 
+PER_WORDS = {"family": "issuer family (a parent with its affiliates)", "issuer": "single issuer"}
 BASIS_WORDS = {"market": "market value", "book": "book value", "face": "face value"}
 SPLIT_WORDS = {"lowest": "the lowest of the agencies' ratings", "middle_of_three": "the middle of three ratings"}
 
@@ -51,6 +54,9 @@ class BookView:
     issuer: np.ndarray       # (n,) int code into issuer_names / issuer_keys
     issuer_names: np.ndarray  # (k,) object: one spelling of each found in the book
     issuer_keys: np.ndarray   # (k,) object: issuer_key of each
+    family: np.ndarray       # (n,) int code into family_names
+    family_names: np.ndarray  # (f,) object
+    family_members: np.ndarray  # (f,) object: tuple of the issuer names of each family found in the book
     callable: np.ndarray     # (n,) bool
     fund: np.ndarray         # (n,) bool, kind == "fund"
     days: np.ndarray         # (n,) days to final maturity
@@ -90,16 +96,33 @@ def book_view(policy: Policy, m: PositionMeasures, cash_needs: CashNeeds | None)
     unique, first_key, key_inverse = np.unique(keys.astype(str), return_index=True, return_inverse=True)
     inverse = key_inverse.reshape(-1)[raw_inverse.reshape(-1)]
     first = raw_first[first_key]
+    family, family_names, members = _families(m.family, inverse, h.issuer[first])
     return BookView(
         as_of=m.as_of, ids=h.id, weight=weight,
         pct=100.0 * weight / total if total > 0 else np.zeros_like(weight),
         sector=h.sector, issuer=inverse, issuer_names=h.issuer[first], issuer_keys=unique.astype(object),
+        family=family, family_names=family_names, family_members=members,
         callable=h.callable, fund=h.kind == "fund", days=m.days_to_maturity, duration=m.effective_duration,
         long=ratings.long_notches(h.rating, policy.split), short=ratings.short_notches(h.short_rating, policy.split),
         long_bought=ratings.long_notches(h.rating_at_purchase, policy.split),
         short_bought=ratings.purchase_short_notches(h.rating_at_purchase, policy.split),
         market_value=m.market_value, cash_by_month=m.cash_by_month, cash_needs=cash_needs,
     )
+
+
+def _families(names: np.ndarray, issuer: np.ndarray, issuer_names: np.ndarray):
+    """Family codes of the holdings (families matched like issuers), one spelling of each family, and
+    the issuers of each family found in the book (sorted)."""
+    spelled, first, raw = np.unique(names.astype(str), return_index=True, return_inverse=True)
+    keys = np.array([issuer_key(x) for x in spelled], dtype=object)
+    unique, first_key, key_inverse = np.unique(keys.astype(str), return_index=True, return_inverse=True)
+    code = key_inverse.reshape(-1)[raw.reshape(-1)]
+    pairs = np.unique(np.stack([code, issuer]), axis=1) if len(code) else np.zeros((2, 0), np.int64)
+    members = np.empty(len(unique), dtype=object)
+    starts = np.searchsorted(pairs[0], np.arange(len(unique)))
+    for f, part in enumerate(np.split(pairs[1], starts[1:])):
+        members[f] = tuple(sorted(str(x) for x in issuer_names[part]))
+    return code, names[first[first_key]], members
 
 
 def _require_finite(problems: Problems, m: PositionMeasures, values, what: str) -> None:
@@ -117,13 +140,16 @@ class Measured:
     limits: np.ndarray   # (g,) float
     member: np.ndarray   # (n,) int: group of each holding that would cause a non-pass status, -1 none
     excused: np.ndarray  # (g,) bool: a violation here is a review (met the minimum at purchase)
+    members: np.ndarray | None = None   # (g,) object: the issuers of each family group, else None
 
 
 @dataclass(frozen=True, eq=False)
 class Rule:
     """One limit of the policy. ``upper``: the value must not exceed the limit (else not fall below).
     ``drifts``: a share or average that moves after purchase (at_purchase testing reviews it).
-    ``warns``: has a ``near`` band."""
+    ``warns``: has a ``near`` band. ``testing``: "at_purchase" | "continuous" (the policy's [rules]
+    entry, else the kind's default given to ``_Builder.add``, else the policy's ``testing``).
+    ``per``: "family" | "issuer" for an issuer limit, else None."""
 
     key: str
     text: str
@@ -135,6 +161,8 @@ class Rule:
     uses_basis: bool
     empty_actual: float | None
     measure: Callable[[BookView], Measured]
+    testing: str = "continuous"
+    per: str | None = None
 
 
 def _measured(n, keys, values, limits, member=None, excused=None) -> Measured:
@@ -153,14 +181,27 @@ def _whole(v: BookView, limit: float, value: float, causes=None, key="portfolio"
 
 
 def _by_group(v: BookView, limit: float, codes: np.ndarray, scope: np.ndarray, names: np.ndarray,
-              causes: bool = True) -> Measured:
+              causes: bool = True, members: np.ndarray | None = None) -> Measured:
     """One group per code present in ``scope``: the share of the portfolio of each."""
     present = np.unique(codes[scope])
     totals = np.bincount(codes[scope], weights=v.pct[scope], minlength=len(names))
     member = np.full(v.n, -1, np.int64)
     if causes:
         member[scope] = np.searchsorted(present, codes[scope])
-    return _measured(v.n, names[present], totals[present] if len(present) else [], limit, member)
+    m = _measured(v.n, names[present], totals[present] if len(present) else [], limit, member)
+    return m if members is None else replace(m, members=members[present])
+
+
+def _by_issuer(v: BookView, limit: float, scope: np.ndarray, per: str) -> Measured:
+    """One group per issuer family (``per = "family"``) or per issuer in ``scope``: the share of each."""
+    if per == "family":
+        return _by_group(v, limit, v.family, scope, v.family_names, members=v.family_members)
+    return _by_group(v, limit, v.issuer, scope, v.issuer_names)
+
+
+def group_of(v: BookView, per: str) -> np.ndarray:
+    """Each holding's code in the groups of an issuer limit: its family or its issuer."""
+    return v.family if per == "family" else v.issuer
 
 
 def _each(v: BookView, limit: float, scope: np.ndarray, values: np.ndarray, excused=None) -> Measured:
@@ -190,15 +231,17 @@ class _Builder:
         self.basis = BASIS_WORDS[policy.basis]
 
     def add(self, key, text, unit, limit, measure, upper=True, drifts=True, warns=True, uses_basis=True,
-            empty_actual=0.0):
-        self.rules.append(Rule(key, text, unit, limit, upper, drifts, warns, uses_basis, empty_actual, measure))
+            empty_actual=0.0, testing=None, issuer_limit=False):
+        """``testing``: the default mode of this kind of rule (None: the policy's ``testing``)."""
+        self.rules.append(Rule(key, text, unit, limit, upper, drifts, warns, uses_basis, empty_actual, measure,
+                               self.p.testing_of(key, testing), self.p.per_of(key) if issuer_limit else None))
 
-    def share(self, key, text, limit, scope_of, upper=True, causes=True, group="portfolio"):
+    def share(self, key, text, limit, scope_of, upper=True, causes=True, group="portfolio", testing=None):
         """A cap (or floor) on the share of the holdings selected by ``scope_of(view)``, as group ``group``."""
         def measure(v: BookView) -> Measured:
             scope = scope_of(v)
             return _whole(v, limit, float(v.pct[scope].sum()), scope if causes and upper else None, group)
-        self.add(key, f"{text} ({self.basis})", "pct", limit, measure, upper=upper)
+        self.add(key, f"{text} ({self.basis})", "pct", limit, measure, upper=upper, testing=testing)
 
     def maturity(self, limit: MaturityLimit, where: str, scope_of):
         def measure(v: BookView) -> Measured:
@@ -206,7 +249,8 @@ class _Builder:
             scale = limit.amount / days if limit.unit == "years" and days > 0 else 1.0
             return _each(v, limit.amount, scope_of(v), v.days * scale)
         self.add(limit.key, f"{where} matures more than {limit.describe()} after the check date", limit.unit,
-                 limit.amount, measure, drifts=False, warns=False, uses_basis=False, empty_actual=None)
+                 limit.amount, measure, drifts=False, warns=False, uses_basis=False, empty_actual=None,
+                 testing="at_purchase")
 
     def rating(self, key, symbol: str, sector: str, long_term: bool):
         notch = (ratings.LONG_NOTCH if long_term else ratings.SHORT_NOTCH)[symbol]
@@ -218,7 +262,7 @@ class _Builder:
         term = "long-term" if long_term else "short-term"
         self.add(key, f"{sector} holdings rated {symbol} or better {term} ({SPLIT_WORDS[self.p.split]}; "
                       f"unrated fails)", "long_rating" if long_term else "short_rating", symbol, measure,
-                 drifts=False, warns=False, uses_basis=False, empty_actual=None)
+                 drifts=False, warns=False, uses_basis=False, empty_actual=None, testing="at_purchase")
 
     def build(self) -> tuple[Rule, ...]:
         self.portfolio()
@@ -232,12 +276,14 @@ class _Builder:
             lim = pf.max_effective_duration
             self.add("portfolio.max_effective_duration",
                      f"portfolio effective duration at most {lim:g} years (weighted by {self.basis})", "years", lim,
-                     lambda v, lim=lim: _whole(v, lim, _weighted_average(v, v.duration), v.duration > lim))
+                     lambda v, lim=lim: _whole(v, lim, _weighted_average(v, v.duration), v.duration > lim),
+                     testing="continuous")
         if pf.max_wam_days is not None:
             lim = pf.max_wam_days
             self.add("portfolio.max_wam_days",
                      f"weighted average maturity at most {lim:g} days (weighted by {self.basis})", "days", lim,
-                     lambda v, lim=lim: _whole(v, lim, _weighted_average(v, v.days), v.days > lim))
+                     lambda v, lim=lim: _whole(v, lim, _weighted_average(v, v.days), v.days > lim),
+                     testing="continuous")
         if pf.max_maturity is not None:
             self.maturity(pf.max_maturity, "no holding", lambda v: np.ones(v.n, bool))
         if pf.issuer_max_pct is not None:
@@ -249,35 +295,39 @@ class _Builder:
         for floor in pf.liquidity:
             self.share(floor.key, f"at least {floor.min_pct:g}% of the portfolio matures within "
                                   f"{floor.within_days} days", floor.min_pct,
-                       lambda v, d=floor.within_days: v.days <= d, upper=False)
+                       lambda v, d=floor.within_days: v.days <= d, upper=False, testing="continuous")
         if pf.cash_needs_horizon_months is not None:
             self.coverage(pf.cash_needs_horizon_months)
 
     def default_issuer_cap(self, lim: float):
         exempt_sectors = np.array([s.name for s in self.p.sectors if s.issuer_cap_exempt], dtype=object)
         named = np.array([issuer_key(i.name) for i in self.p.issuers], dtype=object)
+        key = "portfolio.issuer_max_pct"
+        per = self.p.per_of(key)
 
         def measure(v: BookView) -> Measured:
-            scope = ~np.isin(v.sector, exempt_sectors) & ~np.isin(v.issuer_keys[v.issuer], named)
-            return _by_group(v, lim, v.issuer, scope, v.issuer_names)
+            group = group_of(v, per)
+            has_own_rule = np.unique(group[np.isin(v.issuer_keys[v.issuer], named)])
+            scope = ~np.isin(v.sector, exempt_sectors) & ~np.isin(group, has_own_rule)
+            return _by_issuer(v, lim, scope, per)
         exempt = [f"{', '.join(exempt_sectors)} holdings"] if len(exempt_sectors) else []
-        exempt += ["issuers named under [issuers]"] if len(named) else []
+        exempt += [f"issuers named under [issuers]{' and their families' if per == 'family' else ''}"] if len(
+            named) else []
         tail = f"; exempt: {' and '.join(exempt)}" if exempt else ""
-        self.add("portfolio.issuer_max_pct",
-                 f"no issuer above {lim:g}% of the portfolio ({self.basis}){tail}", "pct", lim, measure)
+        self.add(key, f"no {PER_WORDS[per]} above {lim:g}% of the portfolio ({self.basis}){tail}", "pct", lim,
+                 measure, issuer_limit=True)
 
     def coverage(self, horizon: int):
         def measure(v: BookView) -> Measured:
             start = coverage_start(v.as_of)
-            flows = v.cash_by_month[~v.fund, :horizon].sum(axis=0)
-            available = v.market_value[v.fund].sum() + np.cumsum(flows)
-            need = np.cumsum(v.cash_needs.by_month(start, horizon))
+            cover = needs_coverage(v.market_value[v.fund].sum(), v.cash_by_month[~v.fund, :horizon].sum(axis=0),
+                                   v.cash_needs.by_month(start, horizon))
             months = start.astype("datetime64[M]") + np.arange(horizon)
-            return _measured(v.n, months.astype(str).astype(object), available, need)
+            return _measured(v.n, months.astype(str).astype(object), cover.cash, cover.needs)
         self.add("portfolio.cash_needs_horizon_months",
                  f"in each of the next {horizon} months, fund balances plus maturities and coupons received so far "
-                 "cover the cash needs so far", "currency", 0.0, measure, upper=False, drifts=False,
-                 uses_basis=False)
+                 "cover the cash needs so far", "currency", 0.0, measure, upper=False, uses_basis=False,
+                 testing="continuous")
 
     def sectors(self):
         if not self.p.sectors:
@@ -310,9 +360,11 @@ class _Builder:
             if s.min_short_rating is not None:
                 self.rating(s.key("min_short_rating"), s.min_short_rating, name, long_term=False)
             if s.issuer_max_pct is not None:
-                lim = s.issuer_max_pct
-                self.add(s.key("issuer_max_pct"), f"no issuer above {lim:g}% of the portfolio in {name} ({self.basis})",
-                         "pct", lim, lambda v, f=in_sector, lim=lim: _by_group(v, lim, v.issuer, f(v), v.issuer_names))
+                lim, key = s.issuer_max_pct, s.key("issuer_max_pct")
+                per = self.p.per_of(key)
+                self.add(key, f"no {PER_WORDS[per]} above {lim:g}% of the portfolio in {name} ({self.basis})",
+                         "pct", lim, lambda v, f=in_sector, lim=lim, per=per: _by_issuer(v, lim, f(v), per),
+                         issuer_limit=True)
             if s.callable_max_pct is not None:
                 self.share(s.key("callable_max_pct"),
                            f"callable {name} at most {s.callable_max_pct:g}% of the portfolio", s.callable_max_pct,
@@ -322,9 +374,16 @@ class _Builder:
         for i in self.p.issuers:
             if i.max_pct is None:
                 continue
-            wanted = issuer_key(i.name)
-            self.share(i.key("max_pct"), f"{i.name} at most {i.max_pct:g}% of the portfolio, all sectors", i.max_pct,
-                       lambda v, w=wanted: v.issuer_keys[v.issuer] == w, group=i.name)
+            wanted, key = issuer_key(i.name), i.key("max_pct")
+            per = self.p.per_of(key)
+
+            def measure(v: BookView, w=wanted, lim=i.max_pct, per=per) -> Measured:
+                group = group_of(v, per)
+                scope = np.isin(group, group[v.issuer_keys[v.issuer] == w])
+                return _by_issuer(v, lim, scope, per)
+            family = " and its family" if per == "family" else ""
+            self.add(key, f"{i.name}{family} at most {i.max_pct:g}% of the portfolio, all sectors ({self.basis})",
+                     "pct", i.max_pct, measure, issuer_limit=True)
 
 
 def compile_rules(policy: Policy) -> tuple[Rule, ...]:

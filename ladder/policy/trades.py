@@ -23,6 +23,8 @@ from ladder.book.table_file import read_table
 from ladder.errors import Problems
 
 ACTIONS = ("buy", "sell")
+NEW_MONEY = "new_money"     # funded_from: cash from outside the portfolio (a buy) or paid out to it (a sale)
+OPTIONAL = ("settle_date", "funded_from")
 _MATCHED = (("sector", "sector"), ("issuer", "issuer"), ("maturity", "maturity_date"))
 _FACE_TOLERANCE = 1e-6   # currency units: a sell within this of the face held sells all of it
 
@@ -34,6 +36,8 @@ class Trades:
     holdings: Holdings
     action: np.ndarray   # object, "buy" | "sell"
     file: str
+    settle_date: np.ndarray | None = None   # datetime64[D], NaT = the valuation date; None = all on it
+    funded_from: np.ndarray | None = None   # object: "" = the cash account, NEW_MONEY, or a fund id
 
     def __len__(self) -> int:
         return len(self.action)
@@ -47,7 +51,7 @@ def read_trades(path, book: Holdings, valuation_date: dt.date) -> Trades:
     path = Path(path)
     label = str(path)
     problems = Problems()
-    trades, extras = read_holdings(path, valuation_date, problems, label, extra_columns=("action",))
+    trades, extras = read_holdings(path, valuation_date, problems, label, extra_columns=("action",) + OPTIONAL)
     table = read_table(path, Problems(), label)   # for column positions; its problems are already reported
     if table is not None and "action" not in table.column:
         problems.add(label, 1, 0, "required column 'action' is missing (buy or sell)")
@@ -75,8 +79,33 @@ def read_trades(path, book: Holdings, valuation_date: dt.date) -> Trades:
             if trades.face[i] > book.face[j] + _FACE_TOLERANCE:
                 problems.add(label, row, col["face"], f"sells {trades.face[i]:,.2f} face but the book holds "
                              f"{book.face[j]:,.2f} of {hid}")
+    settle = _settle_dates(extras["settle_date"], trades.row, col.get("settle_date", 0), valuation_date, label, problems)
+    funded = np.array([f.strip() for f in extras["funded_from"]], dtype=object)
+    funds = set(book.id[book.kind == "fund"])
+    for i, source in enumerate(funded):
+        if source and source != NEW_MONEY and (source not in funds or source == trades.id[i]):
+            problems.add(label, int(trades.row[i]), col.get("funded_from", 0), f"funded_from {source!r} is not "
+                         f"{NEW_MONEY}, empty (the cash account) or another fund holding of the book")
     problems.raise_if_any()
-    return Trades(trades, actions, label)
+    return Trades(trades, actions, label, settle, funded)
+
+
+def _settle_dates(texts, rows, column: int, valuation_date: dt.date, label: str, problems: Problems) -> np.ndarray:
+    """The ``settle_date`` column: NaT where empty; a date before ``valuation_date`` is a problem."""
+    out = np.full(len(texts), np.datetime64("NaT"), dtype="datetime64[D]")
+    for i, text in enumerate(texts):
+        if not text.strip():
+            continue
+        try:
+            date = dt.date.fromisoformat(text.strip())
+        except ValueError:
+            problems.add(label, int(rows[i]), column, f"settle_date {text!r} is not a date written YYYY-MM-DD")
+            continue
+        if date < valuation_date:
+            problems.add(label, int(rows[i]), column, f"settle_date {date} is before the valuation date "
+                                                      f"{valuation_date}; a trade settles on or after it")
+        out[i] = np.datetime64(date)
+    return out
 
 
 def apply_trades(holdings: Holdings, trades: Trades) -> Holdings:
@@ -89,5 +118,5 @@ def apply_trades(holdings: Holdings, trades: Trades) -> Holdings:
     sold_face = np.zeros(len(holdings))
     sold_face[hit] = amounts[np.searchsorted(ids, book_ids[hit])]
     remaining = holdings.face - sold_face
-    kept = replace(holdings, face=remaining).take(remaining > _FACE_TOLERANCE)
+    kept = replace(holdings, face=remaining).take((remaining > _FACE_TOLERANCE) | ~hit)
     return Holdings.concat([kept, trades.holdings.take(trades.action == "buy")])

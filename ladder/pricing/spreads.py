@@ -2,16 +2,29 @@
 
 Convention: the z-spread z is a continuously compounded ACT/365F spread added to the curve's zero
 rate, so a flow t years after settlement is discounted by DF(t_curve) / DF(t_settle) * exp(-z t).
-Spreads are held constant under every rate scenario.
+Spreads are held under rate moves; a credit scenario moves them (``ladder.risk.scenarios``).
+
+The spread table runs by sector, rating bucket and tenor: each bucket holds a ``SpreadCurve`` of
+basis points against tenor years, read linearly in tenor years between its points and flat beyond
+its first and last (a flat entry is a curve of one point). A holding's tenor is ACT/365F years from
+settlement to maturity; a table tenor label is nominal years (months / 12).
 """
 
 from __future__ import annotations
+
+import datetime as dt
+from dataclasses import dataclass
 
 import numpy as np
 
 from ladder.book.holdings import Holdings
 from ladder.market.ratings import long_notches, long_symbol, short_notches, short_symbol
 from ladder.pricing.cashflows import CashFlows
+
+
+LONG_BUCKETS = ("AAA", "AA", "A", "BBB")
+SHORT_BUCKETS = ("A-1+", "A-1", "A-2", "A-3")
+RATING_BUCKETS = LONG_BUCKETS + SHORT_BUCKETS
 
 
 def rating_buckets(holdings: Holdings) -> tuple[np.ndarray, np.ndarray]:
@@ -25,17 +38,62 @@ def rating_buckets(holdings: Holdings) -> tuple[np.ndarray, np.ndarray]:
     return long_, short
 
 
-def table_spreads_bp(holdings: Holdings, spreads: dict[str, dict[str, float]]) -> np.ndarray:
-    """Spread of each holding from the book's table (sector -> bucket -> bp): its long-term bucket,
-    else its short-term bucket, else the sector's ``default``; NaN where none applies."""
+@dataclass(frozen=True, eq=False)
+class SpreadCurve:
+    """One bucket's spread in bp against tenor ``years`` (ascending, float64 (k,)); linear in tenor
+    years between the points, flat beyond the first and the last."""
+
+    years: np.ndarray
+    bp: np.ndarray
+
+    @classmethod
+    def flat(cls, bp: float) -> "SpreadCurve":
+        return cls(np.zeros(1), np.array([float(bp)]))
+
+    @classmethod
+    def of(cls, points: dict[float, float]) -> "SpreadCurve":
+        """From {tenor years: bp}, in any order."""
+        years = np.array(sorted(points), dtype=np.float64)
+        return cls(years, np.array([points[y] for y in years], dtype=np.float64))
+
+    def at(self, years) -> np.ndarray:
+        """Spread in bp at each tenor of ``years``."""
+        return np.interp(np.asarray(years, dtype=np.float64), self.years, self.bp)
+
+    @property
+    def is_flat(self) -> bool:
+        return len(self.bp) == 1
+
+
+SpreadTable = dict[str, dict[str, SpreadCurve]]      # sector -> rating bucket -> curve
+
+
+def spread_keys(holdings: Holdings, table: dict[str, dict]) -> np.ndarray:
+    """The bucket each holding reads in ``table`` (sector -> bucket -> ...): its long-term bucket,
+    else its short-term bucket, else ``default``; "" where none is in the table."""
     long_, short = rating_buckets(holdings)
-    out = np.full(len(holdings), np.nan)
+    out = np.full(len(holdings), "", dtype=object)
     for i, sector in enumerate(holdings.sector):
-        table = spreads.get(sector, {})
-        for key in (long_[i], short[i], "default"):
-            if key and key in table:
-                out[i] = table[key]
-                break
+        buckets = table.get(sector, {})
+        out[i] = next((key for key in (long_[i], short[i], "default") if key and key in buckets), "")
+    return out
+
+
+def tenor_years(holdings: Holdings, settle) -> np.ndarray:
+    """ACT/365F years from ``settle`` to each holding's maturity (0 for one already due)."""
+    days = (holdings.maturity - np.datetime64(settle, "D")).astype(np.int64)
+    return np.maximum(days, 0) / 365.0
+
+
+def table_spreads_bp(holdings: Holdings, spreads: SpreadTable, settle: dt.date | np.datetime64) -> np.ndarray:
+    """Spread in bp of each holding from the book's table by sector, rating bucket (``spread_keys``)
+    and tenor (``tenor_years`` from ``settle``, read on the bucket's curve); NaN where none applies."""
+    keys = spread_keys(holdings, spreads)
+    years = tenor_years(holdings, settle)
+    out = np.full(len(holdings), np.nan)
+    for sector, key in {(s, k) for s, k in zip(holdings.sector, keys) if k}:
+        rows = (holdings.sector == sector) & (keys == key)
+        out[rows] = spreads[sector][key].at(years[rows])
     return out
 
 

@@ -20,14 +20,14 @@ from ladder.risk.rungs import RUNGS, rung_ends, rung_index
 NOT_CHECKED = "not checked"
 
 
-def _status(check: CheckResult, rule: str, group: str) -> str:
-    """The status of ``rule`` for ``group``; NOT_CHECKED when the check has no such rule."""
+def _status(check: CheckResult, rule: str, groups) -> str:
+    """The status of ``rule`` for any of ``groups`` (names); NOT_CHECKED when the check has no such rule."""
     try:
         result = check.rule(rule)
     except KeyError:
         return NOT_CHECKED
-    key = issuer_key(group)
-    found = [f.status for f in result.findings if issuer_key(f.group) == key]
+    keys = {issuer_key(g) for g in groups}
+    found = [f.status for f in result.findings if issuer_key(f.group) in keys]
     return worst(found) if found else (PASS if result.findings or result.status == PASS else result.status)
 
 
@@ -75,53 +75,72 @@ def sector_table(book: Book, check: CheckResult, market_value, weight) -> Table:
                  ("Total", len(h), float(market_value.sum()), 1.0, None, None, check.status, ""))
 
 
-ISSUER_COLUMNS = (Column("issuer", "Issuer"), Column("sectors", "Sectors"), Column("count", "Holdings", "int"),
+ISSUER_COLUMNS = (Column("issuer", "Issuer family"), Column("members", "Issuers in the book"),
+                  Column("sectors", "Sectors"), Column("count", "Holdings", "int"),
                   Column("market_value", "Market value", "money"), Column("share", "Share", "pct"),
                   Column("counted", "Share counted", "pct"), Column("limit", "Limit", "pct"),
                   Column("headroom", "Headroom", "pct"), Column("rule", "Limit from"), Column("status", "Status"))
 
 
-def _issuer_limits(book: Book, issuer: str, inside: np.ndarray, pct: np.ndarray) -> list[tuple[str, float, float]]:
-    """(rule key, limit %, share counted %) of every issuer limit that applies to ``issuer``."""
+def _counted(book: Book, key: str, inside: np.ndarray, scope: np.ndarray, pct: np.ndarray) -> float:
+    """Share counted by issuer limit ``key`` for the family ``inside`` within ``scope``: the family's, or
+    under ``per = "issuer"`` its largest single issuer's (percent)."""
+    h = book.holdings
+    here = inside & scope
+    if book.policy.per_of(key) == "family" or not here.any():
+        return float(pct[here].sum())
+    keys = np.array([issuer_key(x) for x in h.issuer[here]], dtype=object)
+    return max(float(pct[here][keys == k].sum()) for k in set(keys))
+
+
+def _issuer_limits(book: Book, members, inside: np.ndarray, pct: np.ndarray) -> list[tuple[str, float, float]]:
+    """(rule key, limit %, share counted %) of every issuer limit that applies to the family ``inside``
+    (its issuers ``members``)."""
     p, h = book.policy, book.holdings
-    named = {issuer_key(i.name): i for i in p.issuers}
-    out = []
-    rule = named.get(issuer_key(issuer))
-    if rule is not None and rule.max_pct is not None:
-        out.append((rule.key("max_pct"), rule.max_pct, float(pct[inside].sum())))
+    everything = np.ones(len(h), bool)
+    named = [i for i in p.issuers if issuer_key(i.name) in {issuer_key(m) for m in members}]
+    out = [(i.key("max_pct"), i.max_pct, _counted(book, i.key("max_pct"), inside, everything, pct))
+           for i in named if i.max_pct is not None]
     exempt = [s.name for s in p.sectors if s.issuer_cap_exempt]
-    counted = inside & ~np.isin(h.sector, exempt)
-    if rule is None and p.portfolio.issuer_max_pct is not None and counted.any():
-        out.append(("portfolio.issuer_max_pct", p.portfolio.issuer_max_pct, float(pct[counted].sum())))
+    counted = ~np.isin(h.sector, exempt)
+    if not named and p.portfolio.issuer_max_pct is not None and (inside & counted).any():
+        key = "portfolio.issuer_max_pct"
+        out.append((key, p.portfolio.issuer_max_pct, _counted(book, key, inside, counted, pct)))
     for s in p.sectors:
-        here = inside & (h.sector == s.name)
-        if s.issuer_max_pct is not None and here.any():
-            out.append((s.key("issuer_max_pct"), s.issuer_max_pct, float(pct[here].sum())))
+        here = h.sector == s.name
+        if s.issuer_max_pct is not None and (inside & here).any():
+            key = s.key("issuer_max_pct")
+            out.append((key, s.issuer_max_pct, _counted(book, key, inside, here, pct)))
     return out
 
 
 def issuer_table(book: Book, check: CheckResult, market_value, weight) -> Table:
-    """One row an issuer, largest first; the binding limit is the one with the least headroom."""
+    """One row an issuer family (a parent and its affiliates, ``issuers.csv``; an issuer on its own is
+    its own family), largest first; the binding limit is the one with the least headroom."""
     h = book.holdings
     pct = 100.0 * weight / weight.sum()
+    family = book.families.families(h.issuer)
     rows = []
-    for issuer in dict.fromkeys(h.issuer):
-        inside = h.issuer == issuer
-        limits = _issuer_limits(book, issuer, inside, pct)
+    for name in dict.fromkeys(family):
+        inside = family == name
+        members = tuple(dict.fromkeys(h.issuer[inside]))
+        limits = _issuer_limits(book, members, inside, pct)
         share = float(pct[inside].sum()) / 100.0
         sectors = ", ".join(dict.fromkeys(h.sector[inside]))
-        statuses = [_status(check, key, issuer) for key, _, _ in limits]
+        statuses = [_status(check, key, (name,) + members) for key, _, _ in limits]
         known = [s for s in statuses if s != NOT_CHECKED]
         status = worst(known) if len(known) == len(statuses) or worst(known) != PASS else NOT_CHECKED
+        listed = ", ".join(members)
         if limits:
             key, limit, counted = min(limits, key=lambda x: x[1] - x[2])
-            rows.append((issuer, sectors, int(inside.sum()), float(market_value[inside].sum()), share,
+            rows.append((name, listed, sectors, int(inside.sum()), float(market_value[inside].sum()), share,
                          counted / 100.0, limit / 100.0, (limit - counted) / 100.0, key, status))
         else:
-            rows.append((issuer, sectors, int(inside.sum()), float(market_value[inside].sum()), share,
+            rows.append((name, listed, sectors, int(inside.sum()), float(market_value[inside].sum()), share,
                          None, None, None, "exempt (no issuer limit applies)", status))
-    rows.sort(key=lambda r: -r[4])
-    return Table(f"By issuer ({book.policy.basis} value basis)", ISSUER_COLUMNS, tuple(rows))
+    rows.sort(key=lambda r: -r[5])
+    return Table(f"By issuer family ({book.policy.basis} value basis; affiliates from issuers.csv)",
+                 ISSUER_COLUMNS, tuple(rows))
 
 
 RATING_COLUMNS = (Column("rating", "Rating"), Column("scale", "Scale"), Column("count", "Holdings", "int"),

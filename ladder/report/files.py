@@ -11,6 +11,7 @@ import os
 import tempfile
 from pathlib import Path
 
+from ladder.errors import naming
 from ladder.folder.save import write_atomic
 from ladder.report.charts import chart_png
 from ladder.report.html import report_html
@@ -40,18 +41,28 @@ def report_stem(report: Report, folder_name: str) -> str:
     return f"{folder_name}-report-{report.as_of.isoformat()}"
 
 
+def _put(path: Path, data: str | bytes) -> None:
+    """One report file, atomically; an error of the operating system names ``path``."""
+    with naming(path):
+        if isinstance(data, str):
+            write_atomic(path, data)
+        else:
+            write_bytes_atomic(path, data)
+
+
 def write_report(report: Report, out: Path, fmt: str, folder_name: str) -> list[Path]:
     """Write ``report`` as ``fmt`` into ``out`` (created if needed); returns the files written."""
     out = Path(out)
-    out.mkdir(parents=True, exist_ok=True)
+    with naming(out):
+        out.mkdir(parents=True, exist_ok=True)
     stem = report_stem(report, folder_name)
     if fmt == "html":
         path = out / f"{stem}.html"
-        write_atomic(path, report_html(report), backup=False)
+        _put(path, report_html(report))
         return [path]
     if fmt == "xlsx":
         path = out / f"{stem}.xlsx"
-        write_bytes_atomic(path, report_xlsx(report))
+        _put(path, report_xlsx(report))
         return [path]
     if fmt != "md":
         raise ValueError(f"unknown report format {fmt!r}; known: {', '.join(FORMATS)}")
@@ -59,9 +70,9 @@ def write_report(report: Report, out: Path, fmt: str, folder_name: str) -> list[
     for s in report.sections:
         for k, chart in enumerate(s.charts):
             image = out / f"{stem}-{s.key}-{k + 1}.png"
-            write_bytes_atomic(image, chart_png(chart))
+            _put(image, chart_png(chart))
             names[(s.key, k)] = image.name
             written.append(image)
     path = out / f"{stem}.md"
-    write_atomic(path, report_md(report, names), backup=False)
+    _put(path, report_md(report, names))
     return [path] + written

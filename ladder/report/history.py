@@ -15,9 +15,11 @@ import datetime as dt
 import hashlib
 import json
 import sqlite3
-from contextlib import closing
+from contextlib import closing, contextmanager
 from dataclasses import dataclass
 from pathlib import Path
+
+from ladder.errors import FileFault
 
 HISTORY_FILE = "history.sqlite"
 
@@ -80,10 +82,17 @@ def input_file(role: str, path: Path) -> InputFile:
     return InputFile(role, Path(path).name, hashlib.sha256(content).hexdigest(), content)
 
 
-def _connect(path: Path) -> sqlite3.Connection:
-    conn = sqlite3.connect(path, isolation_level=None)
-    conn.execute("PRAGMA journal_mode=DELETE")
-    return conn
+@contextmanager
+def _connect(path: Path):
+    """The open database at ``path``, closed after the block; a damaged or unwritable database (or
+    one whose text is not UTF-8) becomes a ``FileFault`` naming the file and what to do."""
+    try:
+        with closing(sqlite3.connect(path, isolation_level=None)) as conn:
+            conn.execute("PRAGMA journal_mode=DELETE")
+            yield conn
+    except (sqlite3.DatabaseError, UnicodeDecodeError, json.JSONDecodeError) as exc:
+        raise FileFault(path, f"the history database cannot be used ({exc}); make the folder writable, or if "
+                              "the file is damaged move it aside (a new history starts) or put back a copy") from None
 
 
 def _ensure_schema(conn: sqlite3.Connection) -> None:
@@ -112,7 +121,7 @@ def _write(conn: sqlite3.Connection, s: Snapshot, files: tuple[InputFile, ...]) 
 def record_snapshot(book_or_folder, snapshot: Snapshot, files: tuple[InputFile, ...]) -> Path:
     """Store ``snapshot`` and its input files in one transaction (replacing one of the same date)."""
     path = history_path(book_or_folder)
-    with closing(_connect(path)) as conn:
+    with _connect(path) as conn:
         conn.execute("BEGIN IMMEDIATE")
         try:
             _ensure_schema(conn)
@@ -139,14 +148,20 @@ def _read(conn: sqlite3.Connection, key: str) -> Snapshot:
                     json.loads(row[9]))
 
 
-def _query(book_or_folder, sql: str, args=()) -> list[Snapshot]:
+@contextmanager
+def _reading(book_or_folder, table: str):
+    """A connection to the book's history database, or None when there is none yet or it has no ``table``."""
     path = history_path(book_or_folder)
     if not path.exists():
-        return []
-    with closing(_connect(path)) as conn:
-        if not conn.execute("SELECT name FROM sqlite_master WHERE name = 'snapshots'").fetchone():
-            return []
-        return [_read(conn, key) for (key,) in conn.execute(sql, args).fetchall()]
+        yield None
+        return
+    with _connect(path) as conn:
+        yield conn if conn.execute("SELECT name FROM sqlite_master WHERE name = ?", (table,)).fetchone() else None
+
+
+def _query(book_or_folder, sql: str, args=()) -> list[Snapshot]:
+    with _reading(book_or_folder, "snapshots") as conn:
+        return [] if conn is None else [_read(conn, key) for (key,) in conn.execute(sql, args).fetchall()]
 
 
 def snapshot_dates(book_or_folder) -> list[dt.date]:
@@ -173,8 +188,22 @@ def year_snapshots(book_or_folder, before: dt.date) -> list[Snapshot]:
 
 def input_content(book_or_folder, sha256: str) -> bytes:
     """The bytes of an input file recorded with a snapshot."""
-    with closing(_connect(history_path(book_or_folder))) as conn:
+    with _connect(history_path(book_or_folder)) as conn:
         row = conn.execute("SELECT content FROM contents WHERE sha256 = ?", (sha256,)).fetchone()
     if row is None:
         raise KeyError(sha256)
     return bytes(row[0])
+
+
+def rule_statuses(book_or_folder, before: dt.date) -> list[tuple[dt.date, dict[str, str]]]:
+    """Every recorded month-end before ``before``, newest first, with each rule's status then."""
+    with _reading(book_or_folder, "rules") as conn:
+        if conn is None:
+            return []
+        out: dict[str, dict[str, str]] = {}
+        for key, rule, status in conn.execute("SELECT as_of, rule, status FROM rules WHERE as_of < ? "
+                                              "ORDER BY as_of DESC", (before.isoformat(),)).fetchall():
+            out.setdefault(key, {})[rule] = status
+        dates = [key for (key,) in conn.execute("SELECT as_of FROM snapshots WHERE as_of < ? ORDER BY as_of DESC",
+                                                (before.isoformat(),)).fetchall()]
+    return [(dt.date.fromisoformat(key), out.get(key, {})) for key in dates]

@@ -7,6 +7,7 @@ import math
 
 import numpy as np
 
+from ladder.analysis.price_dates import PriceDates
 from ladder.analysis.valuation import Valuation
 from ladder.pricing.amortization import CallSchedule
 from ladder.report.accounting import Accounting
@@ -18,8 +19,9 @@ HOLDING_COLUMNS = (
     Column("coupon", "Coupon", "pct"), Column("maturity", "Maturity", "date"), Column("next_call", "Next call", "date"),
     Column("face", "Face", "money"), Column("amortized_cost", "Amortized cost", "money"),
     Column("market_value", "Market value", "money"), Column("unrealized_gain", "Unrealized gain/loss", "money"),
-    Column("book_yield", "Book yield", "pct"), Column("market_yield", "Market yield", "pct"),
+    Column("book_yield", "Book yield", "pct"), Column("market_yield", "Yield to worst", "pct"),
     Column("rating", "Ratings"), Column("share", "Share of portfolio", "pct"),
+    Column("price_date", "Price date", "date"), Column("stale", "Stale price"),
 )
 
 
@@ -54,22 +56,25 @@ def ratings_text(h, i: int) -> str:
     return " / ".join(r for r in (h.rating[i], h.short_rating[i]) if r) or "not rated"
 
 
-def holdings_table(v: Valuation, a: Accounting, source: str) -> Table:
-    """One row a holding (columns HOLDING_COLUMNS) and a total row; share on market value."""
+def holdings_table(v: Valuation, a: Accounting, source: str, prices: PriceDates) -> Table:
+    """One row a holding (columns HOLDING_COLUMNS) and a total row; share on market value; each
+    price's date and a stale flag (``ladder.analysis.price_dates``)."""
     h = v.holdings
     total_mv = float(v.market_value.sum())
     calls = next_calls(v, source)
-    market_yield = v.measures.bey
+    market_yield = v.yield_to_worst
     rows = []
     for i in range(len(h)):
         coupon = float(h.coupon[i]) if h.kind[i] in ("fixed", "at_maturity") else None
         rows.append((h.id[i], h.issuer[i], h.sector[i], coupon, _date(h.maturity[i]), _date(calls[i]),
                      float(h.face[i]), _number(a.amortized_cost[i]), float(v.market_value[i]),
                      _number(a.unrealized_gain[i]), _number(a.book_yield[i]), _number(market_yield[i]),
-                     ratings_text(h, i), float(v.market_value[i]) / total_mv))
+                     ratings_text(h, i), float(v.market_value[i]) / total_mv, _date(prices.date[i]),
+                     f"stale: {int(prices.age_days[i])} days old" if prices.stale[i] else ""))
     total = ("Total", f"{len(h)} holdings", None, None, None, None, float(h.face.sum()),
              _number(np.nansum(a.amortized_cost)), total_mv, _number(np.nansum(a.unrealized_gain)),
-             _weighted(a.book_yield, a.amortized_cost), _number(v.totals.ytm), None, 1.0)
+             _weighted(a.book_yield, a.amortized_cost), _number(v.totals.yield_to_worst), None, 1.0, prices.oldest,
+             f"{int(prices.stale.sum())} stale")
     return Table("Holdings", HOLDING_COLUMNS, tuple(rows), total)
 
 
@@ -77,13 +82,22 @@ ACTIVITY_COLUMNS = (
     Column("date", "Date", "date"), Column("action", "Action"), Column("holding", "Holding"),
     Column("face", "Face", "money"), Column("amount", "Cash amount", "money"), Column("price", "Price", "price"),
     Column("reason", "Reason"), Column("recorded", "Recorded (UTC)"),
+    Column("book_value", "Book value (amortized cost)", "money"), Column("source", "Source"),
 )
+FROM_HOLDINGS = "taken from the holdings: purchase date in the period, no journal line"
 
 
-def activity_table(entries: tuple[JournalEntry, ...]) -> Table:
-    """The journal's entries of the period, in the order they were recorded."""
+def activity_table(entries: tuple[JournalEntry, ...], purchases=(), unexplained=()) -> Table:
+    """The journal's entries of the period, in the order they were recorded (those in ``unexplained``
+    marked), then ``purchases`` (``ladder.report.roll_forward.Purchase``) taken from the holdings."""
+    short = {id(e) for e in unexplained}
     rows = tuple((e.date, e.action, e.holding, _number(e.face), _number(e.amount), _number(e.price), e.reason,
-                  e.recorded) for e in entries)
+                  e.recorded, _number(e.book_value),
+                  "journal (unexplained: lacks amount or book value)" if id(e) in short else "journal")
+                 for e in entries)
+    rows += tuple((p.date, "buy", p.holding, p.face, None, None, FROM_HOLDINGS, "", _number(p.cost), "holdings")
+                  for p in purchases if p.source == "holdings")
     amounts = [r[4] for r in rows if r[4] is not None]
-    total = ("Total", f"{len(rows)} entries", None, None, float(sum(amounts)) if amounts else None, None, None, None)
+    total = ("Total", f"{len(rows)} entries", None, None, float(sum(amounts)) if amounts else None, None,
+             f"{len(short)} unexplained", None, None, None)
     return Table("Activity recorded in the journal", ACTIVITY_COLUMNS, rows, total)

@@ -3,8 +3,8 @@
 from __future__ import annotations
 
 import base64
-from html import escape
 
+from ladder.neutralize import safe_html as escape
 from ladder.report.cells import cell_text, is_number
 from ladder.report.charts import chart_png
 from ladder.report.model import Report, Section, Table

@@ -1,10 +1,13 @@
-"""The income projection and the six-month liquidity statement of the month-end report.
+"""The income projection and the liquidity statement of the month-end report.
 
 Months run from the day after the settlement date to each calendar month-end (a month-end
 settlement date gives whole months). Cash: coupons and principal of the holdings by payment date
 (funds excluded: a fund is available at its balance on any day). Income: interest earned by the
 effective-interest method (``ladder.report.accounting.interest_by_period``), holdings as they stand,
 each earning until it matures, nothing reinvested. Cash needs: ``cash_needs.csv`` (+ needed).
+The liquidity statement runs over the policy's cash-needs horizon (``LIQUIDITY_MONTHS`` when the
+policy sets none) and reads the coverage from ``ladder.policy.liquidity.needs_coverage``, the
+answer the checker's cash-needs rule, the Ladder view and the cash plan give.
 """
 
 from __future__ import annotations
@@ -14,11 +17,12 @@ import numpy as np
 from ladder.analysis.valuation import Valuation
 from ladder.folder.book_file import Book
 from ladder.market.dates import add_months, month_end
+from ladder.policy.liquidity import needs_coverage
 from ladder.report.accounting import interest_by_period
 from ladder.report.model import Chart, Column, Table
 
 PROJECTION_MONTHS = 12
-LIQUIDITY_MONTHS = 6
+LIQUIDITY_MONTHS = 12
 
 
 def month_boundaries(as_of, months: int) -> np.ndarray:
@@ -76,29 +80,33 @@ def income_projection(book: Book, v: Valuation, plan_boundaries, plan_income) ->
 
 
 LIQUIDITY_COLUMNS = (Column("month", "Month"), Column("coming_in", "Maturities and coupons", "money"),
-                     Column("needs", "Net cash needs", "money"), Column("available", "Available at month-end", "money"))
+                     Column("needs", "Net cash needs", "money"), Column("available", "Available at month-end", "money"),
+                     Column("status", "Needs so far"))
 
 
 def liquidity_statement(book: Book, v: Valuation) -> tuple[Table, str]:
-    """Six months of fund balances plus maturities and coupons against the cash needs, and the statement."""
-    b = month_boundaries(v.as_of, LIQUIDITY_MONTHS)
+    """Fund balances plus maturities and coupons against the cash needs over the policy's cash-needs
+    horizon, month by month, and the statement."""
+    months = book.policy.portfolio.cash_needs_horizon_months or LIQUIDITY_MONTHS
+    b = month_boundaries(v.as_of, months)
     coupons, principal = cash_by_period(v, b)
     needs = _by_period(book.cash_needs.date, book.cash_needs.amount, b)
     funds = float(v.market_value[v.holdings.kind == "fund"].sum())
-    available = funds + np.cumsum(coupons + principal - needs)
+    cover = needs_coverage(funds, coupons + principal, needs)
+    available = cover.headroom
     labels = [str(d.astype("datetime64[M]")) for d in b[1:]]
-    rows = tuple((m, float(c + p), float(n), float(a)) for m, c, p, n, a in zip(labels, coupons, principal, needs,
-                                                                              available))
+    rows = tuple((m, float(c + p), float(n), float(a), s) for m, c, p, n, a, s in zip(
+        labels, coupons, principal, needs, available, cover.status))
     low = int(np.argmin(available))
     cur = book.currency
-    if available.min() >= 0:
-        text = (f"Liquidity for the next six months: fund and sweep balances of {cur} {funds:,.0f} plus "
+    if cover.first_uncovered is None:
+        text = (f"Liquidity for the next {months} months: fund and sweep balances of {cur} {funds:,.0f} plus "
                 f"{cur} {float((coupons + principal).sum()):,.0f} of maturities and coupons cover the "
                 f"{cur} {float(needs.sum()):,.0f} of net cash needs forecast in cash_needs.csv in every month; "
                 f"the lowest month-end balance is {cur} {available[low]:,.0f} ({labels[low]}), before any "
                 "sale or reinvestment.")
     else:
-        text = (f"Liquidity for the next six months is NOT sufficient: by {labels[low]} the net cash needs "
+        text = (f"Liquidity for the next {months} months is NOT sufficient: by {labels[low]} the net cash needs "
                 f"exceed fund balances plus maturities and coupons by {cur} {-available[low]:,.0f}; holdings "
                 "would have to be sold before maturity or cash found elsewhere.")
-    return Table("Six-month liquidity", LIQUIDITY_COLUMNS, rows), text
+    return Table(f"Liquidity, next {months} months", LIQUIDITY_COLUMNS, rows), text

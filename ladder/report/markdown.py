@@ -2,12 +2,9 @@
 
 from __future__ import annotations
 
+from ladder.neutralize import safe_markdown as _cell
 from ladder.report.cells import cell_text
 from ladder.report.model import Report, Table
-
-
-def _cell(text: str) -> str:
-    return text.replace("|", "\\|").replace("\n", " ")
 
 
 def table_md(table: Table) -> str:
@@ -23,18 +20,18 @@ def table_md(table: Table) -> str:
 
 def report_md(report: Report, image_names: dict[tuple[str, int], str] | None = None) -> str:
     """The whole report; ``image_names`` maps (section key, chart index) to the PNG file written beside it."""
-    cautions = "\n".join(f"> - {c}" for c in report.cautions)
-    out = [f"# {report.title}", "", f"Period {report.period_start.isoformat()} (exclusive) to "
+    cautions = "\n".join(f"> - {_cell(c)}" for c in report.cautions)
+    out = [f"# {_cell(report.title)}", "", f"Period {report.period_start.isoformat()} (exclusive) to "
            f"{report.as_of.isoformat()}.", "", "> **Cautions**", cautions, ""]
     for s in report.sections:
-        out += [f"## {s.title}", ""]
-        out += [note + "\n" for note in s.notes[:1]]
+        out += [f"## {_cell(s.title)}", ""]
+        out += [_cell(note) + "\n" for note in s.notes[:1]]
         out += [table_md(t) + "\n" for t in s.tables]
         for k, chart in enumerate(s.charts):
             name = (image_names or {}).get((s.key, k))
             if name:
-                out += [f"![{chart.title}]({name})", ""]
-        out += [note + "\n" for note in s.notes[1:]]
-        out += [f"{line}: ______________________________\n" for line in s.signatures]
+                out += [f"![{_cell(chart.title)}]({name})", ""]
+        out += [_cell(note) + "\n" for note in s.notes[1:]]
+        out += [f"{_cell(line)}: ______________________________\n" for line in s.signatures]
     out += ["---", "", "> **Cautions**", cautions, ""]
     return "\n".join(out)

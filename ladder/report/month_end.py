@@ -19,6 +19,7 @@ from dataclasses import dataclass
 from ladder import __version__
 from ladder.analysis.check import check_book, position_measures
 from ladder.analysis.plan import plan_book
+from ladder.analysis.price_dates import price_dates
 from ladder.analysis.shock import shock_book
 from ladder.analysis.valuation import Valuation
 from ladder.folder.book_file import BOOK_FILE, Book
@@ -28,11 +29,13 @@ from ladder.report.accounting import Accounting, accounting_figures
 from ladder.report.allocation import issuer_table, maturity_table, rating_table, sector_table
 from ladder.report.certificate import certificate_section
 from ladder.report.departed import departed_income, departed_table, previous_holdings
+from ladder.report.findings import open_findings
 from ladder.report.history import InputFile, Snapshot, input_file
 from ladder.report.holdings_table import activity_table, holdings_table
 from ladder.report.income import income_projection, liquidity_statement
 from ladder.folder.journal import entries_between, journal_path, read_journal
 from ladder.report.model import Report, Section
+from ladder.report.roll_forward import RollForward, realized_table, roll_forward, roll_forward_notes, roll_forward_table
 from ladder.report.shock_table import shock_section
 from ladder.report.summary import summary_figures, summary_table
 from ladder.risk.scenarios import parallel_set
@@ -58,6 +61,7 @@ class MonthEnd:
     valuation: Valuation
     accounting: Accounting
     check: CheckResult
+    roll_forward: RollForward
 
 
 def previous_month_end(day: dt.date) -> dt.date:
@@ -82,7 +86,7 @@ def _number(x):
 
 def _holding_figures(v: Valuation, a: Accounting) -> dict[str, dict]:
     fields = {"face": v.holdings.face, "market_value": v.market_value, "amortized_cost": a.amortized_cost,
-              "unrealized_gain": a.unrealized_gain, "book_yield": a.book_yield, "market_yield": v.measures.bey,
+              "unrealized_gain": a.unrealized_gain, "book_yield": a.book_yield, "market_yield": v.yield_to_worst,
               "effective_duration": v.effective_duration, "interest_earned": a.interest_earned}
     return {hid: {k: _number(x[i]) for k, x in fields.items()} for i, hid in enumerate(v.holdings.id)}
 
@@ -98,15 +102,18 @@ def _missing_cost_note(v: Valuation, a: Accounting) -> tuple[str, ...]:
 def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
     """The month-end report of ``book`` at ``at`` (default: its valuation date)."""
     checked = check_book(book, at)
-    v, check = checked.valuation, checked.result
+    v = checked.valuation
+    check, found = open_findings(book, checked.result, book.policy.cure_days)
     previous = history.previous_snapshot(book, v.as_of)
     start = previous.as_of if previous else previous_month_end(v.as_of)
     a = accounting_figures(v, start)
+    prices = price_dates(v, book.valuation_date)
     journal = read_journal(book)
     activity = entries_between(journal, start, v.as_of)
-    departed = departed_income(previous_holdings(book, previous) if previous else None, v.holdings.id, start,
-                               v.as_of, activity)
-    figures = summary_figures(v, a, previous, departed)
+    before = previous_holdings(book, previous) if previous else None
+    departed = departed_income(before, v.holdings.id, start, v.as_of, activity)
+    rolled = roll_forward(v, a, start, previous, before, departed, activity)
+    figures = summary_figures(v, a, previous, departed, rolled.realized_gain)
     year = history.year_snapshots(book, v.as_of)
     inputs = input_files(book)
     checksums = {f.role: (f.name, f.sha256) for f in inputs}
@@ -127,15 +134,18 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
                  f"({len(year)} earlier month-end(s) of {v.as_of.year} in the history).",
                  "Market value includes accrued interest; unrealized gain or loss is the clean value less the "
                  "amortized cost (effective-interest method).")),
-        Section("holdings", "Holdings detail", (holdings_table(v, a, str(book.files["holdings"])),),
+        Section("holdings", "Holdings detail", (holdings_table(v, a, str(book.files["holdings"]), prices),),
                 ("Amortized cost by the effective-interest method; a premium on a callable is amortized to its "
                  "earliest call at the call price and reset if the bond is not called. Book yield: the effective "
-                 "yield at purchase. Market yield: bond-equivalent yield at today's price. Share: of market value.",
+                 "yield at purchase. Yield to worst: bond-equivalent yield at today's price, to the worst call date for a callable and to maturity otherwise. Share: of market value.",
                  *_missing_cost_note(v, a))),
-        Section("activity", "Activity", (activity_table(activity), departed_table(departed)),
-                (f"Every entry of {journal_path(book).name} dated in the period {period}, as recorded.",
+        Section("activity", "Activity",
+                (activity_table(activity, rolled.purchases, rolled.unexplained_entries), departed_table(departed),
+                 roll_forward_table(rolled), realized_table(rolled)),
+                (f"Every entry of {journal_path(book).name} dated in the period {period}, as recorded, then the "
+                 "purchases taken from the holdings file (purchase date in the period, no journal line).",
                  "Holdings in last month's snapshot that are no longer held earned interest until they left; "
-                 "that income is part of the period's income in the summary.")),
+                 "that income is part of the period's income in the summary.", *roll_forward_notes(rolled))),
         Section("allocation", "Allocation against limits",
                 (sector_table(book, check, v.market_value, weight), issuer_table(book, check, v.market_value, weight),
                  rating_table(book, check, v.market_value, weight)),
@@ -152,7 +162,7 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
                  "balance; beside it the cash plan's accrual income with maturities reinvested by the book's rule "
                  "and shortfalls met by sales (ladder plan, base case). Coupons and principal by payment date.",),
                 (income_chart,)),
-        certificate_section(book, check, v, liquidity, liquidity_text, checksums),
+        certificate_section(book, check, v, liquidity, liquidity_text, checksums, prices, found),
     )
     report = Report(f"{book.name}: month-end report at {v.as_of.isoformat()}", book.name, v.as_of, start, sections,
                     REPORT_CAUTIONS)
@@ -164,7 +174,7 @@ def month_end_report(book: Book, at: dt.date | None = None) -> MonthEnd:
         rules={r.rule: (r.status, None if r.limit is None else str(r.limit), None if r.actual is None else str(r.actual))
                for r in check.rules},
         inputs=checksums, document=report.to_json())
-    return MonthEnd(report, snapshot, inputs, v, a, check)
+    return MonthEnd(report, snapshot, inputs, v, a, check, rolled)
 
 
 def record_month_end(book: Book, m: MonthEnd):

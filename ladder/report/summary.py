@@ -32,7 +32,8 @@ FIGURES = (
     ("amortization", "Accretion of discount less amortization of premium", "money", True),
     ("interest_earned", "Income for the period (interest earned)", "money", True),
     ("departed_income", "of which: holdings that left the book in the period", "money", True),
-    ("market_yield", "Market yield (bond-equivalent, weighted by market value)", "pct", False),
+    ("realized_gain", "Realized gain or loss (sales, maturities, calls against amortized cost)", "money", True),
+    ("market_yield", "Yield to worst (bond-equivalent, weighted by market value)", "pct", False),
     ("book_yield", "Book yield (effective yield, weighted by amortized cost)", "pct", False),
     ("effective_duration", "Effective duration, years", "years", False),
     ("modified_duration", "Modified duration, years", "years", False),
@@ -47,8 +48,10 @@ def _weighted(values, weights) -> float:
     return float((values[ok] * weights[ok]).sum() / total) if total else math.nan
 
 
-def summary_figures(v: Valuation, a: Accounting, previous: Snapshot | None, departed: Departed) -> dict[str, float]:
-    """This month-end's figures by name (see FIGURES); the period's income includes ``departed``'s."""
+def summary_figures(v: Valuation, a: Accounting, previous: Snapshot | None, departed: Departed,
+                    realized_gain: float = 0.0) -> dict[str, float]:
+    """This month-end's figures by name (see FIGURES); the period's income includes ``departed``'s;
+    ``realized_gain`` is the roll-forward's (``ladder.report.roll_forward``)."""
     t = v.totals
     gone = float(departed.interest_earned.sum())
     face = v.holdings.face / 100.0
@@ -59,8 +62,8 @@ def summary_figures(v: Valuation, a: Accounting, previous: Snapshot | None, depa
         "face": t.face, "count": float(t.count),
         "coupon_income": a.total("coupon_income") + float(departed.coupon_income.sum()),
         "amortization": a.total("amortization") + float(departed.amortization.sum()),
-        "interest_earned": a.total("interest_earned") + gone, "departed_income": gone,
-        "market_yield": t.ytm, "book_yield": _weighted(a.book_yield, a.amortized_cost),
+        "interest_earned": a.total("interest_earned") + gone, "departed_income": gone, "realized_gain": realized_gain,
+        "market_yield": t.yield_to_worst, "book_yield": _weighted(a.book_yield, a.amortized_cost),
         "effective_duration": t.effective_duration, "modified_duration": t.modified_duration,
         "wam_days": t.wam_days, "dv01": t.dv01,
     }

@@ -16,6 +16,10 @@ Estimates of a holding's change in value V under a scenario (docs/methods.md, "R
   holding's exposure-weighted shift ``e = sum_k |KRD_k| dy_k / sum_k |KRD_k|``, which is dy for a
   parallel move. That takes the holding's convexity across tenors as C w w' with w its duration
   weights: exact for a parallel move and for a holding whose rate risk sits at one tenor.
+- a move ds of the holding's spread (a credit scenario, alone or with a rate move) adds
+  ``-V SD ds`` to the duration estimate and ``-V SD ds + V SC ds^2 / 2`` to the duration-plus-
+  convexity estimate, with the spread duration SD and spread convexity SC (``ladder.risk.credit``);
+  the cross term of rate and spread moves is left out.
 Errors are estimate minus exact: positive when the estimate overstates the value.
 """
 
@@ -59,12 +63,15 @@ def is_parallel(tenor_shifts) -> np.ndarray:
     return np.all(shifts == shifts[:, :1], axis=1)
 
 
-def estimated_changes(base_value, duration, convexity, krd, tenor_shifts) -> tuple[np.ndarray, np.ndarray]:
+def estimated_changes(base_value, duration, convexity, krd, tenor_shifts, spread_duration=None,
+                      spread_convexity=None, spread_shifts=None) -> tuple[np.ndarray, np.ndarray]:
     """(duration-only, duration-plus-convexity) estimated changes in value, (S, n) each.
 
     ``base_value`` (n,) currency; ``duration``, ``convexity`` (n,) effective; ``krd`` (n, K);
     ``tenor_shifts`` (S, K) decimal. Parallel scenarios use D dy, the others the key-rate sum
-    (module docstring); both add C e^2 / 2 on the exposure-weighted shift e.
+    (module docstring); both add C e^2 / 2 on the exposure-weighted shift e. With
+    ``spread_shifts`` (S, n) decimal, the spread terms with ``spread_duration`` and
+    ``spread_convexity`` (n,) are added.
     """
     base_value = np.asarray(base_value, dtype=np.float64)
     tenor_shifts = np.atleast_2d(np.asarray(tenor_shifts, dtype=np.float64))
@@ -72,7 +79,12 @@ def estimated_changes(base_value, duration, convexity, krd, tenor_shifts) -> tup
     key_rate = tenor_shifts @ np.asarray(krd, dtype=np.float64).T                 # (S, n)
     first = -base_value * np.where(parallel, duration * tenor_shifts[:, :1], key_rate)
     shift = np.where(parallel, tenor_shifts[:, :1], exposure_weighted_shifts(krd, tenor_shifts))
-    return first, first + 0.5 * base_value * convexity * shift**2
+    second = first + 0.5 * base_value * convexity * shift**2
+    if spread_shifts is None:
+        return first, second
+    ds = np.asarray(spread_shifts, dtype=np.float64)
+    spread_first = -base_value * spread_duration * ds
+    return first + spread_first, second + spread_first + 0.5 * base_value * spread_convexity * ds**2
 
 
 class _EstimateErrors:
@@ -138,14 +150,17 @@ class Revaluation(_EstimateErrors):
                               one_hot @ self.est_duration_convexity.T)
 
 
-def revalue(base_value, base_price, prices, face, duration, convexity, krd, tenor_shifts) -> Revaluation:
+def revalue(base_value, base_price, prices, face, duration, convexity, krd, tenor_shifts, spread_duration=None,
+            spread_convexity=None, spread_shifts=None) -> Revaluation:
     """The Revaluation of n holdings from their repriced dirty prices per 100.
 
     ``base_value`` (n,) market value; ``base_price`` (n,) the engine's price on the base curve;
-    ``prices`` (S, n) on the scenario curves; ``face`` (n,) currency. The exact value is the base
-    value plus the engine's change in price, so a zero move changes nothing.
+    ``prices`` (S, n) on the scenario curves (at the scenarios' spreads); ``face`` (n,) currency. The
+    exact value is the base value plus the engine's change in price, so a zero move changes nothing.
+    The spread arguments are those of ``estimated_changes``.
     """
     base_value = np.asarray(base_value, dtype=np.float64)
     value = base_value + (np.asarray(prices) - base_price) * (np.asarray(face, dtype=np.float64) / 100.0)
-    first, second = estimated_changes(base_value, duration, convexity, krd, tenor_shifts)
+    first, second = estimated_changes(base_value, duration, convexity, krd, tenor_shifts, spread_duration,
+                                      spread_convexity, spread_shifts)
     return Revaluation(base_value, value, base_value + first, base_value + second)

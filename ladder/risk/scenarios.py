@@ -1,4 +1,5 @@
-"""Rate scenarios: moves of the quoted par yields, in basis points, one number per curve tenor.
+"""Rate and credit scenarios: moves of the quoted par yields, in basis points, one number per curve
+tenor, and moves of the holdings' spreads by sector and rating bucket, in basis points.
 
 A scenario moves the par yields of ``curve.csv``, and the curve is then rebuilt from them
 (``Curve.shifted``): "+100 bp" means every par yield 100 bp higher, as a treasurer reads it.
@@ -20,8 +21,15 @@ Built-in shapes and their documented default sizes:
   +/-bp bumps sum to the effective duration within 0.04% at 0.01 bp, 1.6% at 0.1 bp, 9% at 1 bp and
   19% at 25 bp under monotone convex (not linear in its inputs), and within 0.13% at 25 bp under
   log-linear; so take key-rate durations from small bumps (0.01 bp) on a monotone convex curve;
-- user scenarios from ``scenarios.csv`` (``scenario,tenor,shift_bp``): each scenario's points,
-  named by curve tenors, interpolated linearly across the other tenors and flat beyond its ends.
+- user scenarios from ``scenarios.csv`` (``scenario,tenor,shift_bp[,sector,bucket]``): each
+  scenario's points, named by curve tenors, interpolated linearly across the other tenors and flat
+  beyond its ends; rows naming a sector are spread moves (below);
+- credit: the standard credit set (``ladder.risk.credit``).
+
+A spread move (``SpreadMove``) adds basis points to the spread (z-spread, or OAS for a callable) of
+every holding of a sector, or of one rating bucket of it, at every tenor. A holding takes the move
+of its long-term bucket, else of its short-term bucket, else the sector's move for every bucket,
+else none (the order the spread table is read in).
 """
 
 from __future__ import annotations
@@ -32,9 +40,12 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ladder.book.holdings import SECTORS, Holdings
 from ladder.errors import Problems
 from ladder.market.tenors import tenor_label, tenor_months
 from ladder.pricing.curve import ParCurve
+from ladder.pricing.spreads import RATING_BUCKETS, rating_buckets
+from ladder.book.cells import parse_number
 from ladder.book.table_file import read_rows
 
 DEFAULT_PARALLEL_BP = (-300.0, -200.0, -100.0, -50.0, -25.0, 0.0, 25.0, 50.0, 100.0, 200.0, 300.0)
@@ -43,19 +54,36 @@ DEFAULT_ROTATION_BP = 100.0
 SHORT_END = ("1Y", "2Y")     # full move up to the first, none from the second
 LONG_END = ("2Y", "5Y")      # none up to the first, full move from the second
 MAX_SHIFT_BP = 1000.0        # a larger move is taken as a typing error
-SCENARIO_COLUMNS = ("scenario", "tenor", "shift_bp")
-KINDS = ("parallel", "twist", "steepener", "flattener", "short_end", "long_end", "key_rate", "user")
+SCENARIO_COLUMNS = ("scenario", "tenor", "shift_bp", "sector", "bucket")
+REQUIRED_COLUMNS = ("scenario", "tenor", "shift_bp")
+KINDS = ("parallel", "twist", "steepener", "flattener", "short_end", "long_end", "key_rate", "credit", "user")
+
+
+@dataclass(frozen=True)
+class SpreadMove:
+    """``bp`` added to the spreads of ``sector``'s holdings in ``bucket`` (one of RATING_BUCKETS), or
+    in every bucket when ``bucket`` is ""."""
+
+    sector: str
+    bucket: str
+    bp: float
+
+    def __post_init__(self) -> None:
+        if self.sector not in SECTORS or self.bucket not in ("", *RATING_BUCKETS) or not math.isfinite(self.bp):
+            raise ValueError(f"bad spread move {self!r}")
 
 
 @dataclass(frozen=True, eq=False)
 class Scenario:
     """A named move of the par yields: ``shift_bp_by_tenor`` float64 (n,) aligned to the curve's
-    tenors, in basis points; ``parallel_bp`` the size of a parallel move, else None."""
+    tenors, in basis points; ``parallel_bp`` the size of a parallel move, else None; and the moves of
+    the spreads, ``spread_moves`` (none for a pure rate move)."""
 
     name: str
     kind: str
     shift_bp_by_tenor: np.ndarray
     parallel_bp: float | None = None
+    spread_moves: tuple[SpreadMove, ...] = ()
 
     def __post_init__(self) -> None:
         shift = np.asarray(self.shift_bp_by_tenor, dtype=np.float64)
@@ -63,7 +91,27 @@ class Scenario:
             raise ValueError(f"unknown scenario kind {self.kind!r}; known: {', '.join(KINDS)}")
         if shift.ndim != 1 or not np.all(np.isfinite(shift)):
             raise ValueError("shift_bp_by_tenor must be a finite 1-D array (one value per tenor)")
+        keys = [(m.sector, m.bucket) for m in self.spread_moves]
+        if len(set(keys)) != len(keys):
+            raise ValueError(f"scenario {self.name!r} moves one sector and bucket twice")
         object.__setattr__(self, "shift_bp_by_tenor", shift)
+        object.__setattr__(self, "spread_moves", tuple(self.spread_moves))
+
+    def spread_shift_bp(self, holdings: Holdings) -> np.ndarray:
+        """Each holding's spread move, bp (n,): see the module docstring for which move applies."""
+        out = np.zeros(len(holdings))
+        if not self.spread_moves:
+            return out
+        long_, short = rating_buckets(holdings)
+        done = np.zeros(len(holdings), dtype=bool)
+        for bucket_of in (long_, short, None):          # the long bucket's move first, the sector's last
+            for m in self.spread_moves:
+                if (m.bucket == "") != (bucket_of is None):
+                    continue
+                rows = ~done & (holdings.sector == m.sector) & (True if bucket_of is None else bucket_of == m.bucket)
+                out[rows] = m.bp
+                done |= rows
+        return out
 
 
 def _bp_name(bp: float) -> str:
@@ -133,11 +181,15 @@ def long_end_move(par_curve: ParCurve, bp: float, zero_to: str = LONG_END[0],
 def standard_non_parallel(par_curve: ParCurve) -> tuple[Scenario, ...]:
     """The default non-parallel set: steepener and flattener of 100 bp about 2Y, short-end and
     long-end moves of +/-100 bp, and a twist of +50 bp at the short end and -50 bp at the long end
-    about 5Y (where the curve has tenors on both sides of 5Y)."""
-    scenarios = [steepener(par_curve), flattener(par_curve),
-                 short_end_move(par_curve, 100.0), short_end_move(par_curve, -100.0),
-                 long_end_move(par_curve, 100.0), long_end_move(par_curve, -100.0)]
-    if par_curve.years[0] < 5.0 < par_curve.years[-1]:
+    about 5Y. A rotation is left out of the set where the curve has no tenor on one side of its
+    pivot (a curve of 3M and 1Y only has no steepener about 2Y): it could not turn about it."""
+    def inside(pivot: str) -> bool:
+        return par_curve.years[0] < _tenor_years(pivot) < par_curve.years[-1]
+
+    scenarios = [steepener(par_curve), flattener(par_curve)] if inside(DEFAULT_PIVOT) else []
+    scenarios += [short_end_move(par_curve, 100.0), short_end_move(par_curve, -100.0),
+                  long_end_move(par_curve, 100.0), long_end_move(par_curve, -100.0)]
+    if inside("5Y"):
         scenarios.append(twist(par_curve, 50.0, -50.0, "5Y"))
     return tuple(scenarios)
 
@@ -155,10 +207,20 @@ def shift_matrix(scenarios: Sequence[Scenario]) -> np.ndarray:
 
 def _shift(text: str) -> float | None:
     try:
-        value = float(text)
+        return parse_number(text)
     except ValueError:
         return None
-    return value if math.isfinite(value) else None
+
+
+def _checked_shift(name: str, r: int, c: int, text: str, problems: Problems) -> float | None:
+    """The shift in bp of a cell, or None with the problem added."""
+    value = _shift(text)
+    if value is None:
+        problems.add(name, r, c, f"shift {text!r} is not a number of basis points")
+    elif abs(value) > MAX_SHIFT_BP:
+        problems.add(name, r, c, f"shift {text} bp is beyond +/-{MAX_SHIFT_BP:g} bp")
+        return None
+    return value
 
 
 def parse_bp_list(text: str, source: str = "--bp") -> tuple[float, ...]:
@@ -181,22 +243,59 @@ def parse_bp_list(text: str, source: str = "--bp") -> tuple[float, ...]:
     return tuple(sorted(set(values)))
 
 
-def read_scenarios(path, par_curve: ParCurve) -> tuple[Scenario, ...]:
-    """User scenarios from ``path`` (``scenario,tenor,shift_bp``), in order of first appearance.
+def _spread_row(name: str, r: int, cells: dict, problems: Problems) -> tuple[str, str] | None:
+    """(sector, bucket) of a spread-move row, or None with the problems added."""
+    c, sector = cells["sector"]
+    ok = True
+    if sector not in SECTORS:
+        problems.add(name, r, c, f"unknown sector {sector!r}; known: {', '.join(SECTORS)}")
+        ok = False
+    c, bucket = cells["bucket"]
+    if bucket not in ("", *RATING_BUCKETS):
+        problems.add(name, r, c, f"unknown rating bucket {bucket!r}; known: {', '.join(RATING_BUCKETS)} "
+                                 "(or blank for every bucket of the sector)")
+        ok = False
+    c, tenor = cells["tenor"]
+    if tenor:
+        problems.add(name, r, c, "a spread move applies at every tenor: leave tenor blank on a row with a sector")
+        ok = False
+    return (sector, bucket) if ok else None
 
-    Tenors must be the curve's own; each scenario's shifts are interpolated linearly (in tenor
-    years) across the curve's other tenors and held flat beyond its first and last named tenor.
-    Raises ``InputError`` with every problem.
+
+def read_scenarios(path, par_curve: ParCurve) -> tuple[Scenario, ...]:
+    """User scenarios from ``path`` (``scenario,tenor,shift_bp[,sector,bucket]``), in order of first
+    appearance.
+
+    A row with no sector moves the par yield at ``tenor``, which must be one of the curve's own; each
+    scenario's shifts are interpolated linearly (in tenor years) across the curve's other tenors and
+    held flat beyond its first and last named tenor (no rate rows: no rate move). A row with a sector
+    (and optionally a bucket, tenor blank) moves those spreads by ``shift_bp``. Raises
+    ``InputError`` with every problem.
     """
     name = str(path)
     problems = Problems()
-    rows = read_rows(path, SCENARIO_COLUMNS, problems)
+    rows = read_rows(path, SCENARIO_COLUMNS, problems, REQUIRED_COLUMNS)
     on_curve = {m: i for i, m in enumerate(par_curve.months)}
     points: dict[str, dict[int, tuple[int, float]]] = {}     # scenario -> curve index -> (row, bp)
+    spread_points: dict[str, dict[tuple[str, str], tuple[int, float]]] = {}   # -> (sector, bucket) -> (row, bp)
     for r, cells in rows:
         c, label = cells["scenario"]
         if not label:
             problems.add(name, r, c, "the scenario has no name")
+        points.setdefault(label, {})
+        if cells["sector"][1] or cells["bucket"][1]:
+            key = _spread_row(name, r, cells, problems)
+            c, text = cells["shift_bp"]
+            value = _checked_shift(name, r, c, text, problems)
+            if not label or key is None or value is None:
+                continue
+            seen = spread_points.setdefault(label, {})
+            if key in seen:
+                problems.add(name, r, cells["sector"][0], f"scenario {label!r} moves {' '.join(filter(None, key))} "
+                                                          f"twice (also row {seen[key][0]})")
+            else:
+                seen[key] = (r, value)
+            continue
         c, text = cells["tenor"]
         try:
             index = on_curve.get(tenor_months(text))
@@ -207,14 +306,10 @@ def read_scenarios(path, par_curve: ParCurve) -> tuple[Scenario, ...]:
             index = None
             problems.add(name, r, c, str(error))
         c, text = cells["shift_bp"]
-        value = _shift(text)
-        if value is None:
-            problems.add(name, r, c, f"shift {text!r} is not a number of basis points")
-        elif abs(value) > MAX_SHIFT_BP:
-            problems.add(name, r, c, f"shift {text} bp is beyond +/-{MAX_SHIFT_BP:g} bp")
+        value = _checked_shift(name, r, c, text, problems)
         if not label or index is None or value is None:
             continue
-        seen = points.setdefault(label, {})
+        seen = points[label]
         if index in seen:
             problems.add(name, r, cells["tenor"][0], f"scenario {label!r} gives tenor "
                                                      f"{par_curve.tenors[index]} twice (also row {seen[index][0]})")
@@ -226,7 +321,10 @@ def read_scenarios(path, par_curve: ParCurve) -> tuple[Scenario, ...]:
     years = par_curve.years
     scenarios = []
     for label, by_index in points.items():
-        index = np.array(sorted(by_index))
+        index = np.array(sorted(by_index), dtype=np.int64)
         shifts = np.array([by_index[i][1] for i in index])
-        scenarios.append(Scenario(label, "user", np.interp(years, years[index], shifts)))
+        rates = np.interp(years, years[index], shifts) if len(index) else np.zeros(len(years))
+        moves = tuple(SpreadMove(sector, bucket, bp) for (sector, bucket), (_, bp)
+                      in spread_points.get(label, {}).items())
+        scenarios.append(Scenario(label, "user", rates, spread_moves=moves))
     return tuple(scenarios)

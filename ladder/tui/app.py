@@ -10,8 +10,8 @@ from __future__ import annotations
 import asyncio
 import dataclasses
 import time
-from pathlib import Path
 
+from rich.markup import escape
 from textual import work
 from textual.app import App, ComposeResult, SystemCommand
 from textual.binding import Binding
@@ -21,6 +21,8 @@ from textual.widgets import ContentSwitcher, Static
 from textual.worker import get_current_worker
 
 from ladder import CAUTION
+from ladder.errors import FileFault, describe_os_error
+from ladder.neutralize import safe_terminal
 from ladder.folder.book_file import Book
 from ladder.tui import tasks
 from ladder.tui.executor import DaemonExecutor
@@ -82,16 +84,20 @@ class LadderApp(App[None]):
                 tooltip="Show or hide every key of this screen and the caution in full"),
         Binding("g", "more", "Charts", id="app.more",
                 tooltip="Show or fold the charts and side panes (folded on screens under 30 rows)"),
-        Binding("ctrl+s", "save", "Save", id="app.save", tooltip="Write changes to the book (atomic, with backup)"),
+        Binding("ctrl+s", "save", "Save", id="app.save",
+                tooltip="Write changes to the book (one transaction; the previous files kept as a version)"),
         Binding("q", "quit", "Quit", id="app.quit", tooltip="Quit (asks first when there are unsaved changes)"),
     ]
 
     def __init__(self, book: Book) -> None:
         super().__init__()
+        from ladder.analysis.booking import loaded_state
+
         self.book = book
         self.original_curve = book.curve
-        self.saved_holdings = book.holdings
-        self.pending_journal: list = []      # journal lines of booked trades, written with the holdings
+        self.loaded = loaded_state(book)     # the files' hashes at load: a save refuses if they changed
+        self.pending: list = []              # trades booked here and not yet saved (Pending), in order
+        self.pending_journal: list = []      # their journal lines, written with the holdings
         self.unsaved: dict[str, str] = {}
         self.results = Results(0, book)
         self.options = tasks.Options()
@@ -142,9 +148,10 @@ class LadderApp(App[None]):
                          f"{time.monotonic() - self.started_at:.1f} s")
         if r.errors:
             state.append("not available: " + ", ".join(sorted(r.errors)))
-        line = [f"{book.name}", f"valued {book.valuation_date}", book.currency] + ([] if state else ["figures current"])
+        line = [escape(safe_terminal(book.name)), f"valued {book.valuation_date}", book.currency]
+        line += [] if state else ["figures current"]
         changes = ["changes: " + "; ".join(self.unsaved.values()) + " (ctrl+s saves)"] if self.unsaved else []
-        folder = [str(book.folder)] if wide else []
+        folder = [escape(safe_terminal(book.folder))] if wide else []
         bar = self.query_one("#book-line", Static)
         bar.update("  ·  ".join(state + line + changes + folder))
         self.query_one("#unsaved-badge").display = bool(self.unsaved)
@@ -241,17 +248,19 @@ class LadderApp(App[None]):
         self.recompute_task("shock")
 
     def on_trade_view_trade_booked(self, message: TradeView.TradeBooked) -> None:
-        from ladder.policy.trades import apply_trades
+        from ladder.analysis.booking import Pending
+        from ladder.analysis.settlement import settle_trades
 
-        self._journal(message.trades, f"trade ticket: {message.label}")
-        holdings = apply_trades(self.book.holdings, message.trades)
-        self.change_book(self.book.with_holdings(holdings), "holdings", self._holdings_change(message.label))
-
-    def _journal(self, trades, reason: str) -> None:
-        """Keep the journal lines of booked trades until the holdings are saved with them."""
-        from ladder.analysis.booking import trade_entries
-
-        self.pending_journal.extend(trade_entries(self.book, trades, reason))
+        reason = f"trade ticket: {message.label}"
+        settled = settle_trades(self.book, message.trades, reason)
+        if settled.shortfalls:
+            t = settled.shortfalls[0]
+            self.notify(f"{t.account} is short by {t.shortfall:,.2f}; fund the trade or deposit first",
+                        title="Not booked", severity="error")
+            return
+        self.pending.append(Pending(message.trades, reason))
+        self.pending_journal.extend(settled.entries)
+        self.change_book(self.book.with_holdings(settled.holdings), "holdings", self._holdings_change(message.label))
 
     def _holdings_change(self, label: str) -> str:
         previous = self.unsaved.get("holdings")
@@ -270,7 +279,11 @@ class LadderApp(App[None]):
         except Exception as error:   # an InputError explains why it cannot be applied
             self.notify(describe(error), title="Not applied", severity="error")
             return
-        self._journal(message.result.trades, f"ladder builder: {message.result.invested:,.2f} invested")
+        from ladder.analysis.booking import Pending, trade_entries
+
+        reason = f"ladder builder: {message.result.invested:,.2f} invested"
+        self.pending.append(Pending(message.result.trades, reason))
+        self.pending_journal.extend(trade_entries(self.book, message.result.trades, reason))
         self.change_book(book, "holdings", self._holdings_change(f"builder: {len(message.result.trades)} trade(s)"))
 
     def on_holdings_view_sell_wanted(self, message: HoldingsView.SellWanted) -> None:
@@ -321,29 +334,71 @@ class LadderApp(App[None]):
         return True
 
     def action_save(self) -> None:
-        if not self.unsaved:
-            return
-        written = self.save()
-        self.notify("Saved " + ", ".join(p.name for p in written) + " (each previous file kept as .bak)",
-                    title="Saved")
+        if self.unsaved:
+            self.save()
 
-    def save(self) -> list[Path]:
-        """Write the unsaved parts of the book (atomic replace, previous file kept as .bak)."""
-        from ladder.folder.journal import save_with_journal
-        from ladder.folder.save import save_curve
+    def save(self) -> bool:
+        """Write the unsaved parts of the book as one transaction (the previous files kept as a
+        version). Refused when the files changed on disk since they were loaded: then a dialog offers
+        to reload the book and re-apply the pending trades. Returns whether it was saved."""
+        from ladder.analysis.booking import BookChanged, loaded_state, save_edits
+        from ladder.errors import InputError
+        from ladder.tui.screens import ConfirmScreen
+        from ladder.tui.tasks import describe
 
-        written = []
-        if "holdings" in self.unsaved:
-            written.append(save_with_journal(self.book, self.book.holdings, self.pending_journal))
-            self.pending_journal.clear()
-            self.saved_holdings = self.book.holdings
-        if "curve" in self.unsaved:
-            written.append(save_curve(self.book, self.book.curve))
-            self.original_curve = self.book.curve
+        try:
+            done = save_edits(self.book, self.loaded, self.pending_journal, "holdings" in self.unsaved,
+                              "curve" in self.unsaved)
+        except BookChanged as changed:
+            trades = sum(len(p.trades) for p in self.pending)
+            self.push_screen(ConfirmScreen(
+                f"Not saved: {', '.join(changed.files)} changed on disk since the book was loaded (another "
+                f"program wrote to the book).\nReload the book from disk and re-apply your {trades} pending "
+                "trade(s)" + (" and the edited curve" if "curve" in self.unsaved else "") + "? They are checked "
+                "again; nothing is written until you save."),
+                lambda yes: self.reload() if yes else None)
+            return False
+        except (OSError, InputError, FileFault) as error:   # another writer, a read-only file, a full disk
+            text = describe(error) if isinstance(error, InputError) else (
+                describe_os_error(error) if isinstance(error, OSError) else str(error))
+            self.notify(f"{text}. Nothing is lost: the changes stay unsaved.", title="Not saved", severity="error")
+            return False
+        self.pending.clear()
+        self.pending_journal.clear()
+        self.original_curve = self.book.curve
+        self.loaded = loaded_state(self.book)
         self.unsaved.clear()
         self._show_bar()
         self.refresh_bindings()
-        return written
+        kept = f" (previous kept as version {done.version})" if done.version else ""
+        self.notify("Saved " + ", ".join(p.name for p in done.files) + kept, title="Saved")
+        return True
+
+    def reload(self) -> None:
+        """Read the book from disk again and re-apply the pending trades (and the edited curve) to it;
+        trades that no longer apply (a sale of a holding rolled off meanwhile, ...) are dropped, said."""
+        from ladder.analysis.booking import loaded_state, reapply
+        from ladder.folder.book_file import load_book
+        from ladder.tui.tasks import describe
+
+        try:
+            book = load_book(self.book.folder)
+        except Exception as error:   # an InputError lists what is wrong with the files on disk
+            self.notify(describe(error), title="Not reloaded", severity="error")
+            return
+        loaded = loaded_state(book)
+        if "curve" in self.unsaved:
+            self.original_curve = book.curve
+            book = dataclasses.replace(book, curve=self.book.curve)
+        self.book, self.pending, self.pending_journal, dropped = reapply(book, self.pending)
+        self.loaded = loaded
+        if not self.pending:
+            self.unsaved.pop("holdings", None)
+        if dropped:
+            self.notify("Dropped: " + "; ".join(dropped), title="Pending trades no longer apply", severity="warning")
+        self.notify("Reloaded from disk" + (f"; {len(self.pending)} pending booking(s) re-applied" if self.pending
+                                             else ""), title="Reloaded")
+        self.recompute()
 
     async def action_quit(self) -> None:
         if not self.unsaved:
@@ -352,8 +407,8 @@ class LadderApp(App[None]):
 
         def answered(choice: str | None) -> None:
             if choice == "save":
-                self.save()
-                self.exit()
+                if self.save():     # a failed save keeps the workstation open with the changes
+                    self.exit()
             elif choice == "discard":
                 self.exit()
 

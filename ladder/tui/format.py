@@ -10,6 +10,8 @@ import math
 
 import numpy as np
 
+from ladder.neutralize import safe_terminal
+
 NA_TEXT = "—"
 
 
@@ -53,10 +55,10 @@ def money(value, digits: int = 0, sign: bool = False) -> str:
 
 
 def texts(values) -> np.ndarray:
-    """Any array as text (dates ISO, NaT as ``NA_TEXT``)."""
+    """Any array as text (dates ISO, NaT as ``NA_TEXT``), control characters removed (``safe_terminal``)."""
     values = np.asarray(values)
     if np.issubdtype(values.dtype, np.datetime64):
         out = np.datetime_as_string(values, unit="D").astype(object)
         out[np.isnat(values)] = NA_TEXT
         return out
-    return np.array([("" if v is None else str(v)) for v in values.tolist()], dtype=object)
+    return np.array([("" if v is None else safe_terminal(v)) for v in values.tolist()], dtype=object)

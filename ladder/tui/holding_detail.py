@@ -84,6 +84,7 @@ def detail(v, i: int) -> Detail:
         ("Book yield", f"{fmt.percent(v.book_yield[i])}%"), ("Macaulay duration", fmt.number(m.macaulay[i], 3)),
         ("Modified duration", fmt.number(m.modified[i], 3)), ("Convexity", fmt.number(m.convexity[i], 3)),
         ("DV01", fmt.money(v.dv01[i], 2)), (spread_name, f"{fmt.bp(v.spread[i])} bp"),
+        ("Cost", fmt.money(v.cost[i], 2)), ("Book value (amortized cost)", fmt.money(v.book_value[i], 2)),
         ("Unrealized gain", fmt.money(v.unrealized_gain[i], 2)), ("Days to maturity", str(int(v.days_to_maturity[i]))),
     )
     schedule, call_figures = _calls(v, i)

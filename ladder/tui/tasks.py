@@ -9,7 +9,7 @@ from __future__ import annotations
 import importlib
 from dataclasses import dataclass
 
-from ladder.errors import InputError
+from ladder.errors import InputError, NothingToValue
 
 
 @dataclass(frozen=True)
@@ -60,6 +60,8 @@ def describe(error: BaseException) -> str:
     message, with the traceback written to the log file the text names."""
     if isinstance(error, InputError):
         return "\n".join(str(p) for p in error.problems)
+    if isinstance(error, NothingToValue):
+        return str(error)
     where = log_failure(error)
     return f"{type(error).__name__}: {error} (details in {where})"
 

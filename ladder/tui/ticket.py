@@ -1,7 +1,7 @@
 """The trade ticket's form as a one-trade trades file, checked through the façade. No Textual.
 
 The ticket writes its trade as a trades file (``ladder.policy.trades``: the holdings columns plus
-``action``) in a private temporary folder and has ``ladder.analysis.check.check_trade_file`` read it,
+``action``, ``settle_date`` and ``funded_from``) in a private temporary folder and has ``ladder.analysis.check.check_trade_file`` read it,
 so a ticket is validated exactly as a trades file on the command line is.
 """
 
@@ -18,9 +18,10 @@ from ladder.book.holdings_file import COLUMNS
 from ladder.errors import InputError, Problems
 
 TICKET_FILE = "ticket.csv"
+SETTLEMENT = ("settle_date", "funded_from")    # optional trades-file columns (ladder.policy.trades)
 BUY_FIELDS = ("id", "sector", "issuer", "kind", "face", "maturity_date", "coupon_pct", "rating", "short_rating",
-              "price", "yield_pct")
-SELL_FIELDS = ("id", "face")
+              "price", "yield_pct") + SETTLEMENT
+SELL_FIELDS = ("id", "face") + SETTLEMENT
 
 
 @dataclass(frozen=True)
@@ -49,6 +50,7 @@ def ticket_row(ticket: Ticket, holdings) -> dict[str, str]:
 
         row = dict(holdings_rows(holdings.take(hit[:1]))[0], face=row["face"])
     row["action"] = ticket.action
+    row.update({name: ticket.fields.get(name, "").strip() for name in SETTLEMENT})
     return row
 
 
@@ -62,7 +64,7 @@ def check_ticket(book, ticket: Ticket, valuation=None):
     with tempfile.TemporaryDirectory(prefix="ladder-ticket-") as folder:
         path = Path(folder) / TICKET_FILE
         with open(path, "w", newline="", encoding="utf-8") as out:
-            writer = csv.DictWriter(out, fieldnames=list(COLUMNS) + ["action"])
+            writer = csv.DictWriter(out, fieldnames=list(COLUMNS) + ["action", *SETTLEMENT])
             writer.writeheader()
             writer.writerow(row)
         try:

@@ -17,7 +17,7 @@ def valuation(tmp_path_factory):
 
 def test_subtotal_of_every_holding_is_the_total(valuation):
     whole, every = valuation.totals, valuation.subtotal(np.arange(len(valuation.holdings)))
-    for name in ("count", "face", "market_value", "ytm", "effective_duration", "dv01", "wam_days"):
+    for name in ("count", "face", "market_value", "yield_to_worst", "effective_duration", "dv01", "wam_days"):
         assert getattr(every, name) == getattr(whole, name), name
 
 
@@ -30,5 +30,5 @@ def test_subtotal_of_two_holdings_by_hand(valuation):
     assert t.count == 2
     assert t.market_value == pytest.approx(mv[0] + mv[1], rel=1e-15, abs=0.0)
     assert t.dv01 == pytest.approx(v.dv01[0] + v.dv01[3], rel=1e-15, abs=0.0)
-    weighted = (v.measures.bey[0] * mv[0] + v.measures.bey[3] * mv[1]) / (mv[0] + mv[1])
-    assert t.ytm == pytest.approx(weighted, rel=1e-13, abs=0.0)
+    weighted = (v.yield_to_worst[0] * mv[0] + v.yield_to_worst[3] * mv[1]) / (mv[0] + mv[1])
+    assert t.yield_to_worst == pytest.approx(weighted, rel=1e-13, abs=0.0)

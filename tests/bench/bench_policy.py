@@ -64,7 +64,8 @@ def make_book(rng: np.random.Generator) -> PositionMeasures:
         quote_type=np.full(N, "", object), quote=np.full(N, np.nan), book_price=np.full(N, 100.0),
         purchase_date=np.full(N, np.datetime64("2024-06-03", "D")),
         first_call=np.where(callable_, AS_OF + 180, np.datetime64("NaT", "D")),
-        call_frequency=np.where(callable_, 4, NO_CALL), call_price=np.full(N, 100.0), row=np.arange(2, N + 2))
+        call_frequency=np.where(callable_, 4, NO_CALL), call_price=np.full(N, 100.0), negotiable=np.ones(N, bool),
+        row=np.arange(2, N + 2))
     market = h.face * rng.uniform(0.97, 1.03, N)
     cash = np.zeros((N, 12))
     month = rng.integers(0, 12, N)

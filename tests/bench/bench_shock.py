@@ -113,11 +113,14 @@ def write_book(folder: Path, n: int, seed: int = 11, callable_share: float = 0.0
     folder.mkdir(parents=True, exist_ok=True)
     for name in ("book.toml", "curve.csv", "policy.toml", "cash_needs.csv", "scenarios.csv"):
         shutil.copy(DEMO / name, folder / name)
-    valuation = load_book(DEMO).valuation_date
+    demo = load_book(DEMO)
+    with open(DEMO / "holdings.csv", newline="") as handle:     # the demo's cash account, as book.toml names it
+        account = [{k: row.get(k, "") for k in COLUMNS} for row in csv.DictReader(handle)
+                   if row["id"] == demo.cash_account]
     with open(folder / "holdings.csv", "w", newline="") as handle:
         writer = csv.DictWriter(handle, fieldnames=COLUMNS)
         writer.writeheader()
-        writer.writerows(holdings_rows(n, valuation, seed, callable_share))
+        writer.writerows(account + holdings_rows(n, demo.valuation_date, seed, callable_share))
     return folder
 
 

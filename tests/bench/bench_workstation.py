@@ -31,7 +31,8 @@ def big_book(folder: Path):
         writer = csv.DictWriter(out, fieldnames=list(rows[0]))
         writer.writeheader()
         for copy in range(COPIES):
-            writer.writerows(dict(row, id=f"{row['id']}-{copy:03d}") for row in rows)
+            # the first copy keeps its ids, among them the cash account that book.toml names
+            writer.writerows(dict(row, id=f"{row['id']}-{copy:03d}" if copy else row["id"]) for row in rows)
     return load_book(folder)
 
 

@@ -33,13 +33,13 @@ def test_demo_forecast_matches_an_independent_read():
     reference = pd.read_csv(DEMO)   # pandas as the reference reader
     assert len(needs) == len(reference)
     np.testing.assert_array_equal(needs.date, reference["date"].to_numpy(dtype="datetime64[D]"))
-    np.testing.assert_allclose(needs.amount, reference["amount"].to_numpy(float))
+    np.testing.assert_allclose(needs.amount, reference["amount"].to_numpy(float), rtol=1e-12, atol=0)
     assert list(needs.label) == list(reference["label"])
     assert list(needs.row[:2]) == [2, 3]
     # by month from December 2026: a pandas groupby over calendar months as the reference
     by_month = needs.by_month(np.datetime64("2026-12-01"), 24)
     expected = reference.groupby(pd.to_datetime(reference["date"]).dt.to_period("M"))["amount"].sum().to_numpy()
-    np.testing.assert_allclose(by_month, expected)
+    np.testing.assert_allclose(by_month, expected, rtol=1e-12, atol=0)
 
 
 def test_flexible_but_exact_cells(tmp_path):

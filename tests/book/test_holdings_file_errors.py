@@ -8,6 +8,7 @@ has row/column 0).
 import datetime as dt
 
 import numpy as np
+import openpyxl  # a dependency of ladder itself: missing, this fails, not skips
 import pytest
 
 from ladder.book.holdings_file import COLUMNS, read_holdings
@@ -44,7 +45,7 @@ def read(path):
 def test_good_file_reads(tmp_path):
     holdings, problems = read(write(tmp_path, [HEADER, GOOD]))
     assert problems == []
-    assert list(holdings.id) == ["A1"] and holdings.coupon[0] == pytest.approx(0.0425)
+    assert list(holdings.id) == ["A1"] and holdings.coupon[0] == pytest.approx(0.0425, rel=1e-12, abs=0)
     assert holdings.maturity[0] == np.datetime64("2029-03-15") and holdings.row[0] == 2
     assert holdings.day_count[0] == "30/360" and holdings.frequency[0] == 2   # agency defaults (docs/formats.md)
 
@@ -69,6 +70,19 @@ def test_each_problem_alone_refuses_the_file(tmp_path, row, line, column, words)
                                     + [row]))
     assert holdings is None
     assert [(p.row, p.column) for p in problems] == [(line, column)]
+
+
+def test_negotiable_is_true_false_or_the_sector_default(tmp_path):
+    header = HEADER + ",issue_date,negotiable"
+    cd = "C1,cd,Invented Bank,1000000,2027-06-15,4.1,100.1,,AA,2026-06-15"
+    holdings, problems = read(write(tmp_path, [header, GOOD + ",,", cd + ",", cd.replace("C1", "C2") + ",TRUE",
+                                               GOOD.replace("A1", "A2") + ",,false"]))
+    assert problems == []
+    # docs/formats.md: empty is the sector's default (CDs and deposits are held to maturity)
+    assert list(holdings.negotiable) == [True, False, True, False]
+    holdings, problems = read(write(tmp_path, [header, GOOD + ",,maybe"]))
+    assert holdings is None
+    assert [(p.row, p.column) for p in problems] == [(2, 11)] and "'maybe' is not true or false" in problems[0].message
 
 
 def test_two_problems_on_one_row_both_reported(tmp_path):
@@ -104,7 +118,6 @@ def test_empty_file(tmp_path):
 
 def test_xlsx_reports_the_same_positions(tmp_path):
     # docs/formats.md: holdings.xlsx has the same columns and the same validation as holdings.csv
-    openpyxl = pytest.importorskip("openpyxl")
     book = openpyxl.Workbook()
     sheet = book.active
     for line in [HEADER, GOOD] + [row for row, *_ in BAD_ROWS]:

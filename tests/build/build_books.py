@@ -25,7 +25,7 @@ name = "Small test policy"
 version = "1"
 adopted = 2026-01-15
 basis = "market"
-testing = "at_all_times"
+testing = "continuous"
 
 [portfolio]
 max_maturity_years = 5

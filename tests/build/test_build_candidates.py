@@ -56,7 +56,7 @@ def test_generic_candidates_obey_the_policy_filters(demo, generic):
 def test_residual_goes_to_the_books_funds(demo):
     f = fund_candidates(demo, demo.valuation_date)
     assert list(f.holdings.id) == ["BUILD-DEMO-MMF-0901", "BUILD-DEMO-MMF-0902", "BUILD-DEMO-MMF-0903"]
-    assert np.allclose(f.holdings.quote, [0.0361, 0.0358, 0.0355])
+    assert np.allclose(f.holdings.quote, [0.0361, 0.0358, 0.0355], rtol=1e-12, atol=0)
 
 
 def test_offerings_read(tmp_path):

@@ -39,10 +39,10 @@ def test_json_build_writes_trades_that_ladder_check_passes(book, tmp_path):
     doc = json.loads(run.stdout)                     # stdout is the document alone (no solver chatter)
     assert doc["status"] == "built" and doc["rungs"] == "12x3M"
     assert doc["compliance"]["status"] != "breach"
-    assert doc["after"]["market_value"] == pytest.approx(doc["before"]["market_value"] + 25_000_000, rel=1e-9)
-    assert doc["after"]["expected_yield_pct"] >= doc["naive_even_ladder"]["expected_yield_pct"]
+    assert doc["after"]["market_value"] == pytest.approx(doc["before"]["market_value"] + 25_000_000, rel=1e-9, abs=0)
+    assert doc["after"]["yield_to_worst_pct"] >= doc["naive_even_ladder"]["yield_to_worst_pct"]
     header = out.read_text().splitlines()[0].split(",")
-    assert header[0] == "id" and header[-1] == "action"
+    assert header[0] == "id" and header[-2:] == ["action", "funded_from"]     # issue 14: the new cash is new_money
     assert len(out.read_text().splitlines()) == len(doc["trades"]) + 1
     check = ladder("check", book, "--trade", out, "--format", "json")
     assert check.returncode == 0, check.stderr
@@ -54,7 +54,7 @@ def test_apply_adds_the_trades_with_a_backup_and_the_book_checks(book):
     run = ladder("build", book, "--cash", "25000000", "--apply", "--yes")
     assert run.returncode == 0, run.stderr
     assert "Proposed trades" in run.stdout and "Applied" in run.stdout
-    assert (book / "holdings.csv.bak").read_text() == original
+    assert [p.read_text() for p in (book / "versions").glob("*/holdings.csv")] == [original]
     rows = (book / "holdings.csv").read_text().splitlines()
     assert len(rows) > len(original.splitlines())
     assert any(r.startswith("GENERIC-") for r in rows)
@@ -66,12 +66,13 @@ def test_apply_asks_for_confirmation(book):
     original = (book / "holdings.csv").read_text()
     refused = ladder("build", book, "--cash", "25000000", "--apply")          # stdin is not a terminal
     assert refused.returncode == 2 and "add --yes" in refused.stderr
-    assert (book / "holdings.csv").read_text() == original and not (book / "holdings.csv.bak").exists()
+    assert (book / "holdings.csv").read_text() == original and not (book / "versions").exists()
 
 
 @pytest.mark.parametrize("args, words", [
     (("--cash", "-5"), "negative"),
-    (("--cash", "lots"), "is not an amount"),
+    (("--cash", "lots"), "'lots' is not a number"),
+    (("--cash", "25,000,00"), "comma out of place"),
     (("--cash", "1000000", "--rungs", "6x1Y"), "past the policy's maximum maturity"),
     (("--cash", "1000000", "--rungs", "3 months"), "not a tenor"),
     (("--cash", "1000000", "--rung-band", "2,1"), "0 <= LOW <= 1 <= HIGH"),

@@ -26,14 +26,16 @@ def test_json_has_the_issue_fields(capsys):
     assert doc["base_value"] > 0 and 0 < doc["effective_duration"] < 5
     assert isinstance(doc["effective_convexity"], float)
     assert list(doc["key_rate_durations"])[:3] == ["1M", "3M", "6M"]
-    assert sum(doc["key_rate_durations"].values()) == pytest.approx(doc["effective_duration"], abs=1e-6)
-    assert len(doc["scenarios"]) == 21
+    assert sum(doc["key_rate_durations"].values()) == pytest.approx(doc["effective_duration"], abs=1e-6, rel=0)
+    assert len(doc["scenarios"]) == 25
+    assert 0 < doc["spread_duration"] < 5 and all("spread_duration" in h for h in doc["holdings"])
     for scenario in doc["scenarios"]:
         assert {"name", "shift_bp", "value", "change", "change_pct", "est_duration",
                 "est_duration_convexity"} <= set(scenario)
     by_name = {s["name"]: s for s in doc["scenarios"]}
     assert by_name["+100 bp"]["shift_bp"] == 100.0 and by_name["+100 bp"]["change"] < 0
     assert by_name["recession-rally"]["shift_bp"] is None and by_name["recession-rally"]["change"] > 0
+    assert by_name["credit +100 bp"]["shift_bp"] is None and by_name["credit +100 bp"]["change"] < 0
 
 
 def test_bp_list_chooses_the_parallel_moves(capsys):
@@ -63,8 +65,9 @@ def test_csv_rows_by_level(capsys):
     levels = {r["level"] for r in rows}
     assert levels == {"portfolio", "rung", "sector", "holding"}
     portfolio = [r for r in rows if r["level"] == "portfolio"]
-    # Text cells a spreadsheet would read as a formula get a leading quote (OWASP CSV injection).
-    assert [r["scenario"] for r in portfolio] == ["'-100 bp", "'+100 bp"]
+    # Our own scenario names are number-like labels (a sign, digits, words): no formula, so no quote
+    # (formula text from input files is quoted: tests/test_neutralize.py).
+    assert [r["scenario"] for r in portfolio] == ["-100 bp", "+100 bp"]
     assert float(portfolio[1]["change"]) < 0 < float(portfolio[0]["change"])
     assert sum(1 for r in rows if r["level"] == "holding") == 2 * 69
 
@@ -98,3 +101,26 @@ def test_bad_scenarios_file_is_refused(capsys, tmp_path):
     code, out, err = run(capsys, "--scenarios", str(path))
     assert code == 2 and out == ""
     assert f"{path}:2:2: tenor 4Y is not on the curve" in err
+
+
+def test_a_spread_move_for_an_unknown_sector_or_bucket_is_refused(capsys, tmp_path):
+    path = tmp_path / "credit.csv"
+    path.write_text("scenario,tenor,shift_bp,sector,bucket\nwide,,50,corprate,\nwide,,90,corporate,BB\n")
+    code, out, err = run(capsys, "--scenarios", str(path))
+    assert code == 2 and out == ""
+    assert f"{path}:2:4: unknown sector 'corprate'" in err and f"{path}:3:5: unknown rating bucket 'BB'" in err
+
+
+def test_table_shows_spread_durations_and_a_combined_scenario(capsys, tmp_path):
+    path = tmp_path / "credit.csv"
+    path.write_text("scenario,tenor,shift_bp,sector,bucket\nsell-off,2Y,50,,\nsell-off,,100,corporate,\n")
+    code, out, _ = run(capsys, "--scenarios", str(path), "--format", "json")
+    doc = json.loads(out)
+    (selloff,) = doc["scenarios"]
+    corporate = [h for h in doc["holdings"] if h["sector"] == "corporate"]
+    assert selloff["spread_moves_bp"] == [{"sector": "corporate", "bucket": "", "bp": 100.0}]
+    assert all(h["spread_duration"] > 0 for h in corporate)
+    code, out, _ = run(capsys, "--scenarios", str(path))
+    assert code == 0
+    for text in ("Spread duration by holding", "Scenarios that move spreads", "sell-off", "DEMO-CORP-0601"):
+        assert text in out

@@ -64,22 +64,24 @@ EXAMPLES_2_3 = [
 @pytest.mark.parametrize("code", ["30/360", "30E/360"])
 def test_isda_30_360_example_1(code, start, end):
     # ISDA 30-360-2006ISDADefs.xls, Example 1: every period is 180 days
-    assert days360(code, start, end) == pytest.approx(180.0, abs=1e-9)
+    assert days360(code, start, end) == pytest.approx(180.0, abs=1e-9, rel=0)
 
 
 @pytest.mark.parametrize("start,end,bond_basis,eurobond", EXAMPLES_2_3)
 def test_isda_30_360_examples_2_and_3(start, end, bond_basis, eurobond):
     # ISDA 30-360-2006ISDADefs.xls, Examples 2 and 3: ISDA 2006 4.16(f) Bond Basis and 4.16(g) 30E/360
-    assert days360("30/360", start, end) == pytest.approx(bond_basis, abs=1e-9)
-    assert days360("30E/360", start, end) == pytest.approx(eurobond, abs=1e-9)
+    assert days360("30/360", start, end) == pytest.approx(bond_basis, abs=1e-9, rel=0)
+    assert days360("30E/360", start, end) == pytest.approx(eurobond, abs=1e-9, rel=0)
 
 
 def test_isda_30_360_vectorized_matches_rows():
     # Same ISDA workbook rows evaluated as one array: the vectorized path gives the scalar answers
     start = np.array([r[0] for r in EXAMPLES_2_3], dtype="datetime64[D]")
     end = np.array([r[1] for r in EXAMPLES_2_3], dtype="datetime64[D]")
-    np.testing.assert_allclose(year_fraction("30/360", start, end) * 360, [r[2] for r in EXAMPLES_2_3], atol=1e-9)
-    np.testing.assert_allclose(year_fraction("30E/360", start, end) * 360, [r[3] for r in EXAMPLES_2_3], atol=1e-9)
+    np.testing.assert_allclose(year_fraction("30/360", start, end) * 360, [r[2] for r in EXAMPLES_2_3],
+                               atol=1e-9, rtol=0)
+    np.testing.assert_allclose(year_fraction("30E/360", start, end) * 360, [r[3] for r in EXAMPLES_2_3],
+                               atol=1e-9, rtol=0)
 
 
 # ISDA workbook ACT/360 examples (as transcribed in a test file citing isda.org/a/mIJEE/30-360-2006ISDADefs.xls)
@@ -93,12 +95,14 @@ ACT_360 = [
 @pytest.mark.parametrize("start,end,days", ACT_360)
 def test_isda_act_360(start, end, days):
     # ISDA 30-360-2006ISDADefs.xls ACT/360 sheet: actual days / 360
-    assert float(year_fraction("ACT/360", D(start), D(end))) == pytest.approx(days / 360.0, abs=1e-15)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert float(year_fraction("ACT/360", D(start), D(end))) == pytest.approx(days / 360.0, rel=1e-12, abs=0)
 
 
 def test_act_365_fixed():
     # ISDA 2006 4.16(d) Actual/365 (Fixed); derived example REFERENCES 2.3: 15 Jan -> 15 Jul 2007 = 181/365
-    assert float(year_fraction("ACT/365F", D("2007-01-15"), D("2007-07-15"))) == pytest.approx(0.495890, abs=5e-7)
+    assert float(year_fraction("ACT/365F", D("2007-01-15"), D("2007-07-15"))) == pytest.approx(0.495890,
+                                                                                               abs=5e-7, rel=0)
     assert float(year_fraction("ACT/365F", D("2007-01-15"), D("2007-07-15"))) == 181 / 365
 
 
@@ -117,14 +121,15 @@ ACT_ACT_ISDA = [
 @pytest.mark.parametrize("start,end,expected", ACT_ACT_ISDA)
 def test_act_act_isda_memo(start, end, expected):
     # ISDA "The Actual/Actual Day Count Fraction" (1999) / mktc1198.pdf examples, ACT/ACT (ISDA) column
-    assert float(year_fraction("ACT/ACT-ISDA", D(start), D(end))) == pytest.approx(expected, abs=1e-11)
+    assert float(year_fraction("ACT/ACT-ISDA", D(start), D(end))) == pytest.approx(expected, abs=1e-11, rel=0)
 
 
 def test_act_act_isda_flagged_row_by_definition():
     # The one ISDA value QuantLib flags as "in disagreement with mktc1198.pdf" (REFERENCES 2.4);
     # checked only against the ISDA 2006 4.16(b) definition: 170/365 + 14/366 (derived, not the memo)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
     assert float(year_fraction("ACT/ACT-ISDA", D("2003-07-15"), D("2004-01-15"))) == pytest.approx(
-        170 / 365 + 14 / 366, abs=1e-15)
+        170 / 365 + 14 / 366, rel=1e-12, abs=0)
 
 
 def test_act_act_isda_spanning_many_years_against_quantlib():
@@ -152,7 +157,8 @@ def test_other_day_counts_against_quantlib(code, qldc):
                    end_months.astype("datetime64[D]") + rng.integers(0, 28, 400))
     end = np.maximum(end, start)
     expected = [qldc.yearFraction(_ql(s), _ql(e)) for s, e in zip(start, end)]
-    np.testing.assert_allclose(year_fraction(code, start, end), expected, rtol=0, atol=1e-14)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    np.testing.assert_allclose(year_fraction(code, start, end), expected, rtol=1e-12, atol=0)
 
 
 def test_unknown_day_count_and_icma_without_period_refused():
@@ -178,23 +184,26 @@ def one_grid(maturity, frequency, first_coupon=None) -> Grid:
 def test_icma_memo_regular_semiannual():
     # ISDA memo (QuantLib testActualActual): 1 Nov 2003 -> 1 May 2004, semiannual, ICMA = 0.5
     g = one_grid("2010-05-01", 2)
-    assert icma(g, 2, "2003-11-01", "2004-05-01") == pytest.approx(0.5, abs=1e-15)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert icma(g, 2, "2003-11-01", "2004-05-01") == pytest.approx(0.5, rel=1e-12, abs=0)
 
 
 def test_icma_memo_short_first_annual():
     # ISDA memo: short first period 1 Feb 1999 -> 1 Jul 1999, annual, reference 1 Jul 1998 -> 1 Jul 1999:
     # 150/365 = 0.410958904110; then 1 Jul 1999 -> 1 Jul 2000 = 1.0
     g = one_grid("2002-07-01", 1)
-    assert icma(g, 1, "1999-02-01", "1999-07-01") == pytest.approx(0.410958904110, abs=1e-12)
-    assert icma(g, 1, "1999-07-01", "2000-07-01") == pytest.approx(1.0, abs=1e-15)
+    assert icma(g, 1, "1999-02-01", "1999-07-01") == pytest.approx(0.410958904110, abs=1e-12, rel=0)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert icma(g, 1, "1999-07-01", "2000-07-01") == pytest.approx(1.0, rel=1e-12, abs=0)
 
 
 def test_icma_memo_long_first_semiannual():
     # ISDA memo: long first 15 Aug 2002 -> 15 Jul 2003, semiannual:
     # 153/(184 x 2) + 181/(181 x 2) = 0.915760869565; then 15 Jul 2003 -> 15 Jan 2004 = 0.5
     g = one_grid("2016-07-15", 2)
-    assert icma(g, 2, "2002-08-15", "2003-07-15") == pytest.approx(0.915760869565, abs=1e-12)
-    assert icma(g, 2, "2003-07-15", "2004-01-15") == pytest.approx(0.5, abs=1e-15)
+    assert icma(g, 2, "2002-08-15", "2003-07-15") == pytest.approx(0.915760869565, abs=1e-12, rel=0)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert icma(g, 2, "2003-07-15", "2004-01-15") == pytest.approx(0.5, rel=1e-12, abs=0)
 
 
 def test_icma_memo_short_final_on_forward_grid():
@@ -204,9 +213,10 @@ def test_icma_memo_short_final_on_forward_grid():
     # The first coupon is off the backward grid from 30 Jun (a month end), so the grid runs forward from it.
     g = one_grid("2000-06-30", 2, first_coupon="1999-07-30")
     assert g.anchor[0] == D("1999-07-30")
-    assert icma(g, 2, "1999-07-30", "2000-01-30") == pytest.approx(0.5, abs=1e-15)
-    assert icma(g, 2, "2000-01-30", "2000-06-30") == pytest.approx(152 / (182 * 2), abs=1e-15)
-    assert icma(g, 2, "2000-01-30", "2000-06-30") == pytest.approx(0.417582417582, abs=1e-12)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert icma(g, 2, "1999-07-30", "2000-01-30") == pytest.approx(0.5, rel=1e-12, abs=0)
+    assert icma(g, 2, "2000-01-30", "2000-06-30") == pytest.approx(152 / (182 * 2), rel=1e-12, abs=0)
+    assert icma(g, 2, "2000-01-30", "2000-06-30") == pytest.approx(0.417582417582, abs=1e-12, rel=0)
 
 
 def test_icma_quarterly_end_of_month_long_final():
@@ -214,7 +224,8 @@ def test_icma_quarterly_end_of_month_long_final():
     # 30 Nov 1999 -> 30 Apr 2000 = 91/(91 x 4) + 61/(92 x 4) (quasi-coupons 29 Feb and 31 May 2000)
     g = one_grid("2000-04-30", 4, first_coupon="1999-08-31")
     assert bool(g.eom[0])
-    assert icma(g, 4, "1999-11-30", "2000-04-30") == pytest.approx(91 / (91 * 4) + 61 / (92 * 4), abs=1e-15)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert icma(g, 4, "1999-11-30", "2000-04-30") == pytest.approx(91 / (91 * 4) + 61 / (92 * 4), rel=1e-12, abs=0)
 
 
 def test_icma_quarterly_not_end_of_month_steps_from_the_anchor():
@@ -223,7 +234,8 @@ def test_icma_quarterly_not_end_of_month_steps_from_the_anchor():
     # ql.Schedule, which generates anchor + i x tenor) puts the quasi-coupon on 31 May 2000, giving 92
     # days. Documented difference; the ql.Schedule dates are checked here.
     g = Grid(np.array([D("1999-08-31")]), np.array([3]), np.array([False]))
-    assert icma(g, 4, "1999-11-30", "2000-04-30") == pytest.approx(91 / (91 * 4) + 61 / (92 * 4), abs=1e-15)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert icma(g, 4, "1999-11-30", "2000-04-30") == pytest.approx(91 / (91 * 4) + 61 / (92 * 4), rel=1e-12, abs=0)
     schedule = ql.Schedule(ql.Date(31, 8, 1999), ql.Date(31, 8, 2000), ql.Period(ql.Quarterly), ql.NullCalendar(),
                            ql.Unadjusted, ql.Unadjusted, ql.DateGeneration.Forward, False)
     assert [str(np.datetime64(_py(d))) for d in schedule][1:4] == ["1999-11-30", "2000-02-29", "2000-05-31"]
@@ -236,10 +248,10 @@ def test_icma_long_first_coupon_2017():
     # = 12/362 = 0.03314917127071823; quasi-coupons 31 Aug 2016 and 28 Feb 2017.
     g = one_grid("2026-02-28", 2, first_coupon="2017-08-31")
     assert g.anchor[0] == D("2026-02-28")           # first coupon on the backward grid: no forward anchor
-    assert icma(g, 2, "2017-01-17", "2017-08-31") == pytest.approx(0.6160220994, abs=1e-10)
-    assert icma(g, 2, "2017-01-17", "2017-01-29") == pytest.approx(0.03314917127071823, abs=1e-12)
+    assert icma(g, 2, "2017-01-17", "2017-08-31") == pytest.approx(0.6160220994, abs=1e-10, rel=0)
+    assert icma(g, 2, "2017-01-17", "2017-01-29") == pytest.approx(0.03314917127071823, abs=1e-12, rel=0)
     assert icma(g, 2, "2017-01-29", "2017-08-31") + icma(g, 2, "2017-01-17", "2017-01-29") == pytest.approx(
-        0.6160220994, abs=1e-10)
+        0.6160220994, abs=1e-10, rel=0)
     assert [str(d) for d in g.date(np.array([-19, -18]))] == ["2016-08-31", "2017-02-28"]
 
 
@@ -247,8 +259,9 @@ def test_icma_year_fraction_with_reference_period():
     # ISDA 2006 4.16(c) / ICMA Rule 251 within one reference period: days / (frequency x days in period);
     # memo example 1 Nov 2003 -> 1 May 2004 semiannual: 182 / (2 x 182) = 0.5
     assert float(year_fraction("ACT/ACT", D("2003-11-01"), D("2004-05-01"), D("2003-11-01"), D("2004-05-01"), 2)) == 0.5
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
     assert float(year_fraction("ACT/ACT", D("2003-11-01"), D("2004-02-01"), D("2003-11-01"), D("2004-05-01"), 2)) == (
-        pytest.approx(92 / 364, abs=1e-15))
+        pytest.approx(92 / 364, rel=1e-12, abs=0))
 
 
 def _ql(d) -> ql.Date:

@@ -50,11 +50,11 @@ def test_two_bond_ladder_cash_by_month(tmp_path):
         closing.append(cash)
     assert np.allclose(pr.fund_income, fund_income, rtol=0, atol=1e-6)
     assert np.allclose(pr.closing_cash, closing, rtol=0, atol=1e-6)
-    assert closing[2] == pytest.approx(46_072.656908, abs=1e-6)
-    assert closing[-1] == pytest.approx(3_221_793.190977, abs=1e-6)
-    assert np.allclose(pr.coupons, [0, 0, 40_000, 0, 0, 75_000])
-    assert np.allclose(pr.principal, [0, 0, 2_000_000, 0, 0, 3_000_000])
-    assert np.allclose(pr.needs, [500_000, 0, 2_500_000, 0, -100_000, 0])
+    assert closing[2] == pytest.approx(46_072.656908, abs=1e-6, rel=0)
+    assert closing[-1] == pytest.approx(3_221_793.190977, abs=1e-6, rel=0)
+    assert np.allclose(pr.coupons, [0, 0, 40_000, 0, 0, 75_000], rtol=1e-12, atol=0)
+    assert np.allclose(pr.principal, [0, 0, 2_000_000, 0, 0, 3_000_000], rtol=1e-12, atol=0)
+    assert np.allclose(pr.needs, [500_000, 0, 2_500_000, 0, -100_000, 0], rtol=1e-12, atol=0)
     assert not pr.reinvested.any() and not pr.shortfall.any() and pr.first_shortfall is None
 
 
@@ -68,7 +68,8 @@ def test_two_bond_ladder_accrual_income(tmp_path):
     b_days = np.array([30, 28, 32, 30, 30, 30])
     expected = 2_000_000 * 0.04 * a_days / 360 + 3_000_000 * 0.05 * b_days / 360 + pr.fund_income
     assert np.allclose(pr.income, expected, rtol=0, atol=1e-6)
-    assert (2_000_000 * 0.04 * a_days / 360).sum() == pytest.approx(20_000)   # the coupon less the 90 days bought
+    # the coupon less the 90 days bought
+    assert (2_000_000 * 0.04 * a_days / 360).sum() == pytest.approx(20_000, rel=1e-12, abs=0)
 
 
 def test_two_bond_ladder_shortfall_and_sale(tmp_path):
@@ -77,28 +78,40 @@ def test_two_bond_ladder_shortfall_and_sale(tmp_path):
     pr = plan.projection
     # Feb: 503,100 + 1,408.68 - 1,000,000 = -495,491.32: the first shortfall.
     assert plan.first_shortfall == 1
-    assert pr.shortfall[1] == pytest.approx(495_491.32, abs=1e-6)
-    # Shortest first: A (due Mar 2027) before B. Valuation price 100 clean; accrued on 28 Feb: 4 x 148/360
-    # = 1.644444 per 100, so 101.644444 a 100 face; face = 495,491.32 / 1.01644444 = 487,475.4, rounded up
-    # to 488,000 (1,000 lots); proceeds 488,000 x 1.01644444 = 496,024.89; closing 533.57.
+    assert pr.shortfall[1] == pytest.approx(495_491.32, abs=1e-6, rel=0)
+    # Sales are priced at the sale date on the curve at the held spread (the pull to par). On the flat
+    # curve (zero rate r) with spread z, a bond with one flow F left t years ahead is worth F e^{-(r+z) t}.
+    # A (bought at 100, due 31 Mar: one flow 102): today (31 Dec) clean 100 + accrued 4 x 90/360 = 101,
+    # so e^{-(r+z) 90/365} = 101/102 and on 28 Feb dirty = 102 (101/102)^(31/90); accrued 4 x 148/360.
+    # B (due 30 Jun: one flow 102.5, no accrued today): dirty 28 Feb = 102.5 (100/102.5)^(122/181),
+    # accrued 5 x 58/360. Both sell above their cost of 100 (A 100.0101, B 100.0026, hand-computed): A
+    # gains more per unit of cash raised, so A is sold first.
+    # face = 495,491.32 / (dirty / 100) rounded up to a 1,000 lot; realized gain = face x (clean - 100) / 100.
+    dirty = 102 * (101 / 102) ** (31 / 90)
+    clean = dirty - 4 * 148 / 360
+    b_clean = 102.5 * (100 / 102.5) ** (122 / 181) - 5 * 58 / 360
+    assert (clean - 100) / dirty > (b_clean - 100) / (b_clean + 5 * 58 / 360)
+    face = math.ceil(495_491.32 / (dirty / 100) / 1000) * 1000
     (sale,) = [s for s in pr.sale_list if s.period == 1]
-    assert plan.holdings.id[sale.row] == "A"
-    dirty = 100 + 4 * 148 / 360
-    assert sale.face == 488_000
-    assert sale.proceeds == pytest.approx(488_000 * dirty / 100, abs=1e-6)
-    assert sale.realized_gain == pytest.approx(0.0, abs=1e-9)
-    assert pr.closing_cash[1] == pytest.approx(488_000 * dirty / 100 - 495_491.32, abs=1e-6)
-    # Mar: A pays on the face left, 1,512,000: coupon 30,240 and principal 1,512,000.
-    assert pr.coupons[2] == pytest.approx(1_512_000 * 0.02)
-    assert pr.principal[2] == pytest.approx(1_512_000)
-    # March is short again (533.57 + 1.65 + 30,240 + 1,512,000 - 2,500,000 < 0): B, the only one left, is sold.
-    march = pr.closing_cash[1] * (1 + DAY * 31) + 1_512_000 * 1.02 - 2_500_000
-    assert pr.shortfall[2] == pytest.approx(-march, abs=1e-6)
-    assert [plan.holdings.id[s.row] for s in pr.sale_list if s.period == 2] == ["B"]
-    # Income stops on the face sold: March accrual of A is 1,512,000 x 4% x 32/360.
-    a_march = 1_512_000 * 0.04 * 32 / 360
+    assert sale.id == "A"
+    assert sale.face == face
+    assert sale.clean_price == pytest.approx(clean, rel=0, abs=1e-9)
+    assert sale.proceeds == pytest.approx(face * dirty / 100, abs=1e-6, rel=0)
+    assert sale.realized_gain == pytest.approx(face * (clean - 100) / 100, abs=1e-6, rel=0)
+    assert pr.closing_cash[1] == pytest.approx(face * dirty / 100 - 495_491.32, abs=1e-6, rel=0)
+    left = 2_000_000 - face
+    # Mar: A pays on the face left: coupon 2% and principal.
+    assert pr.coupons[2] == pytest.approx(left * 0.02, rel=1e-12, abs=0)
+    assert pr.principal[2] == pytest.approx(left, rel=1e-12, abs=0)
+    # March is short again (closing + fund income + A's 1.02 x face left - 2,500,000 < 0): B, the only
+    # one left, is sold.
+    march = pr.closing_cash[1] * (1 + DAY * 31) + left * 1.02 - 2_500_000
+    assert pr.shortfall[2] == pytest.approx(-march, abs=1e-6, rel=0)
+    assert [s.id for s in pr.sale_list if s.period == 2] == ["B"]
+    # Income stops on the face sold: March accrual of A is the face left x 4% x 32/360.
+    a_march = left * 0.04 * 32 / 360
     b_march = 3_000_000 * 0.05 * 32 / 360
-    assert pr.income[2] == pytest.approx(a_march + b_march + pr.fund_income[2], abs=1e-6)
+    assert pr.income[2] == pytest.approx(a_march + b_march + pr.fund_income[2], abs=1e-6, rel=0)
 
 
 def test_bill_rolled_monthly(tmp_path):
@@ -125,12 +138,12 @@ def test_bill_rolled_monthly(tmp_path):
     for tau in taus[:-1]:
         amounts.append(amounts[-1] * math.exp(r * tau))
     # reinvested at the end of Jan..May; the June bill (bought 30 Jun) is the sixth
-    assert np.allclose(pr.reinvested[:5], amounts, rtol=1e-12)
-    assert np.allclose(pr.reinvest_yield[:5], np.expm1(r * taus) / taus, rtol=1e-9)
-    assert np.allclose(pr.closing_cash, 0.0, atol=1e-6)
+    assert np.allclose(pr.reinvested[:5], amounts, rtol=1e-12, atol=0)
+    assert np.allclose(pr.reinvest_yield[:5], np.expm1(r * taus) / taus, rtol=1e-9, atol=0)
+    assert np.allclose(pr.closing_cash, 0.0, atol=1e-6, rtol=0)
     # income: January is the bill's accretion, 1,000,000 x 1.00% x 29 / 92 (31 Dec to 29 Jan);
     # each later month the bill bought a month before earns A (e^(r tau) - 1) (each repays inside the month)
-    assert pr.income_holdings[0] == pytest.approx(1_000_000 * 0.01 * 29 / 92, rel=1e-12)
+    assert pr.income_holdings[0] == pytest.approx(1_000_000 * 0.01 * 29 / 92, rel=1e-12, abs=0)
     earned = [a * math.expm1(r * tau) for a, tau in zip(amounts, taus)]
-    assert np.allclose(pr.income_purchases[1:6], earned, rtol=1e-9)
+    assert np.allclose(pr.income_purchases[1:6], earned, rtol=1e-9, atol=0)
     assert pr.income_purchases[0] == 0.0

@@ -39,7 +39,7 @@ needs = st.lists(st.tuples(st.integers(1, 540), st.floats(-2e6, 4e6, allow_nan=F
 
 
 @settings(max_examples=25, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
-@given(needs=needs, rule=st.sampled_from(["longest_rung", "target_tenor", "fund"]),
+@given(needs=needs, rule=st.sampled_from(["match_needs", "longest_rung", "target_tenor", "fund"]),
        tenor=st.sampled_from(["1M", "3M", "1Y", "2Y"]), buffer=st.sampled_from([0.0, 100_000.0, 3e6]),
        bp=st.sampled_from([-200.0, 0.0, 150.0]), period=st.sampled_from(["month", "week", "quarter"]),
        rates=st.sampled_from(["stay", "forward"]))
@@ -56,18 +56,29 @@ def test_every_unit_is_accounted_for(book, needs, rule, tenor, buffer, bp, perio
     assert np.allclose(pr.closing_cash[:-1], pr.opening_cash[1:], rtol=0, atol=0)
     assert pr.opening_cash[0] == 2_000_000
     horizon = pr.periods.end[-1]
-    assert pr.needs.sum() == pytest.approx(sum(a for d, a in zip(dates, cash_needs.amount) if d <= horizon))
+    assert pr.needs.sum() == pytest.approx(sum(a for d, a in zip(dates, cash_needs.amount) if d <= horizon),
+                                           rel=1e-12, abs=0)
     assert (pr.reinvested >= 0).all() and (pr.shortfall >= 0).all() and (pr.sales >= 0).all()
     # sales happen only to cover a shortfall, cover it (or everything is sold), and never exceed what is held
     assert ((pr.sales > 0) <= (pr.shortfall > 0)).all()
     assert (pr.sales + 1e-6 >= pr.shortfall - pr.unfunded).all()
-    assert (pr.face_left >= -1e-9).all()
+    assert (pr.face_left >= -1e-9).all() and (pr.lot_path >= -1e-6).all()
+    row = {hid: i for i, hid in enumerate(plan.holdings.id)}
     sold = np.zeros(len(plan.holdings))
-    np.add.at(sold, [s.row for s in pr.sale_list], [s.face for s in pr.sale_list])
-    assert np.allclose(sold + pr.face_left, plan.holdings.face)
-    # what is above the buffer is bought, unless the rule keeps it in the fund
+    np.add.at(sold, [row[s.id] for s in pr.sale_list if s.id in row], [s.face for s in pr.sale_list if s.id in row])
+    assert np.allclose(sold + pr.face_left, plan.holdings.face, rtol=1e-12, atol=0)
+    # a CD is held to maturity (not negotiable unless the holdings file says so)
+    assert "CD" not in {s.id for s in pr.sale_list}
+    # a shortfall's sales restore the cash kept, as far as there is anything to sell
+    short = pr.shortfall > 0
+    assert (pr.closing_cash[short] + 1e-6 >= np.minimum(pr.floor[short], pr.available[short] + pr.sales[short])).all()
+    # what is above the cash kept is bought by the single-tenor rules; nothing is bought below the buffer
     if rule == "fund":
         assert not pr.reinvested.any()
+    elif rule == "match_needs":
+        bought = pr.reinvested > 0
+        assert (pr.closing_cash[bought] >= buffer - 1e-6).all()
     else:
-        assert np.allclose(np.minimum(pr.closing_cash, buffer), np.minimum(pr.available + pr.sales, buffer), atol=1e-6)
-        assert (pr.closing_cash <= buffer + 1e-6).all()
+        assert np.allclose(np.minimum(pr.closing_cash, pr.floor), np.minimum(pr.available + pr.sales, pr.floor),
+                           atol=1e-6, rtol=0)
+        assert (pr.closing_cash <= pr.floor + 1e-6).all()

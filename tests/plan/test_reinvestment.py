@@ -36,11 +36,11 @@ def test_flat_curve_note_yield_and_income_closed_form(tmp_path):
     t = np.array([181, 365, 547, 731]) / 365.0
     y = 2 * (1 - math.exp(-R * t[-1])) / np.exp(-R * t).sum()
     amount = 1_000_000 * (1 + 0.0001 * 31)
-    assert pr.reinvested[0] == pytest.approx(amount, rel=1e-12)
-    assert pr.reinvest_yield[0] == pytest.approx(y, abs=1e-11)
+    assert pr.reinvested[0] == pytest.approx(amount, rel=1e-12, abs=0)
+    assert pr.reinvest_yield[0] == pytest.approx(y, abs=1e-11, rel=0)
     expected = amount * y / 2 * np.array([0, 28, 31, 30, 31, 30]) / 181
     assert np.allclose(pr.income_purchases, expected, rtol=1e-9, atol=1e-9)
-    assert np.allclose(pr.fund_income[1:], 0.0) and not pr.reinvested[1:].any()
+    assert np.allclose(pr.fund_income[1:], 0.0, rtol=1e-12, atol=0) and not pr.reinvested[1:].any()
 
 
 def test_flat_curve_forwards_equal_the_curve_that_stays(tmp_path):
@@ -48,8 +48,8 @@ def test_flat_curve_forwards_equal_the_curve_that_stays(tmp_path):
     book = _fund_only(tmp_path)
     stay = plan_book(book, options=PlanOptions(months=12), with_income=False).projection
     forward = plan_book(book, options=PlanOptions(months=12, rates="forward"), with_income=False).projection
-    assert np.allclose(stay.income, forward.income, rtol=1e-9)
-    assert np.allclose(stay.reinvest_yield, forward.reinvest_yield, rtol=1e-9, equal_nan=True)
+    assert np.allclose(stay.income, forward.income, rtol=1e-9, atol=0)
+    assert np.allclose(stay.reinvest_yield, forward.reinvest_yield, rtol=1e-9, equal_nan=True, atol=0)
 
 
 def test_rate_paths_on_a_sloped_curve(tmp_path):
@@ -59,9 +59,10 @@ def test_rate_paths_on_a_sloped_curve(tmp_path):
     on = np.datetime64("2027-12-31")
     s = 365 / 365.0
     tau = np.array([0.25, 1.0, 3.0])
-    assert np.allclose(RatePath(curve, "stay").discount(on, tau), curve.discount(tau), rtol=1e-15)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert np.allclose(RatePath(curve, "stay").discount(on, tau), curve.discount(tau), rtol=1e-12, atol=0)
     assert np.allclose(RatePath(curve, "forward").discount(on, tau),
-                       curve.discount(s + tau) / curve.discount(s), rtol=1e-14)
+                       curve.discount(s + tau) / curve.discount(s), rtol=1e-12, atol=0)
     # an upward curve: the one-month rate seen in a year is above today's under forwards, equal under stay
     ahead = np.array([on])
     assert RatePath(curve, "forward").short_rate(ahead)[0] > RatePath(curve, "stay").short_rate(ahead)[0]
@@ -132,4 +133,4 @@ def test_fund_rule_keeps_the_cash_in_the_fund(tmp_path):
     assert not pr.reinvested.any()
     # 1,000,000 compounding monthly at 0.0001 a day for the days of each month of 2027
     days = np.array([31, 28, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31])
-    assert pr.closing_cash[-1] == pytest.approx(1_000_000 * np.prod(1 + 0.0001 * days), rel=1e-12)
+    assert pr.closing_cash[-1] == pytest.approx(1_000_000 * np.prod(1 + 0.0001 * days), rel=1e-12, abs=0)

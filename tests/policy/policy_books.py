@@ -20,11 +20,11 @@ DEFAULTS = dict(
     sector="corporate", issuer="Issuer", kind="fixed", face=1_000_000.0, maturity="2026-01-31", coupon=0.04,
     frequency=2, day_count="30/360", issue_date=NAT, first_coupon=NAT, rating="AA", short_rating="",
     rating_at_purchase="", quote_type="", quote=np.nan, book_price=100.0, purchase_date="2024-06-03",
-    first_call=NAT, call_frequency=NO_CALL, call_price=np.nan,
+    first_call=NAT, call_frequency=NO_CALL, call_price=np.nan, negotiable=True,
 )
 _DTYPES = dict(face=np.float64, coupon=np.float64, frequency=np.int64, quote=np.float64, book_price=np.float64,
-               call_frequency=np.int64, call_price=np.float64, row=np.int64)
-_DATES = ("maturity", "issue_date", "first_coupon", "purchase_date", "first_call")
+               call_frequency=np.int64, call_price=np.float64, negotiable=bool, row=np.int64)
+_DATES = ("maturity", "issue_date", "first_coupon", "purchase_date", "first_call", "price_date")
 
 
 def holding(id: str, **fields) -> dict:
@@ -39,7 +39,7 @@ def book(rows: list[dict]) -> Holdings:
         if name == "row":
             columns[name] = np.arange(2, len(rows) + 2, dtype=np.int64)
             continue
-        values = [r[name] for r in rows]
+        values = [r.get(name, "NaT" if name == "price_date" else None) for r in rows]
         if name in _DATES:
             columns[name] = np.array(values, dtype="datetime64[D]")
         elif name in _DTYPES:

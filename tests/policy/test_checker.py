@@ -103,15 +103,17 @@ def test_compliant_book_passes_every_rule():
 
 def test_shares_wam_duration_and_coverage_figures():
     result = run()
-    assert result.rule("sectors.agency.max_pct").actual == pytest.approx(30.0)
-    assert result.rule("sectors.agency.max_pct").headroom == pytest.approx(20.0)
-    assert result.rule("portfolio.issuer_max_pct").actual == pytest.approx(10.0)   # US Treasury exempt, Big Agency named
-    assert result.rule('issuers."Big Agency".max_pct').actual == pytest.approx(20.0)
-    assert result.rule("portfolio.liquidity[0].min_pct").actual == pytest.approx(40.0)   # T1, P1, P2, F1
+    assert result.rule("sectors.agency.max_pct").actual == pytest.approx(30.0, rel=1e-12, abs=0)
+    assert result.rule("sectors.agency.max_pct").headroom == pytest.approx(20.0, rel=1e-12, abs=0)
+    # US Treasury exempt, Big Agency named
+    assert result.rule("portfolio.issuer_max_pct").actual == pytest.approx(10.0, rel=1e-12, abs=0)
+    assert result.rule('issuers."Big Agency".max_pct').actual == pytest.approx(20.0, rel=1e-12, abs=0)
+    assert result.rule("portfolio.liquidity[0].min_pct").actual == pytest.approx(40.0,
+                                                                                 rel=1e-12, abs=0)   # T1, P1, P2, F1
     days = (np.array(["2025-03-15", "2027-01-31", "2027-06-30", "2028-01-31", "2026-06-30", "2026-01-31",
                       "2027-01-31", "2025-04-30", "2025-03-31"], dtype="datetime64[D]") - AS_OF).astype(int)
-    assert result.rule("portfolio.max_wam_days").actual == pytest.approx((days.sum() + 1) / 10)
-    assert result.rule("portfolio.max_effective_duration").actual == pytest.approx(1.0)
+    assert result.rule("portfolio.max_wam_days").actual == pytest.approx((days.sum() + 1) / 10, rel=1e-12, abs=0)
+    assert result.rule("portfolio.max_effective_duration").actual == pytest.approx(1.0, rel=1e-12, abs=0)
     cover = result.rule("portfolio.cash_needs_horizon_months")
     # tightest month is March: fund 1.0m + T1 and P2 maturing 2.0m = 3.0m against 2.5m of needs
     assert (cover.limit, cover.actual, cover.headroom) == (2_500_000.0, 3_000_000.0, 500_000.0)
@@ -122,7 +124,7 @@ def test_json_has_the_contract_fields():
     assert set(data) >= {"as_of", "status", "rules"}
     assert data["as_of"] == "2025-01-31"
     assert data["policy"] == {"name": "Test policy", "version": "1", "adopted": "2024-01-01", "basis": "market",
-                              "testing": "at_all_times"}
+                              "testing": "continuous"}
     for rule in data["rules"]:
         assert set(rule) >= {"rule", "text", "limit", "actual", "headroom", "status", "holdings"}
 
@@ -132,7 +134,7 @@ def test_json_has_the_contract_fields():
 def test_effective_duration():
     result = run(duration=[1, 1, 1, 1, 1, 1, 12, 1, 1, 1])
     r = result.rule("portfolio.max_effective_duration")
-    assert (r.status, r.actual, r.holdings) == ("breach", pytest.approx(2.1), ("C2",))
+    assert (r.status, r.actual, r.holdings) == ("breach", pytest.approx(2.1, rel=1e-12, abs=0), ("C2",))
     assert flagged(result) == {"portfolio.max_effective_duration": "breach"}
 
 
@@ -149,7 +151,7 @@ def test_portfolio_final_maturity_in_years():
     r = result.rule("portfolio.max_maturity_years")
     # five calendar years from 2025-01-31 is 2030-01-31; one day more breaches
     assert (r.status, r.holdings, r.limit) == ("breach", ("T3",), 5.0)
-    assert r.actual == pytest.approx(5.0 * (1827 / 1826))
+    assert r.actual == pytest.approx(5.0 * (1827 / 1826), rel=1e-12, abs=0)
     assert flagged(result) == {"portfolio.max_maturity_years": "breach"}
 
 
@@ -162,7 +164,7 @@ def test_default_issuer_cap():
     result = run(rows(_add=[holding("A4", sector="agency", issuer="other  AGENCY", maturity="2026-03-31")]))
     r = result.rule("portfolio.issuer_max_pct")
     assert (r.status, set(r.holdings)) == ("breach", {"A3", "A4"})    # names match ignoring case and spacing
-    assert r.actual == pytest.approx(200 / 11)
+    assert r.actual == pytest.approx(200 / 11, rel=1e-12, abs=0)
     assert [f.group for f in r.findings] == ["Other Agency"]
     assert flagged(result) == {"portfolio.issuer_max_pct": "breach"}
 
@@ -172,7 +174,7 @@ def test_named_issuer_override():
     result = run(rows(_add=extra))
     r = result.rule('issuers."Big Agency".max_pct')
     assert (r.status, set(r.holdings)) == ("breach", {"A1", "A2", "A5", "A6"})
-    assert r.actual == pytest.approx(400 / 12)
+    assert r.actual == pytest.approx(400 / 12, rel=1e-12, abs=0)
     assert flagged(result) == {'issuers."Big Agency".max_pct': "breach"}
 
 
@@ -188,7 +190,8 @@ def test_portfolio_callables():
     call = dict(first_call="2025-07-31", call_frequency=2, call_price=100.0)
     result = run(rows(C1=call, C2=call))
     r = result.rule("portfolio.callable_max_pct")
-    assert (r.status, set(r.holdings), r.actual) == ("breach", {"A2", "C1", "C2"}, pytest.approx(30.0))
+    assert (r.status, set(r.holdings), r.actual) == ("breach", {"A2", "C1", "C2"}, pytest.approx(30.0,
+                                                                                                 rel=1e-12, abs=0))
     assert flagged(result) == {"portfolio.callable_max_pct": "breach"}
 
 
@@ -202,7 +205,8 @@ def test_sector_callables():
 def test_liquidity_floor():
     result = run(body=POLICY.replace("min_pct = 10 }", "min_pct = 50 }"))
     r = result.rule("portfolio.liquidity[0].min_pct")
-    assert (r.status, r.limit, r.actual, r.headroom) == ("breach", 50.0, pytest.approx(40.0), pytest.approx(-10.0))
+    assert (r.status, r.limit, r.actual, r.headroom) == ("breach", 50.0, pytest.approx(40.0, rel=1e-12, abs=0),
+                                                          pytest.approx(-10.0, rel=1e-12, abs=0))
     assert r.holdings == ()
     assert flagged(result) == {"portfolio.liquidity[0].min_pct": "breach"}
 
@@ -247,13 +251,13 @@ def test_sector_cap_near_then_breach():
     breach = run(rows(_add=corp))
     r = breach.rule("sectors.corporate.max_pct")
     assert (r.status, set(r.holdings)) == ("breach", {"C1", "C2", "C3", "C4", "C5", "C6"})
-    assert r.actual == pytest.approx(600 / 14)
+    assert r.actual == pytest.approx(600 / 14, rel=1e-12, abs=0)
 
 
 def test_sector_minimum():
     result = run(body=POLICY.replace("min_pct = 10\n", "min_pct = 25\n"))
     r = result.rule("sectors.treasury.min_pct")
-    assert (r.status, r.actual, r.holdings) == ("breach", pytest.approx(20.0), ())
+    assert (r.status, r.actual, r.holdings) == ("breach", pytest.approx(20.0, rel=1e-12, abs=0), ())
     assert flagged(result) == {"sectors.treasury.min_pct": "breach"}
 
 
@@ -327,7 +331,7 @@ def test_percentage_basis_is_the_policys():
     values[7] = 3_000_000.0                                                            # P1 worth 3m
     market = run(market_value=values)
     r = market.rule("sectors.commercial_paper.max_pct")
-    assert (r.status, r.basis, r.actual) == ("breach", "market", pytest.approx(400 / 12))
+    assert (r.status, r.basis, r.actual) == ("breach", "market", pytest.approx(400 / 12, rel=1e-12, abs=0))
     face = run(market_value=values, head=HEAD + 'basis = "face"\n')
     assert face.rule("sectors.commercial_paper.max_pct").status == "pass"
     assert face.rule("sectors.commercial_paper.max_pct").basis == "face"
@@ -366,4 +370,23 @@ def test_coverage_without_a_forecast_is_an_input_error():
 def test_policy_without_sectors_checks_no_sector_rules():
     result = run(body="[portfolio]\nissuer_max_pct = 25\n")
     assert [r.rule for r in result.rules] == ["portfolio.issuer_max_pct"]
-    assert result.rule("portfolio.issuer_max_pct").actual == pytest.approx(20.0)    # US Treasury, Big Agency
+    # US Treasury, Big Agency
+    assert result.rule("portfolio.issuer_max_pct").actual == pytest.approx(20.0, rel=1e-12, abs=0)
+
+
+def test_each_rule_has_its_testing_mode_and_may_change_it():
+    # Defaults a treasurer expects (issue 16, common practice): liquidity, coverage, WAM and duration
+    # continuous; ratings and maturities at purchase; shares follow the policy's own testing.
+    head = HEAD + 'testing = "at_purchase"\n'
+    result = run(head=head)
+    modes = {r.rule: r.testing for r in result.rules}
+    assert modes["portfolio.cash_needs_horizon_months"] == "continuous"
+    assert modes["sectors.corporate.min_long_rating"] == "at_purchase"
+    assert modes["sectors.commercial_paper.max_maturity_days"] == "at_purchase"
+    assert modes["sectors.corporate.max_pct"] == "at_purchase"
+    assert {r.rule: r.testing for r in run().rules}["sectors.corporate.max_pct"] == "continuous"
+    # a downgrade since purchase: a review at purchase, a breach when the rule is tested continuously
+    downgraded = rows(C2={"rating": "BBB+", "rating_at_purchase": "A"})
+    assert run(downgraded).rule("sectors.corporate.min_long_rating").status == "review"
+    strict = POLICY + '\n[rules."sectors.corporate.min_long_rating"]\ntesting = "continuous"\n'
+    assert run(downgraded, body=strict).rule("sectors.corporate.min_long_rating").status == "breach"

@@ -46,12 +46,12 @@ def test_shares_match_a_pandas_groupby(data):
     for sector, cap in (("agency", 40), ("corporate", 30), ("commercial_paper", 25)):
         r = result.rule(f"sectors.{sector}.max_pct")
         share = pct.get(sector, 0.0)
-        assert np.isclose(r.actual, share)
+        assert np.isclose(r.actual, share, rtol=1e-12, atol=0)
         assert (r.status == "breach") == (share > cap * (1 + 1e-9))
     others = frame[frame["sector"] != "treasury"]
     issuer_pct = 100 * others.groupby("issuer")["value"].sum() / frame["value"].sum()
     r = result.rule("portfolio.issuer_max_pct")
-    assert np.isclose(r.actual, issuer_pct.max() if len(issuer_pct) else 0.0)
+    assert np.isclose(r.actual, issuer_pct.max() if len(issuer_pct) else 0.0, rtol=1e-12, atol=0)
     over = set(issuer_pct[issuer_pct > 25 * (1 + 1e-9)].index)
     expected = {hid for hid, s, i in zip(h.id, frame["sector"], frame["issuer"]) if s != "treasury" and i in over}
     assert {hid for f in r.findings if f.status == "breach" for hid in f.holdings} == expected

@@ -31,12 +31,14 @@ def test_cash_by_month_from_the_cash_flow_matrix():
     # following business day, Monday 2026-02-02: month 12 (business-day rolling: common practice).
     expected = np.zeros(13)
     expected[5], expected[12] = 20_000.0, 1_020_000.0
-    np.testing.assert_allclose(cash[0], expected)
-    assert cash[1, 1] == pytest.approx(1_000_000.0) and cash[1].sum() == pytest.approx(1_000_000.0)
+    np.testing.assert_allclose(cash[0], expected, rtol=1e-12, atol=0)
+    assert cash[1, 1] == pytest.approx(1_000_000.0, rel=1e-12, abs=0)
+    assert cash[1].sum() == pytest.approx(1_000_000.0, rel=1e-12, abs=0)
     # the fund's balance is available on the check date itself, before coverage month 0: left out here
     # (coverage counts fund balances at market value instead)
     assert cash[2].sum() == 0.0
-    assert cash_by_month(cf, h.face, AS_OF, 12)[0].sum() == pytest.approx(20_000.0)   # horizon cuts month 12
+    assert cash_by_month(cf, h.face, AS_OF, 12)[0].sum() == pytest.approx(20_000.0,
+                                                                          rel=1e-12, abs=0)   # horizon cuts month 12
 
 
 def test_days_to_maturity():

@@ -229,3 +229,12 @@ def test_load_policy_missing_file(tmp_path):
     with pytest.raises(InputError) as err:
         load_policy(tmp_path / "policy.toml")
     assert str(err.value).startswith(f"{tmp_path / 'policy.toml'}:0:0: cannot read the policy file")
+
+
+@pytest.mark.parametrize("value", ["inf", "nan", "-inf"])
+def test_a_whole_number_that_is_not_finite_is_a_problem_not_a_crash(value):
+    # found by replacing every value of the demo policy with inf and nan (issue 13's fault hunt)
+    text = f'[portfolio]\ncash_needs_horizon_months = {value}\n'
+    with pytest.raises(InputError) as caught:
+        parse_policy(text, "policy.toml")
+    assert any("expected a finite number" in str(p) for p in caught.value.problems)

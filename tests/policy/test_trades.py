@@ -40,7 +40,7 @@ def test_read_and_apply(tmp_path, book):
     assert list(trades.action) == ["buy", "buy", "sell", "sell"]
     assert list(trades.holdings.row) == [2, 3, 4, 5]
     assert trades.label(2) == f"sell DEMO-TSY-0204 ({tmp_path / 'trades.csv'} row 4)"
-    assert trades.holdings.kind[0] == "discount" and trades.holdings.coupon[1] == pytest.approx(0.045)
+    assert trades.holdings.kind[0] == "discount" and trades.holdings.coupon[1] == pytest.approx(0.045, rel=1e-12, abs=0)
     after = apply_trades(book, trades)
     assert len(after) == len(book) - 1 + 2
     assert "DEMO-CP-0701" not in set(after.id)

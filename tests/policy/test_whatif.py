@@ -64,7 +64,7 @@ def test_buy_that_comes_close_to_a_cap_is_near_not_breach():
     c = change(result, "portfolio.issuer_max_pct")
     # Acme: 2 of 7 = 28.6% of a 30% cap: inside the 10% band, not over
     assert (c.before.status, c.after.status, c.new_breach, c.caused_by) == ("pass", "near", False, ())
-    assert c.after.actual == pytest.approx(200 / 7)
+    assert c.after.actual == pytest.approx(200 / 7, rel=1e-12, abs=0)
     assert result.new_breaches == ()
 
 
@@ -73,7 +73,7 @@ def test_trade_that_pushes_a_limit_is_a_breach_whatever_the_mode():
     for head in (HEAD, AT_PURCHASE):
         c = change(what_if(t, head=head), "portfolio.issuer_max_pct")
         assert (c.before.status, c.after.status, c.new_breach) == ("pass", "breach", True)
-        assert c.after.actual == pytest.approx(200 / 6)
+        assert c.after.actual == pytest.approx(200 / 6, rel=1e-12, abs=0)
         assert set(c.after.holdings) == {"C1", "C3"}
         assert [x.id for x in c.caused_by] == ["C3"]
         assert (c.caused_by[0].action, c.caused_by[0].row) == ("buy", 2)
@@ -85,7 +85,7 @@ def test_drift_not_worsened_by_the_trades_stays_review():
     result = what_if(t, head=AT_PURCHASE, body=body)
     c = change(result, "portfolio.issuer_max_pct")
     assert (c.before.status, c.after.status, c.new_breach, c.caused_by) == ("review", "review", False, ())
-    assert c.after.actual == pytest.approx(100 / 6)
+    assert c.after.actual == pytest.approx(100 / 6, rel=1e-12, abs=0)
 
 
 def test_drift_worsened_by_a_trade_becomes_a_breach():
@@ -103,13 +103,13 @@ def test_sell_that_breaks_a_liquidity_floor_is_named():
     result = what_if(t)
     c = change(result, "portfolio.liquidity[0].min_pct")
     # within 90 days after the sales: T2 only, 1.0m of 3.6m = 27.8%, still above the 20% floor
-    assert c.after.actual == pytest.approx(100 / 3.6)
+    assert c.after.actual == pytest.approx(100 / 3.6, rel=1e-12, abs=0)
     assert c.after.status == "pass"
     t = trades(sells=[("T1", 1_000_000.0), ("T2", 500_000.0)])
     c = change(what_if(t), "portfolio.liquidity[0].min_pct")
     # half of T2 left: 0.5m of 3.5m = 14.3% (before: T1 and T2, 40%)
     assert (c.before.status, c.after.status, c.new_breach) == ("pass", "breach", True)
-    assert c.after.actual == pytest.approx(50 / 3.5)
+    assert c.after.actual == pytest.approx(50 / 3.5, rel=1e-12, abs=0)
     assert {x.id for x in c.caused_by} == {"T1", "T2"}    # undoing either sale lifts the floor
 
 
@@ -133,7 +133,7 @@ def test_sector_cap_breach_from_two_buys_names_both():
     t = trades(buys=[holding("C3", issuer="Gamma", maturity="2026-09-30"),
                      holding("C4", issuer="Delta", maturity="2026-09-30")])
     c = change(what_if(t), "sectors.corporate.max_pct")
-    assert c.after.actual == pytest.approx(400 / 7)
+    assert c.after.actual == pytest.approx(400 / 7, rel=1e-12, abs=0)
     assert {x.id for x in c.caused_by} == {"C3", "C4"}
 
 

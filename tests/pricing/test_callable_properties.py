@@ -98,7 +98,7 @@ def test_bullet_value_is_the_tree_rollback_without_calls():
     oas = np.array([0.001, -0.002, 0.004])
     values = value_callables(bonds, sloped, oas=oas)
     np.testing.assert_allclose(values.bullet_price, callable_prices(bonds, sloped, oas, calls=False),
-                               rtol=1e-12)
+                               rtol=1e-12, atol=0)
 
 
 def test_effective_convexity_turns_negative_as_rates_fall_toward_the_call():
@@ -128,8 +128,10 @@ def test_price_tends_to_the_lowest_workout_as_volatility_vanishes():
     target = deterministic_workouts(bonds, sloped)
     gaps = [np.max(np.abs(callable_prices(bonds, sloped, 0.0, HullWhiteParams(0.03, s)) - target))
             for s in (0.01, 0.001, 1e-4, 0.0)]
-    assert gaps[0] > gaps[1] > gaps[2] > gaps[3]
-    assert gaps[3] < 1e-10
+    # Measured: 2.5, 1.1e-2, then 6e-14 and 7e-14 (round-off on prices near 100). The two volatile gaps
+    # shrink and stay well clear of round-off; the last two are round-off, so only a bound is asserted.
+    assert gaps[0] > gaps[1] > 1e-3
+    assert gaps[2] < 1e-10 and gaps[3] < 1e-10
 
 
 def test_curve_shift_equals_spread_shift():
@@ -140,18 +142,18 @@ def test_curve_shift_equals_spread_shift():
     up = callable_prices(bonds, lambda t: sloped(t) * np.exp(-shift * np.asarray(t)), oas)
     down = callable_prices(bonds, lambda t: sloped(t) * np.exp(shift * np.asarray(t)), oas)
     p = values.dirty_price
-    np.testing.assert_allclose(values.effective_duration, (down - up) / (2 * p * shift), rtol=1e-9)
-    np.testing.assert_allclose(values.effective_convexity, (up + down - 2 * p) / (p * shift ** 2), rtol=1e-6)
+    np.testing.assert_allclose(values.effective_duration, (down - up) / (2 * p * shift), rtol=1e-9, atol=0)
+    np.testing.assert_allclose(values.effective_convexity, (up + down - 2 * p) / (p * shift ** 2), rtol=1e-6, atol=0)
 
 
 def test_oas_round_trip_and_value_from_price():
     bonds = build([(0.05, 5.0, 0.2, 0.25, 100.0), (0.03, 2.0, 0.5, 0.0, 100.0), (0.07, 8.0, 0.1, 0.5, 102.0)])
     oas = np.array([0.004, -0.003, 0.012])
     prices = callable_prices(bonds, sloped, oas)
-    np.testing.assert_allclose(option_adjusted_spreads(bonds, sloped, prices), oas, atol=1e-9)
+    np.testing.assert_allclose(option_adjusted_spreads(bonds, sloped, prices), oas, atol=1e-9, rtol=0)
     values = value_callables(bonds, sloped, dirty_prices=prices)
-    np.testing.assert_allclose(values.oas, oas, atol=1e-9)
-    np.testing.assert_allclose(values.dirty_price, prices, atol=1e-7)
+    np.testing.assert_allclose(values.oas, oas, atol=1e-9, rtol=0)
+    np.testing.assert_allclose(values.dirty_price, prices, atol=1e-7, rtol=0)
 
 
 def test_a_bond_prices_the_same_alone_and_in_a_batch_on_any_number_of_threads():
@@ -159,7 +161,7 @@ def test_a_bond_prices_the_same_alone_and_in_a_batch_on_any_number_of_threads():
     alone = callable_prices(build([(0.05, 5.0, 0.2, 0.25, 100.0)]), sloped, 0.001)
     one_thread = callable_prices(many, sloped, 0.001, workers=1)
     two_threads = callable_prices(many, sloped, 0.001, workers=2)
-    assert one_thread[0] == pytest.approx(alone[0], abs=1e-12)
+    assert one_thread[0] == pytest.approx(alone[0], abs=1e-12, rel=0)
     np.testing.assert_array_equal(one_thread, two_threads)
 
 
@@ -170,8 +172,8 @@ def test_yield_of_a_par_bond_is_its_coupon():
     amounts[0, -1] += 100
     got = workout_yields(np.array([100.0]), 2, periods, amounts, np.ones((1, 10), bool),
                          np.array([[4.0, 6.0]]), np.full((1, 2), 100.0), np.zeros((1, 2)), np.ones((1, 2), bool))
-    np.testing.assert_allclose(got.to_call, [[0.05, 0.05]], atol=1e-12)
-    np.testing.assert_allclose([got.to_maturity[0], got.to_first_call[0], got.to_worst[0]], 0.05, atol=1e-12)
+    np.testing.assert_allclose(got.to_call, [[0.05, 0.05]], atol=1e-12, rtol=0)
+    np.testing.assert_allclose([got.to_maturity[0], got.to_first_call[0], got.to_worst[0]], 0.05, atol=1e-12, rtol=0)
     premium = workout_yields(np.array([103.0]), 2, periods, amounts, np.ones((1, 10), bool),
                              np.array([[4.0, 6.0]]), np.full((1, 2), 100.0), np.zeros((1, 2)),
                              np.ones((1, 2), bool))

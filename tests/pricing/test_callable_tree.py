@@ -41,11 +41,13 @@ def test_branching_matches_the_ornstein_uhlenbeck_moments(a):
             centre[-1] -= tree.dx
         moves = (centre + tree.dx - x, centre - x, centre - tree.dx - x)
         assert min(p.min() for p in (up, mid, down)) > 0
-        np.testing.assert_allclose(up + mid + down, 1.0, atol=1e-13)
+        np.testing.assert_allclose(up + mid + down, 1.0, atol=1e-13, rtol=0)
         mean = sum(p * d for p, d in zip((up, mid, down), moves))
         second = sum(p * d * d for p, d in zip((up, mid, down), moves))
-        np.testing.assert_allclose(mean, m * x, atol=1e-15)
-        np.testing.assert_allclose(second, v + (m * x) ** 2, rtol=1e-10, atol=1e-18)
+        # exact in real arithmetic; the mean is zero at the centre node, so the tolerance is 1e-12 of the
+        # node spacing, the scale of the moves it is summed from (round-off is ~1e-16 of it)
+        np.testing.assert_allclose(mean, m * x, rtol=0, atol=1e-12 * tree.dx)
+        np.testing.assert_allclose(second, v + (m * x) ** 2, rtol=1e-10, atol=0)   # v > 0: relative suffices
 
 
 def test_width_follows_the_0184_rule():
@@ -64,7 +66,7 @@ def test_state_prices_sum_to_the_curve(curve):
     """Forward induction (Hull and White 1994, second stage) fits alpha so sum_j Q_ij = DF(t_i)."""
     tree = HullWhiteTree.build(CURVES[curve], 0.03, 0.01, 1 / 52, 520)
     grid = tree.dt * np.arange(tree.n_steps + 1)
-    np.testing.assert_allclose(tree.state_prices.sum(axis=1), CURVES[curve](grid), rtol=1e-12)
+    np.testing.assert_allclose(tree.state_prices.sum(axis=1), CURVES[curve](grid), rtol=1e-12, atol=0)
 
 
 @pytest.mark.parametrize("curve", sorted(CURVES))
@@ -82,11 +84,11 @@ def test_zero_coupon_bonds_reprice_exactly(curve, a, sigma):
         call_years=np.zeros((n, 1)), call_prices=np.zeros((n, 1)), call_accrued=np.zeros((n, 1)),
         call_mask=np.zeros((n, 1), bool))
     prices = callable_prices(zeros, CURVES[curve], 0.0, HullWhiteParams(a, sigma))
-    np.testing.assert_allclose(prices, 100 * CURVES[curve](times), rtol=1e-10)
+    np.testing.assert_allclose(prices, 100 * CURVES[curve](times), rtol=1e-10, atol=0)
 
 
 def test_stub_discount_matches_the_step_discount_at_a_full_step():
     tree = HullWhiteTree.build(CURVES["sloped"], 0.03, 0.01, 1 / 52, 60)
     i = 37
     np.testing.assert_allclose(tree.stub_discount(i, np.array([(i + 1) * tree.dt]))[0],
-                               np.exp(-(tree.alpha[i] + tree.nodes(i)) * tree.dt), rtol=1e-13)
+                               np.exp(-(tree.alpha[i] + tree.nodes(i)) * tree.dt), rtol=1e-13, atol=0)

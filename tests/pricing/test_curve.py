@@ -52,13 +52,14 @@ def test_par_instrument_terms_on_a_month_end_curve_date():
     k = np.flatnonzero(flows[1])
     assert len(k) == 1
     assert inst.times[k[0]] == days_3m / 365
-    assert flows[1, k[0]] == pytest.approx(1 + y[1] * days_3m / 365, abs=1e-15)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert flows[1, k[0]] == pytest.approx(1 + y[1] * days_3m / 365, rel=1e-12, abs=0)
     # 2Y par bond: four coupons of y/2 (31 CFR 356 App. B I.A: half the annual rate), on month ends
     # stepped back from the maturity, at ACT/365F times from the actual dates; 1 more at maturity.
     coupon_dates = np.array(["2027-05-31", "2027-11-30", "2028-05-31", "2028-11-30"], dtype="datetime64[D]")
     k = np.flatnonzero(flows[4])
     np.testing.assert_array_equal(inst.times[k], (coupon_dates - DATE).astype(int) / 365)
-    np.testing.assert_allclose(flows[4, k], [y[4] / 2] * 3 + [1 + y[4] / 2], rtol=0, atol=1e-15)
+    np.testing.assert_allclose(flows[4, k], [y[4] / 2] * 3 + [1 + y[4] / 2], rtol=1e-12, atol=0)
     # 30Y bond: 60 coupons.
     assert np.count_nonzero(flows[10]) == 60
 
@@ -107,8 +108,10 @@ def test_forwards_keep_the_sign_of_their_discrete_forward():
     nodes = curve.node_times
     fd = -np.diff(np.log(curve.node_discount)) / np.diff(nodes)
     assert fd.min() < 0 < fd.max()
+    # a forward that touches zero may land a round-off below it: 1e-12 of the largest discrete forward
+    margin = 1e-12 * np.abs(fd).max()
     for a, b, sign in zip(nodes[:-1], nodes[1:], np.sign(fd)):
-        assert np.all(sign * curve.instantaneous_forward(np.linspace(a, b, 201)) >= -1e-15)
+        assert np.all(sign * curve.instantaneous_forward(np.linspace(a, b, 201)) >= -margin)
 
 
 def test_par_yields_without_positive_discount_factors_are_refused():
@@ -127,9 +130,10 @@ def test_extrapolation_holds_the_last_discrete_forward(method):
     end = curve.node_times[-1]
     f_end = -np.log(curve.node_discount[-1] / curve.node_discount[-2]) / (end - curve.node_times[-2])
     later = end + np.array([0.5, 5.0, 20.0])
-    np.testing.assert_allclose(curve.instantaneous_forward(later), f_end, rtol=0, atol=1e-15)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    np.testing.assert_allclose(curve.instantaneous_forward(later), f_end, rtol=1e-12, atol=0)
     np.testing.assert_allclose(curve.discount(later), curve.discount(end) * np.exp(-f_end * (later - end)),
-                               rtol=1e-14)
+                               rtol=1e-12, atol=0)
 
 
 def test_zero_and_forward_rates_agree_with_discount_factors():
@@ -137,13 +141,14 @@ def test_zero_and_forward_rates_agree_with_discount_factors():
     t = np.array([0.1, 0.5, 1.0, 2.7, 10.0, 29.0])
     df = curve.discount(t)
     # Definitions: DF = exp(-z t) continuous; DF = (1 + z/2)^(-2t) semiannual.
-    np.testing.assert_allclose(np.exp(-curve.zero_rate(t) * t), df, rtol=1e-14)
-    np.testing.assert_allclose((1 + curve.zero_rate(t, "semiannual") / 2) ** (-2 * t), df, rtol=1e-13)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    np.testing.assert_allclose(np.exp(-curve.zero_rate(t) * t), df, rtol=1e-12, atol=0)
+    np.testing.assert_allclose((1 + curve.zero_rate(t, "semiannual") / 2) ** (-2 * t), df, rtol=1e-13, atol=0)
     np.testing.assert_allclose(curve.discount(t[:-1]) / curve.discount(t[1:]),
-                               np.exp(curve.forward_rate(t[:-1], t[1:]) * np.diff(t)), rtol=1e-14)
+                               np.exp(curve.forward_rate(t[:-1], t[1:]) * np.diff(t)), rtol=1e-12, atol=0)
     # At t = 0 the zero rate is its limit, the instantaneous forward at 0.
-    assert curve.zero_rate(0.0) == pytest.approx(curve.instantaneous_forward(0.0), abs=1e-16)
-    assert curve.zero_rate(1e-7) == pytest.approx(curve.zero_rate(0.0), abs=1e-8)
+    assert curve.zero_rate(0.0) == pytest.approx(curve.instantaneous_forward(0.0), rel=1e-12, abs=0)
+    assert curve.zero_rate(1e-7) == pytest.approx(curve.zero_rate(0.0), abs=1e-8, rel=0)
     assert curve.discount(0.0) == 1.0
     with pytest.raises(ValueError):
         curve.zero_rate(1.0, compounding="annual")
@@ -177,8 +182,9 @@ def test_many_scenarios_at_once_equal_one_at_a_time():
     assert grid.shape == (3, 301)
     for s in range(3):
         alone = bootstrap(base.shifted(shifts[s]), DATE)
-        np.testing.assert_allclose(grid[s], alone.discount(t), rtol=0, atol=1e-14)
-        np.testing.assert_allclose(many[s].par_curve.par_yields, base.par_yields + shifts[s] / 1e4, atol=1e-17)
+        # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+        np.testing.assert_allclose(grid[s], alone.discount(t), rtol=1e-12, atol=0)
+        np.testing.assert_allclose(many[s].par_curve.par_yields, base.par_yields + shifts[s] / 1e4, rtol=1e-12, atol=0)
     same = bootstrap_many(base, DATE, base.par_yields + shifts / 1e4)
     np.testing.assert_array_equal(same.discount(t), grid)
 
@@ -187,7 +193,8 @@ def test_shifted_moves_the_quoted_par_yields_and_rebuilds():
     # "+100 bp" moves every quoted par yield (issue 3); the rebuilt curve prices the moved instruments.
     curve = bootstrap(par_curve("upward"), DATE)
     up = curve.shifted(100)
-    np.testing.assert_allclose(up.par_curve.par_yields, curve.par_curve.par_yields + 0.01, atol=1e-17)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    np.testing.assert_allclose(up.par_curve.par_yields, curve.par_curve.par_yields + 0.01, rtol=1e-12, atol=0)
     np.testing.assert_allclose(pv_per_100(up), 100.0, rtol=0, atol=1e-10)
     assert up.method == curve.method and up.curve_date == curve.curve_date
 

@@ -25,8 +25,9 @@ def test_good_file_gives_decimal_par_yields(tmp_path):
     curve = read_curve(write(tmp_path, GOOD))
     assert curve.tenors == ("1M", "3M", "6M", "1Y", "2Y", "10Y", "30Y")
     np.testing.assert_array_equal(curve.months, [1, 3, 6, 12, 24, 120, 360])
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
     np.testing.assert_allclose(curve.par_yields, [0.0372, 0.0375, 0.0377, 0.0374, 0.0371, 0.0416, 0.0436],
-                               rtol=0, atol=1e-17)
+                               rtol=1e-12, atol=0)
 
 
 def test_header_case_spaces_column_order_blank_lines_and_bom_are_accepted(tmp_path):
@@ -34,7 +35,8 @@ def test_header_case_spaces_column_order_blank_lines_and_bom_are_accepted(tmp_pa
     path.write_bytes("\ufeff Par_Yield_Pct , TENOR\n3.75, 3m\n\n3.74,12M\n".encode("utf-8"))
     curve = read_curve(path)
     assert curve.tenors == ("3M", "1Y")
-    np.testing.assert_allclose(curve.par_yields, [0.0375, 0.0374], rtol=0, atol=1e-17)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    np.testing.assert_allclose(curve.par_yields, [0.0375, 0.0374], rtol=1e-12, atol=0)
 
 
 def test_unsorted_and_duplicate_tenors(tmp_path):
@@ -76,7 +78,8 @@ def test_decimals_written_for_percent_are_refused(tmp_path):
 def test_a_low_short_end_with_a_normal_long_end_is_fine(tmp_path):
     # 2021-like: one-month bills at a few basis points are real, not decimals.
     curve = read_curve(write(tmp_path, "tenor,par_yield_pct\n1M,0.04\n1Y,0.1\n10Y,1.5\n"))
-    np.testing.assert_allclose(curve.par_yields, [0.0004, 0.001, 0.015], rtol=0, atol=1e-18)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    np.testing.assert_allclose(curve.par_yields, [0.0004, 0.001, 0.015], rtol=1e-12, atol=0)
 
 
 def test_unknown_missing_and_repeated_columns(tmp_path):

@@ -57,8 +57,8 @@ def test_ii_a_price_back_to_yield():
     # 31 CFR 356 App. B II.A read backwards: the published price 99.057893 (6 places) gives 8.84%
     h, cf = ii_a_bond("price", 99.057893)
     m = measures_from_dirty(h, cf, dirty_from_quote(h, cf))
-    assert float(m.ytm[0]) == pytest.approx(0.0884, abs=1e-8)
-    assert float(m.bey[0]) == pytest.approx(0.0884, abs=1e-8)     # semiannual already: BEY = ytm
+    assert float(m.ytm[0]) == pytest.approx(0.0884, abs=1e-8, rel=0)
+    assert float(m.bey[0]) == pytest.approx(0.0884, abs=1e-8, rel=0)     # semiannual already: BEY = ytm
 
 
 def ii_d_note():
@@ -81,11 +81,11 @@ def test_ii_d_street_compounds_the_fractional_period():
     h, cf = ii_d_note()
     dirty = dirty_from_quote(quoted(h, "yield", 0.0954), cf)
     street = float(dirty[0] - cf.accrued[0])
-    assert street == pytest.approx(99.738573, abs=5e-7)
+    assert street == pytest.approx(99.738573, abs=5e-7, rel=0)
     terms = treasury.yield_to_price_terms(D("1995-11-15"), D("1985-11-15"), D("1986-05-15"), D("1985-11-29"))
     published = float(treasury.price_from_yield(0.095, 0.0954, terms).price[0])
     assert published == 99.730918                                   # 31 CFR 356 App. B II.D, P
-    assert street - published == pytest.approx(0.007655, abs=2e-6)
+    assert street - published == pytest.approx(0.007655, abs=2e-6, rel=0)
 
 
 # --- the final coupon period (one flow left): simple interest ------------------------------------------
@@ -117,13 +117,13 @@ def test_final_period_simple_interest_closed_form(day_count, maturity, start, se
     c = 100 * coupon / frequency
     expected_dirty = (100 + c) / (1 + (e - a) / e * y / frequency)
     dirty = dirty_from_quote(quoted(h, "yield", y), cf)
-    assert float(cf.accrued[0]) == pytest.approx(a / e * c, abs=1e-12)
-    assert float(dirty[0]) == pytest.approx(expected_dirty, rel=1e-13)
+    assert float(cf.accrued[0]) == pytest.approx(a / e * c, abs=1e-12, rel=0)
+    assert float(dirty[0]) == pytest.approx(expected_dirty, rel=1e-13, abs=0)
     m = measures_from_dirty(h, cf, dirty)
-    assert float(m.ytm[0]) == pytest.approx(y, abs=1e-12)
+    assert float(m.ytm[0]) == pytest.approx(y, abs=1e-12, rel=0)
     t = (e - a) / e / frequency                                   # years to the payment
-    assert float(m.macaulay[0]) == pytest.approx(t, rel=1e-12)
-    assert float(m.modified[0]) == pytest.approx(t / (1 + y / frequency * (e - a) / e), rel=1e-12)
+    assert float(m.macaulay[0]) == pytest.approx(t, rel=1e-12, abs=0)
+    assert float(m.modified[0]) == pytest.approx(t / (1 + y / frequency * (e - a) / e), rel=1e-12, abs=0)
 
 
 # --- bills (section VI) ------------------------------------------------------------------------------------
@@ -140,9 +140,9 @@ def test_vi_a_bill_price_and_investment_rate():
     h, cf, dirty = bill("1989-11-24", "1990-02-22", 7.610)
     assert round(float(dirty[0]), 6) == 98.0975
     m = measures_from_dirty(h, cf, dirty)
-    assert float(m.ytm[0]) == pytest.approx(0.07865332, abs=5e-9)
-    assert float(m.bey[0]) == pytest.approx(0.07865332, abs=5e-9)
-    assert float(m.ytm[0]) == pytest.approx((100 - 98.0975) / 98.0975 * 365 / 90, rel=1e-13)
+    assert float(m.ytm[0]) == pytest.approx(0.07865332, abs=5e-9, rel=0)
+    assert float(m.bey[0]) == pytest.approx(0.07865332, abs=5e-9, rel=0)
+    assert float(m.ytm[0]) == pytest.approx((100 - 98.0975) / 98.0975 * 365 / 90, rel=1e-13, abs=0)
 
 
 def test_vi_d_1_cash_management_bill():
@@ -152,7 +152,7 @@ def test_vi_d_1_cash_management_bill():
     h, cf, dirty = bill("1990-06-01", "1990-06-21", 7.930)
     assert round(float(dirty[0]), 6) == 99.559444
     ytm = float(measures_from_dirty(h, cf, np.array([99.559444])).ytm[0])
-    assert ytm == pytest.approx(0.08075725, abs=5e-9)
+    assert ytm == pytest.approx(0.08075725, abs=5e-9, rel=0)
     assert round(round((100 - 99.559444) / 99.559444, 6) * 365 / 20, 6) == 0.080756   # the appendix's rounding
 
 
@@ -161,7 +161,7 @@ def test_vi_d_2_bill_longer_than_half_a_year():
     # r = 364, y = 365: the quadratic gives i = .082373244
     h, cf, dirty = bill("1990-06-07", "1991-06-06", 7.65)
     assert round(float(dirty[0]), 6) == 92.265
-    assert float(measures_from_dirty(h, cf, dirty).ytm[0]) == pytest.approx(0.082373244, abs=5e-10)
+    assert float(measures_from_dirty(h, cf, dirty).ytm[0]) == pytest.approx(0.082373244, abs=5e-10, rel=0)
 
 
 def test_bill_investment_rate_uses_366_when_the_next_year_has_29_february():
@@ -170,15 +170,17 @@ def test_bill_investment_rate_uses_366_when_the_next_year_has_29_february():
     # at 2.40% discount: P = 100(1 - .024 x 91/360), i = [(100 - P)/P](366/91) (derived from the formula).
     h, cf, dirty = bill("2019-03-01", "2019-05-31", 2.40)
     price = 100 * (1 - 0.024 * 91 / 360)
-    assert float(dirty[0]) == pytest.approx(price, rel=1e-14)
-    assert float(measures_from_dirty(h, cf, dirty).ytm[0]) == pytest.approx((100 - price) / price * 366 / 91, rel=1e-12)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert float(dirty[0]) == pytest.approx(price, rel=1e-12, abs=0)
+    assert float(measures_from_dirty(h, cf, dirty).ytm[0]) == pytest.approx((100 - price) / price * 366 / 91,
+                                                                            rel=1e-12, abs=0)
 
 
 def test_bill_quoted_by_investment_rate_round_trips():
     # App. B VI.D read both ways: a yield quote on a discount holding is its investment rate
     h, cf, dirty = bill("1990-06-07", "1991-06-06", 7.65)
     back = dirty_from_quote(quoted(h, "yield", 0.082373244), cf)
-    assert float(back[0]) == pytest.approx(92.265, abs=1e-6)
+    assert float(back[0]) == pytest.approx(92.265, abs=1e-6, rel=0)
 
 
 # --- interest-at-maturity (CD) and fund -------------------------------------------------------------------
@@ -188,13 +190,14 @@ def test_cd_simple_interest_on_act_360():
     # (180 days, ACT/360) pays 102.5; at 1 Apr 2025 (90 days left) at a 4% money-market yield the
     # dirty price is 102.5 / (1 + .04 x 90/360), accrued 100 x .05 x 90/360 = 1.25
     h, cf = holding(sector="cd", maturity="2025-06-30", coupon=0.05, issue_date="2025-01-01", settle="2025-04-01")
-    assert float(cf.amount.sum()) == pytest.approx(102.5, abs=1e-12)
-    assert float(cf.accrued[0]) == pytest.approx(1.25, abs=1e-12)
+    assert float(cf.amount.sum()) == pytest.approx(102.5, abs=1e-12, rel=0)
+    assert float(cf.accrued[0]) == pytest.approx(1.25, abs=1e-12, rel=0)
     dirty = dirty_from_quote(quoted(h, "yield", 0.04), cf)
-    assert float(dirty[0]) == pytest.approx(102.5 / 1.01, rel=1e-14)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert float(dirty[0]) == pytest.approx(102.5 / 1.01, rel=1e-12, abs=0)
     m = measures_from_dirty(h, cf, dirty)
-    assert float(m.ytm[0]) == pytest.approx(0.04, abs=1e-13)
-    assert float(m.modified[0]) == pytest.approx(0.25 / 1.01, rel=1e-12)     # tau / (1 + y tau)
+    assert float(m.ytm[0]) == pytest.approx(0.04, abs=1e-13, rel=0)
+    assert float(m.modified[0]) == pytest.approx(0.25 / 1.01, rel=1e-12, abs=0)     # tau / (1 + y tau)
 
 
 def test_fund_prices_at_par_with_stated_yield():

@@ -47,11 +47,11 @@ def test_masaryk_annual_bond():
     # price 92.41842646, Macaulay 4.281412086, modified 3.892192805, convexity 20.09731536,
     # dollar duration (ModD x P / 100) 3.597103346
     m = at(0.08, 5, 0.10, frequency=1)
-    assert float(m.dirty[0]) == pytest.approx(92.41842646, abs=5e-9)
-    assert float(m.macaulay[0]) == pytest.approx(4.281412086, abs=5e-10)
-    assert float(m.modified[0]) == pytest.approx(3.892192805, abs=5e-10)
-    assert float(m.convexity[0]) == pytest.approx(20.09731536, abs=5e-9)
-    assert float(m.modified[0] * m.dirty[0] / 100) == pytest.approx(3.597103346, abs=5e-9)
+    assert float(m.dirty[0]) == pytest.approx(92.41842646, abs=5e-9, rel=0)
+    assert float(m.macaulay[0]) == pytest.approx(4.281412086, abs=5e-10, rel=0)
+    assert float(m.modified[0]) == pytest.approx(3.892192805, abs=5e-10, rel=0)
+    assert float(m.convexity[0]) == pytest.approx(20.09731536, abs=5e-9, rel=0)
+    assert float(m.modified[0] * m.dirty[0] / 100) == pytest.approx(3.597103346, abs=5e-9, rel=0)
 
 
 def test_masaryk_price_change_estimates():
@@ -62,12 +62,12 @@ def test_masaryk_price_change_estimates():
     # 88.91419 and 96.10840 are derived [D][V].
     m = at(0.08, 5, 0.10, frequency=1)
     p, mod, cx = float(m.dirty[0]), float(m.modified[0]), float(m.convexity[0])
-    assert p * (1 - mod * 0.01) == pytest.approx(88.82132312, abs=5e-8)
-    assert p * (1 + mod * 0.01) == pytest.approx(96.01552981, abs=5e-8)
-    assert float(price(0.08, 5, 0.11, 1)[0]) == pytest.approx(88.91230895, abs=5e-9)
-    assert float(price(0.08, 5, 0.09, 1)[0]) == pytest.approx(96.11034874, abs=5e-9)
-    assert p * (1 - mod * 0.01 + 0.5 * cx * 0.01 ** 2) == pytest.approx(88.91419, abs=5e-6)
-    assert p * (1 + mod * 0.01 + 0.5 * cx * 0.01 ** 2) == pytest.approx(96.10840, abs=5e-6)
+    assert p * (1 - mod * 0.01) == pytest.approx(88.82132312, abs=5e-8, rel=0)
+    assert p * (1 + mod * 0.01) == pytest.approx(96.01552981, abs=5e-8, rel=0)
+    assert float(price(0.08, 5, 0.11, 1)[0]) == pytest.approx(88.91230895, abs=5e-9, rel=0)
+    assert float(price(0.08, 5, 0.09, 1)[0]) == pytest.approx(96.11034874, abs=5e-9, rel=0)
+    assert p * (1 - mod * 0.01 + 0.5 * cx * 0.01 ** 2) == pytest.approx(88.91419, abs=5e-6, rel=0)
+    assert p * (1 + mod * 0.01 + 0.5 * cx * 0.01 ** 2) == pytest.approx(96.10840, abs=5e-6, rel=0)
 
 
 # --- REFERENCES 3.5: Fabozzi's 9% 20-year bond at 6% --------------------------------------------------
@@ -127,8 +127,8 @@ def test_ii_a_bond_shock_table_derived(shift_bp, exact, duration_only, with_conv
     m = at(0.0875, 30, 0.0884)
     p, mod, cx, dy = float(m.dirty[0]), float(m.modified[0]), float(m.convexity[0]), shift_bp / 1e4
     assert round(float(price(0.0875, 30, 0.0884 + dy)[0]), 6) == exact
-    assert p * (1 - mod * dy) == pytest.approx(duration_only, abs=2e-6)
-    assert p * (1 - mod * dy + 0.5 * cx * dy * dy) == pytest.approx(with_convexity, abs=2e-6)
+    assert p * (1 - mod * dy) == pytest.approx(duration_only, abs=2e-6, rel=0)
+    assert p * (1 - mod * dy + 0.5 * cx * dy * dy) == pytest.approx(with_convexity, abs=2e-6, rel=0)
 
 
 # --- REFERENCES 3.7: the closed form for Macaulay duration ---------------------------------------------
@@ -142,7 +142,7 @@ def closed_form_periods(c, y, n):
 def test_closed_form_published_check():
     # REFERENCES 3.7 [V]: c = 4%, y = 4.5% per period, N = 16 -> 11.98755 periods = 5.993775 years (s/a);
     # modified = 5.993775 / 1.045 = 5.73567 (REFERENCES 6)
-    assert closed_form_periods(0.04, 0.045, 16) == pytest.approx(11.98755, abs=5e-6)
+    assert closed_form_periods(0.04, 0.045, 16) == pytest.approx(11.98755, abs=5e-6, rel=0)
     m = at(0.08, 8, 0.09)
     assert round(float(m.macaulay[0]), 6) == 5.993775
     assert round(float(m.modified[0]), 5) == 5.73567
@@ -156,7 +156,7 @@ def test_closed_form_matches_on_coupon_dates(coupon, y, periods, frequency):
     years = periods * (12 // frequency) / 12
     m = at(coupon, years, y, frequency)
     expected = closed_form_periods(coupon / frequency, y / frequency, periods) / frequency
-    assert float(m.macaulay[0]) == pytest.approx(expected, rel=1e-10)
+    assert float(m.macaulay[0]) == pytest.approx(expected, rel=1e-10, abs=0)
 
 
 def test_closed_form_between_coupon_dates_shifts_by_the_accrued_fraction():
@@ -168,7 +168,7 @@ def test_closed_form_between_coupon_dates_shifts_by_the_accrued_fraction():
     cf = cash_flows(h, D("2026-03-15"))
     m = measures_at_yield(cf, np.array([0.09]), np.array([2]))
     expected = (closed_form_periods(0.04, 0.045, 17) - 60 / 180) / 2
-    assert float(m.macaulay[0]) == pytest.approx(expected, rel=1e-12)
+    assert float(m.macaulay[0]) == pytest.approx(expected, rel=1e-12, abs=0)
 
 
 # --- REFERENCES 6: rules of thumb --------------------------------------------------------------------
@@ -177,7 +177,7 @@ def test_zero_coupon_closed_forms():
     # REFERENCES 6 (Touro/Bigel 9.34 [R]; numbers [D][V]): 10-year zero at 6% s/a: MacD 10.0,
     # ModD = T/(1 + y/f) = 9.708738, convexity n(n+1)/[f^2 (1+y/f)^2] = 98.9726
     m = at(0.0, 10, 0.06, kind="zero")
-    assert float(m.macaulay[0]) == pytest.approx(10.0, abs=1e-12)
+    assert float(m.macaulay[0]) == pytest.approx(10.0, abs=1e-12, rel=0)
     assert round(float(m.modified[0]), 6) == 9.708738
     assert round(float(m.convexity[0]), 4) == 98.9726
 
@@ -193,14 +193,14 @@ def test_touro_coupon_convexity_semiannual_within_tolerance():
     # Bigel 9.34 table [R]: 8% / 14% coupons at 10%: 5y 19.58 / 17.44, 30y 167.56 / 148.28; they match
     # semiannual compounding only to +/-0.01 (REFERENCES 3.4: the table mixes conventions), so 0.02
     m = at([0.08, 0.14, 0.08, 0.14], [5, 5, 30, 30], 0.10)
-    np.testing.assert_allclose(m.convexity, [19.58, 17.44, 167.56, 148.28], atol=0.02)
+    np.testing.assert_allclose(m.convexity, [19.58, 17.44, 167.56, 148.28], atol=0.02, rtol=0)
 
 
 def test_par_bond_durations():
     # REFERENCES 6 [D][V]: par bonds at 5% s/a: D = (1+y)/y [1 - (1+y)^-N] periods:
     # 2y 1.928012, 5y 4.485433, 10y 7.989446, 30y 15.840686 years; priced at 100
     m = at(0.05, [2, 5, 10, 30], 0.05)
-    np.testing.assert_allclose(m.dirty, 100.0, atol=1e-10)
+    np.testing.assert_allclose(m.dirty, 100.0, atol=1e-10, rtol=0)
     assert [round(float(x), 6) for x in m.macaulay] == [1.928012, 4.485433, 7.989446, 15.840686]
 
 
@@ -235,11 +235,16 @@ def test_long_bond_approaches_the_perpetuity_limit():
     # REFERENCES 6 [D]: a perpetuity's Macaulay duration is (1+y)/y periods: 20.5 years at 5% s/a;
     # a 5% par bond of 300 years is within 1e-5 of it (the par-bond form: 20.5 [1 - (1+y)^-N])
     m = at(0.05, 300, 0.05)
-    assert float(m.macaulay[0]) == pytest.approx(20.5 * (1 - 1.025 ** -600), rel=1e-10)
-    assert float(m.macaulay[0]) == pytest.approx(20.5, abs=1e-5)
+    assert float(m.macaulay[0]) == pytest.approx(20.5 * (1 - 1.025 ** -600), rel=1e-10, abs=0)
+    assert float(m.macaulay[0]) == pytest.approx(20.5, abs=1e-5, rel=0)
 
 
-def test_dirty_from_yield_agrees_with_measures():
+def test_dirty_from_yield_on_a_coupon_date_is_the_annuity_formula():
+    # Textbook price of a bullet on a coupon date: P = (C/2)(1 - v^n)/(y/2) + 100 v^n, v = 1/(1 + y/2),
+    # n half-years; here a 3% 3-year note at 4% (n = 6) and a 7% 12-year bond at 5% (n = 24)
     h, cf = bonds([0.03, 0.07], [3, 12])
-    np.testing.assert_array_equal(dirty_from_yield(cf, np.array([0.04, 0.05]), h.frequency),
-                                  measures_at_yield(cf, np.array([0.04, 0.05]), h.frequency).dirty)
+    expected = [1.5 * (1 - 1.02 ** -6) / 0.02 + 100 * 1.02 ** -6,
+                3.5 * (1 - 1.025 ** -24) / 0.025 + 100 * 1.025 ** -24]
+    # relative 1e-12: the same sum in exact arithmetic, so only round-off separates the two
+    np.testing.assert_allclose(dirty_from_yield(cf, np.array([0.04, 0.05]), h.frequency), expected,
+                               rtol=1e-12, atol=0)

@@ -7,11 +7,11 @@ import sqlite3
 
 import pytest
 
-import ladder.folder.save as save
-import ladder.folder.journal as journal
+import ladder.folder.transaction as transaction
 import ladder.report.custodian as custodian
 from ladder.folder.book_file import load_book
 from ladder.errors import InputError
+from ladder.book.holdings_file import COLUMNS
 from ladder.report import history
 from ladder.report.history import Snapshot, input_file, load_snapshot, record_snapshot, snapshot_dates
 from ladder.folder.journal import JournalEntry, append_journal, journal_path, read_journal
@@ -56,32 +56,24 @@ def test_history_keeps_input_bytes_and_replaces_a_month(demo_copy):
     assert history.previous_snapshot(demo_copy, dt.date(2026, 12, 31)).as_of == dt.date(2026, 11, 30)
 
 
-def test_holdings_save_failing_midway_keeps_the_old_file(demo_copy, monkeypatch):
+def test_import_failing_before_its_commit_point_keeps_holdings_and_journal(demo_copy, monkeypatch):
     book = load_book(demo_copy)
     original = (demo_copy / "holdings.csv").read_bytes()
+    new = custodian.CustodianFile(demo_copy / "custodian.csv", book.holdings.take(slice(1, None)),
+                                  frozenset(COLUMNS))
+    changes, merged = custodian.reconcile(book, new, remove_missing=True)
+    real_write = transaction._write
 
-    def fail(*args):
-        raise OSError("disk full (simulated)")
-    monkeypatch.setattr(save.os, "replace", fail)
+    def fail(path, data, mode=0o666):
+        if path.name.startswith(transaction.MANIFEST):
+            raise OSError("disk full (simulated)")
+        real_write(path, data, mode)
+    monkeypatch.setattr(transaction, "_write", fail)
     with pytest.raises(OSError):
-        save.save_holdings(book, book.holdings.take(slice(0, 3)))
-    assert (demo_copy / "holdings.csv").read_bytes() == original
-    assert not list(demo_copy.glob(".holdings.csv.*.tmp"))
-
-
-def test_import_whose_journal_fails_puts_the_holdings_back(demo_copy, monkeypatch):
-    book = load_book(demo_copy)
-    original = (demo_copy / "holdings.csv").read_bytes()
-    new = book.holdings.take(slice(1, None))
-    changes = custodian.compare_holdings(book.holdings, new)
-
-    def fail(*args):
-        raise OSError("journal not writable (simulated)")
-    monkeypatch.setattr(journal, "append_journal", fail)
-    with pytest.raises(OSError):
-        custodian.replace_holdings(book, new, changes, "custodian.csv")
+        custodian.apply_reconciliation(book, merged, changes, "custodian.csv", remove_missing=True)
     assert (demo_copy / "holdings.csv").read_bytes() == original
     assert not journal_path(demo_copy).exists()
+    assert not (demo_copy / transaction.RECORD).exists() and not (demo_copy / "versions").exists()
 
 
 def test_journal_is_append_only(demo_copy):

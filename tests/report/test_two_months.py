@@ -70,7 +70,8 @@ def test_second_month_shows_the_first_as_last_month(tmp_path):
         "Ending market value (with accrued interest)")[1]
     # year to date: November's income plus December's
     income = last.row("Income for the period (interest earned)")
-    assert income[4] == pytest.approx(this.row("Income for the period (interest earned)")[1] + income[1])
+    assert income[4] == pytest.approx(this.row("Income for the period (interest earned)")[1] + income[1],
+                                      rel=1e-12, abs=0)
     assert second.report.period_start == FIRST
 
     # the activity section lists exactly the journal's entries of (30 Nov, 31 Dec]
@@ -79,16 +80,17 @@ def test_second_month_shows_the_first_as_last_month(tmp_path):
     assert len(journal) == len(entries) > 0
     assert [(r[0], r[1], r[2], r[3], r[4], r[6]) for r in activity.rows] == [
         (e.date, e.action, e.holding, e.face, e.amount, e.reason) for e in journal]
-    assert activity.total[4] == pytest.approx(sum(e.amount for e in journal))
+    assert activity.total[4] == pytest.approx(sum(e.amount for e in journal), rel=1e-12, abs=0)
     assert all(r[1] != "note" for r in activity.rows)           # November's note is not December's activity
 
     # December's income, including the holdings that matured during it, is what November's income
     # projection expected for December: nothing was bought and the funds kept their balances
     projected = first.report.section("income").tables[0].row("2026-12")[1]
-    assert income[1] == pytest.approx(projected, rel=1e-12)
+    assert income[1] == pytest.approx(projected, rel=1e-12, abs=0)
     departed = second.report.section("activity").tables[1]
     assert sorted(r[0] for r in departed.rows) == sorted(e.holding for e in entries)
-    assert last.row("of which: holdings that left the book in the period")[1] == pytest.approx(departed.total[5])
+    assert last.row("of which: holdings that left the book in the period")[1] == pytest.approx(departed.total[5],
+                                                                                               rel=1e-12, abs=0)
 
     # the first month-end is written again exactly as it was, though the book has moved on
     assert past_report(folder, FIRST).to_json() == first.report.to_json()

@@ -47,8 +47,8 @@ def test_steepener_rotates_about_the_pivot():
     assert (shift[0], shift[-1]) == (-50.0, 50.0)          # documented size: ends differ by 100 bp
     assert np.all(np.diff(shift) > 0)
     # Linear in tenor years on each side of the pivot.
-    np.testing.assert_allclose(shift[:5], -50 + 50 * (YEARS[:5] - YEARS[0]) / (2 - YEARS[0]), atol=1e-12)
-    np.testing.assert_allclose(shift[4:], 50 * (YEARS[4:] - 2) / 28, atol=1e-12)
+    np.testing.assert_allclose(shift[:5], -50 + 50 * (YEARS[:5] - YEARS[0]) / (2 - YEARS[0]), atol=1e-12, rtol=0)
+    np.testing.assert_allclose(shift[4:], 50 * (YEARS[4:] - 2) / 28, atol=1e-12, rtol=0)
     np.testing.assert_array_equal(flattener(CURVE).shift_bp_by_tenor, -shift)
 
 
@@ -67,9 +67,9 @@ def test_short_and_long_end_moves():
     short = short_end_move(CURVE, 100).shift_bp_by_tenor
     np.testing.assert_array_equal(short, [100, 100, 100, 100, 0, 0, 0, 0, 0, 0, 0])
     long = long_end_move(CURVE, -100).shift_bp_by_tenor
-    np.testing.assert_allclose(long, [0, 0, 0, 0, 0, -100 / 3, -100, -100, -100, -100, -100], atol=1e-12)
+    np.testing.assert_allclose(long, [0, 0, 0, 0, 0, -100 / 3, -100, -100, -100, -100, -100], atol=1e-12, rtol=0)
     custom = short_end_move(CURVE, 60, full_to="6M", zero_from="3Y").shift_bp_by_tenor
-    np.testing.assert_allclose(custom[2:6], [60, 60 * 2 / 2.5, 60 * 1 / 2.5, 0], atol=1e-12)
+    np.testing.assert_allclose(custom[2:6], [60, 60 * 2 / 2.5, 60 * 1 / 2.5, 0], atol=1e-12, rtol=0)
     with pytest.raises(ValueError, match="must be shorter"):
         long_end_move(CURVE, 100, zero_to="5Y", full_from="2Y")
 

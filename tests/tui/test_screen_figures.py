@@ -3,6 +3,7 @@ the rung summary's marks, table sorting, scenario text, the trade ticket's row a
 
 from __future__ import annotations
 
+from dataclasses import replace
 from types import SimpleNamespace
 
 import numpy as np
@@ -26,25 +27,38 @@ def valuation(demo_book):
     return value_book(demo_book)
 
 
+def zero_coupon_book(book):
+    """The demo book holds no zero-coupon bond: its longest non-callable Treasury note made one (no coupon,
+    no quote, so priced on the curve plus the sector spread), alone in the book."""
+    h = book.holdings
+    note = np.flatnonzero((h.sector == "treasury") & (h.kind == "fixed") & ~h.callable)
+    one = h.take([int(note[np.argmax(h.maturity[note])])])
+    zero = replace(one, id=np.array(["ZERO-1"], object), kind=np.array(["zero"], object), coupon=np.zeros(1),
+                   quote_type=np.array([""], object), quote=np.full(1, np.nan))
+    return book.with_holdings(zero)
+
+
 @pytest.mark.parametrize("kind", ["fixed", "zero", "discount", "at_maturity"])
-def test_price_yield_curve_passes_through_the_holding_with_the_duration_slope(valuation, kind):
+def test_price_yield_curve_passes_through_the_holding_with_the_duration_slope(valuation, demo_book, kind):
+    if kind == "zero":
+        valuation = value_book(zero_coupon_book(demo_book))
     rows = np.flatnonzero((valuation.holdings.kind == kind) & ~valuation.holdings.callable)
-    if not len(rows):
-        pytest.skip(f"the demo book holds no {kind} holding")
+    assert len(rows), f"the book holds no {kind} holding"
     i = int(rows[0])
     py = price_yield(valuation, i)
     mid = len(py.yields) // 2
     # The exact curve reprices the holding at its own yield (the valuation's dirty price).
-    assert py.exact[mid] == pytest.approx(valuation.dirty[i], rel=1e-10)
-    assert py.yields[mid] == pytest.approx(valuation.measures.ytm[i], abs=1e-15)
+    assert py.exact[mid] == pytest.approx(valuation.dirty[i], rel=1e-10, abs=0)
+    # relative 1e-12: exact in real arithmetic, so only round-off (~1e-15) separates the two
+    assert py.yields[mid] == pytest.approx(valuation.measures.ytm[i], rel=1e-12, abs=0)
     # Modified duration is -(1/P) dP/dy (yield_math docstring): the exact curve's slope at y0.
     h = py.yields[mid + 1] - py.yields[mid - 1]
     slope = (py.exact[mid + 1] - py.exact[mid - 1]) / h
-    assert slope == pytest.approx(-py.p0 * valuation.measures.modified[i], rel=1e-3)
+    assert slope == pytest.approx(-py.p0 * valuation.measures.modified[i], rel=1e-3, abs=0)
     # Second order beats first order away from y0 (Taylor), and both meet the exact price at y0.
     far = [0, -1]
     assert np.all(np.abs(py.convexity[far] - py.exact[far]) < np.abs(py.duration[far] - py.exact[far]))
-    assert py.duration[mid] == py.convexity[mid] == pytest.approx(py.p0)
+    assert py.duration[mid] == py.convexity[mid] == pytest.approx(py.p0, rel=1e-12, abs=0)
 
 
 def test_funds_have_no_price_yield_curve_and_callables_show_their_calls(valuation):
@@ -60,11 +74,16 @@ def test_funds_have_no_price_yield_curve_and_callables_show_their_calls(valuatio
 
 
 def _valuation(maturities, market_value, face=None):
-    """A stand-in valuation with only what the rung summary reads."""
+    """A stand-in valuation with only what the rung summary reads: zero-coupon holdings paying their
+    face at maturity."""
     maturities = np.array(maturities, dtype="datetime64[D]")
     mv = np.asarray(market_value, dtype=float)
-    holdings = SimpleNamespace(maturity=maturities, face=mv if face is None else np.asarray(face, float))
-    return SimpleNamespace(as_of=np.datetime64("2026-01-31"), holdings=holdings, market_value=mv)
+    face = mv if face is None else np.asarray(face, float)
+    holdings = SimpleNamespace(maturity=maturities, face=face, kind=np.array(["zero"] * len(mv), dtype=object))
+    flows = SimpleNamespace(mask=np.ones((len(mv), 1), bool), pay_dates=maturities[:, None],
+                            amount=np.full((len(mv), 1), 100.0))
+    return SimpleNamespace(as_of=np.datetime64("2026-01-31"), holdings=holdings, market_value=mv,
+                           pricer=SimpleNamespace(cash_flows=flows))
 
 
 def test_rung_marks_gap_crowded_and_short_of_needs():
@@ -72,14 +91,17 @@ def test_rung_marks_gap_crowded_and_short_of_needs():
     # 3/60, 3/60, 6/60, 12/60, 12/60, 24/60 of the value.
     v = _valuation(["2026-03-15", "2026-06-15", "2026-09-15", "2027-06-15", "2028-06-15", "2030-06-15"],
                    [5, 5, 10, 20, 55, 5])
-    needs = CashNeeds(np.array(["2026-03-01", "2026-03-20"], dtype="datetime64[D]"), np.array([4.0, 2.0]),
-                      np.array(["a", "b"], dtype=object), np.array([2, 3]))
+    needs = CashNeeds(np.array(["2026-03-01", "2026-03-20", "2026-08-01"], dtype="datetime64[D]"),
+                      np.array([4.0, 2.0, 12.0]), np.array(["a", "b", "c"], dtype=object), np.array([2, 3, 4]))
     s = rung_summary(v, needs)
     assert s.rungs == RUNGS
-    assert s.even_share[:6] == pytest.approx(np.array([3, 3, 6, 12, 12, 24]) / 60)
-    assert list(s.needs[:2]) == [6.0, 0.0]
+    assert s.even_share[:6] == pytest.approx(np.array([3, 3, 6, 12, 12, 24]) / 60, rel=1e-12, abs=0)
+    assert list(s.needs[:3]) == [6.0, 0.0, 12.0]
     marks = dict(zip(s.rungs, s.marks))
-    assert marks["0-3M"] == ("short of needs",)      # 6 needed, 5 maturing
+    assert marks["0-3M"] == ("short of needs",)      # 6 needed so far, 5 paid so far
+    # 6-12M needs 12 with 10 maturing in it, but by its end 5 + 5 + 10 = 20 has been paid against
+    # 6 + 0 + 12 = 18 needed: covered cumulatively (ladder.policy.liquidity), so not marked
+    assert marks["6-12M"] == () and list(s.coverage.headroom[:3]) == [-1.0, 4.0, 2.0]
     assert marks["2-3Y"] == ("crowded",)             # 55% against an even 20%
     assert marks["3-5Y"] == ("gap",)                 # 5% against an even 40%
     assert marks["1-2Y"] == () and marks["5Y+"] == ()

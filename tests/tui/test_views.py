@@ -5,6 +5,7 @@ a curve edit reaches every view, and saving writes the book atomically with a ba
 from __future__ import annotations
 
 import numpy as np
+import pytest
 
 from conftest import drive, settle
 from ladder.analysis.check import check_book
@@ -167,6 +168,7 @@ def test_cash_plan_shows_periods_shortfalls_and_income(demo_book):
         table = app.query_one("#plan-table")
         seen["closing"] = cells(table, "closing")
         seen["status"] = cells(table, "status")
+        seen["summary"] = str(app.query_one("#plan-summary").render())
         seen["income"] = cells(app.query_one("#plan-income"), "income")
         await pilot.press("n", *"+100 bp", "enter")
         await settle(app, pilot)
@@ -175,9 +177,9 @@ def test_cash_plan_shows_periods_shortfalls_and_income(demo_book):
     drive(demo_book, script)
     pr = plan.projection
     assert seen["closing"] == [fmt.money(x) for x in pr.closing_cash]
-    first = plan.first_shortfall
-    assert first is not None and seen["status"][first] == "SHORTFALL"
-    assert "SHORTFALL" not in seen["status"][:first]
+    # the default rule matches the needs: no shortfall, and the projected book keeps the policy
+    assert plan.first_shortfall is None and "SHORTFALL" not in seen["status"]
+    assert "No shortfall over the horizon; the projected book stays within every policy limit" in seen["summary"]
     assert seen["income"] == [fmt.money(x.income) for x in plan.income_at_risk]
     assert seen["scenario"] == "+100 bp"
 
@@ -218,8 +220,9 @@ def test_curve_edit_reaches_every_view_and_reset_undoes_it(demo_book):
 
 
 def _buy(view, face="40000000"):
+    # new money: the demo's cash account (15 million) could not pay for 40 million (issue 14)
     view.fill("buy", id="NEW-CORP-1", sector="corporate", issuer="Brand New Issuer Inc", face=face,
-              maturity_date="2029-06-15", coupon_pct="4.5", rating="AA", price="100.5")
+              maturity_date="2029-06-15", coupon_pct="4.5", rating="AA", price="100.5", funded_from="new_money")
 
 
 def test_trade_ticket_shows_a_breach_before_committing_and_books_after(demo_book):
@@ -250,6 +253,34 @@ def test_trade_ticket_shows_a_breach_before_committing_and_books_after(demo_book
     assert seen["holdings_after"] == seen["holdings_before"] + 1
     assert seen["unsaved"] == {"holdings": "holdings: buy 40000000 NEW-CORP-1"}
     assert seen["booked_price"] == 100.5
+
+
+def test_trade_ticket_pays_from_the_cash_account_and_refuses_a_buy_it_cannot_pay(demo_book):
+    # issue 14: the demo's cash account DEMO-MMF-0901 holds 15,000,000; 40 million at 100.5 cannot be paid
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("t")
+        await pilot.pause()
+        view = app.query_one("#trade")
+        view.fill("buy", id="NEW-CORP-1", sector="corporate", issuer="Brand New Issuer Inc", face="40000000",
+                  maturity_date="2029-06-15", coupon_pct="4.5", rating="AA", price="100.5")
+        await pilot.press("ctrl+t")
+        await settle(app, pilot)
+        seen["risk"] = str(app.query_one("#ticket-risk").render())
+        seen["before"] = len(app.book.holdings)
+        await pilot.press("ctrl+b", "y")
+        await settle(app, pilot)
+        seen["after"] = len(app.book.holdings)
+
+    drive(demo_book, script)
+    # Hand arithmetic: accrued 30/360 from the coupon date 2026-06-15 to 2026-11-30 is 165 days,
+    # 4.5 x 165 / 360 = 2.0625 per 100; cost 40,000,000 x (100.5 + 2.0625) / 100 = 41,025,000;
+    # the account's 15,000,000 is short by 26,025,000.
+    assert "buy NEW-CORP-1 settles 2026-11-30: price 100.5000" in seen["risk"]
+    assert "accrued 825,000.00  cost 41,025,000.00" in seen["risk"]
+    assert "DEMO-MMF-0901 15,000,000.00 -> -26,025,000.00" in seen["risk"] and "short by 26,025,000.00" in seen["risk"]
+    assert seen["after"] == seen["before"]
 
 
 def test_trade_ticket_lists_every_problem_of_a_bad_ticket(demo_book):
@@ -288,17 +319,22 @@ def test_builder_accept_adds_the_proposed_holdings_and_save_writes_them(book_cop
         seen["unsaved"] = dict(app.unsaved)
 
     drive(book_copy, script)
-    assert seen["status"] == "built" and seen["shown"] == seen["trades"]
+    assert seen["status"] == "built" and [s.removesuffix(" (generic)") for s in seen["shown"]] == seen["trades"]
+    assert all(s.endswith(" (generic)") for s in seen["shown"] if s.startswith("GENERIC-"))
     assert len(seen["after"]) == seen["before"] + len(seen["trades"])
     assert seen["after"][-len(seen["trades"]):] == seen["trades"]
     assert seen["unsaved"] == {}
     reread = load_book(book_copy.folder)
     assert list(reread.holdings.id) == seen["after"]
-    assert (book_copy.folder / "holdings.csv.bak").exists()
+    from ladder.demo import demo_source
+    kept = list((book_copy.folder / "versions").glob("*/holdings.csv"))      # the previous file, kept
+    assert [k.read_bytes() for k in kept] == [(demo_source() / "holdings.csv").read_bytes()]
     # issue 9: every change made through the tool is journaled with the save
     from ladder.folder.journal import read_journal
     journal = read_journal(book_copy.folder)
-    assert [(e.action, e.holding) for e in journal] == [("buy", t) for t in seen["trades"]]
+    # the builder's buys are new money: each is a deposit into the cash account and the buy (issue 14)
+    assert [(e.action, e.holding) for e in journal if e.action == "buy"] == [("buy", t) for t in seen["trades"]]
+    assert sum(e.amount for e in journal) == pytest.approx(0.0, rel=0, abs=0.005 * len(journal))
 
 
 def test_selling_a_holding_from_the_holdings_view_checks_in_the_ticket(demo_book):

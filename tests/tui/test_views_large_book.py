@@ -1,5 +1,6 @@
-"""A generated 10,074-holding book: the app opens it, computes through the façade in workers and
-switches through every view without error while the slow cash plan may still be computing."""
+"""A generated 10,074-holding book: the app opens it, computes through the façade in a worker and, once
+the valuation, check and shock have landed, switches through every view without error while the slow
+cash plan may still be computing. The test waits for the shock's result message, never on the clock."""
 
 from __future__ import annotations
 
@@ -10,16 +11,21 @@ from conftest import SIZE
 
 def test_a_ten_thousand_holding_book_opens_and_every_view_shows(big_book):
     from ladder.tui.app import VIEWS, make_app
+    from ladder.tui.app import Computed
 
     seen = {}
 
     async def main():
         app = make_app(big_book)
-        async with app.run_test(size=SIZE) as pilot:
-            for _ in range(1200):          # the valuation, check and shock land (the plan may not yet)
-                await pilot.pause(0.1)
-                if {"valuation", "check", "shock"} <= set(app.results.values) | set(app.results.errors):
-                    break
+        shock = asyncio.Event()        # set when the shock's result reaches the app (the third task; the plan is last)
+
+        def arrived(message) -> None:
+            if isinstance(message, Computed) and message.task == "shock":
+                shock.set()
+
+        async with app.run_test(size=SIZE, message_hook=arrived) as pilot:
+            await shock.wait()
+            await pilot.pause()            # the app handles the message
             for name, key, _ in VIEWS + VIEWS[:1]:
                 await pilot.press(key)
                 await pilot.pause()

@@ -43,9 +43,9 @@ def build(demo_book):
 
 def test_build_text_states_the_gain_over_the_even_ladder(build):
     text = result_text(build)
-    gain = (build.after.expected_yield - build.naive_yield) * 1e4      # bp, by hand from the two yields
+    gain = (build.after.yield_to_worst - build.naive_yield) * 1e4      # bp, by hand from the two yields
     assert build.gain_over_naive_bp == pytest.approx(gain, rel=1e-12, abs=0.0)
-    assert (f"Built {build.after.expected_yield * 100:.3f}% against an even ladder's {build.naive_yield * 100:.3f}% "
+    assert (f"Built {build.after.yield_to_worst * 100:.3f}% against an even ladder's {build.naive_yield * 100:.3f}% "
             f"({gain:+.1f} bp)") in text
     assert "binding:" not in text and "naive" not in text
     assert binding_sentence(build.binding[0]) in text

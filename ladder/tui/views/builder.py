@@ -13,6 +13,7 @@ from textual.message import Message
 from textual.widgets import Input, Label, ProgressBar, Select, Static
 from textual.worker import get_current_worker
 
+from ladder.analysis.build import GENERIC_NOTE
 from ladder.tui import format as fmt
 from ladder.tui.frame import Column, Frame
 from ladder.tui.results import Results
@@ -29,12 +30,14 @@ LIMIT_UNITS = {"buys_pct": "% of the purchase", "pct": "% of the portfolio", "ye
                "currency": "", "face": " face"}
 
 
-def trades_frame(trades, yields=None) -> Frame:
-    """The proposed trades; ``yields`` each trade's expected yield (decimal) from the build result."""
+def trades_frame(trades, yields, generic) -> Frame:
+    """The proposed trades; ``yields`` each trade's yield to worst (decimal, ``BuildResult.trade_yields``),
+    ``generic`` marks the generic stand-ins (``BuildResult.generic_trades``)."""
     h = trades.holdings
     rating = np.where(h.rating != "", h.rating, h.short_rating).astype(object)
     yields = np.full(len(h), np.nan) if yields is None else yields
-    text = {"action": trades.action, "id": h.id, "sector": h.sector, "issuer": h.issuer, "rating": rating,
+    text = {"action": trades.action,
+            "id": np.where(generic, h.id + " (generic)", h.id), "sector": h.sector, "issuer": h.issuer, "rating": rating,
             "maturity": fmt.texts(h.maturity), "coupon": fmt.percents(h.coupon, 3), "face": fmt.numbers(h.face, 0),
             "price": fmt.numbers(h.book_price, 4), "yield": fmt.percents(yields, 3)}
     sort = dict(text)
@@ -64,7 +67,7 @@ def _summary_line(name: str, s) -> str:
     if s is None:
         return f"{name:<7} {fmt.NA_TEXT}"
     shares = "  ".join(f"{k} {v:.1f}%" for k, v in s.rung_shares if v)
-    return (f"{name:<7} value {fmt.money(s.market_value):>14}   expected yield {fmt.percent(s.expected_yield)}%   "
+    return (f"{name:<7} value {fmt.money(s.market_value):>14}   yield to worst {fmt.percent(s.yield_to_worst)}%   "
             f"eff dur {fmt.number(s.effective_duration, 3)}   WAM {fmt.number(s.wam_days, 0)} d   by rung: {shares}")
 
 
@@ -76,13 +79,16 @@ def result_text(r) -> str:
             lines.append(f"  {c.group}: {c.text} ({c.unit}) {members}")
         return "\n".join(lines)
     compliance = status_word(r.compliance_status) if r.compliance_status else fmt.NA_TEXT
+    generic = r.generic_trades
     lines = [f"BUILT: {len(r.trades)} trade(s), invested {fmt.money(r.invested)} of {fmt.money(r.cash)}   rungs "
              f"{r.rungs.spec}   policy after: {compliance}   solved in {r.seconds:.2f} s"]
     if r.naive_yield is not None and r.after is not None:
-        lines.append(f"Built {fmt.percent(r.after.expected_yield)}% against an even ladder's "
+        lines.append(f"Built {fmt.percent(r.after.yield_to_worst)}% against an even ladder's "
                      f"{fmt.percent(r.naive_yield)}% ({fmt.number(r.gain_over_naive_bp, 1, sign=True)} bp); the even "
                      f"ladder {'meets every rule' if r.naive_feasible else 'breaks a rule'}.")
     lines += [_summary_line("before", r.before), _summary_line("after", r.after)]
+    if generic.any():
+        lines.append(f"{int(generic.sum())} of the trades are {GENERIC_NOTE}")
     lines += [binding_sentence(b) for b in r.binding[:4]]
     return "\n".join(lines)
 
@@ -222,7 +228,7 @@ class BuilderView(View):
         compliance = self.query_one("#builder-compliance", FrameTable)
         self.set_class(result is not None, "-folded")      # short screens fold the form under a result
         if result is not None and result.trades is not None:
-            trades.show(trades_frame(result.trades, result.trade_yields), keep_place=False)
+            trades.show(trades_frame(result.trades, result.trade_yields, result.generic_trades), keep_place=False)
         else:
             trades.show(Frame.empty())
         check = getattr(result.compliance, "check", None) if result is not None else None

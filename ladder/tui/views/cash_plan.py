@@ -84,8 +84,11 @@ def summary_text(plan) -> str:
                  if first is not None else "no shortfall over the horizon")
     rule = r.rule.replace("_", " ") + (f" {r.tenor}" if r.tenor else "") + (f" ({r.sector})" if r.sector else "")
     rates = RATE_RULES.get(plan.options.rates, plan.options.rates)
+    crossings = (f"the projected book crosses {len(plan.crossings)} policy limit(s), first in the period ending "
+                 f"{plan.crossings[0].period_end} ({plan.crossings[0].rule})" if plan.crossings
+                 else "the projected book stays within every policy limit")
     lines = [f"Scenario {plan.scenario} ({rates})   {len(pr.periods)} {plan.options.period}s from {plan.as_of}   "
-             f"reinvest: {rule}, buffer {fmt.money(r.buffer)}", shortfall.capitalize()]
+             f"reinvest: {rule}, buffer {fmt.money(r.buffer)}", f"{shortfall.capitalize()}; {crossings}"]
     lines += [f"Note: {n}" for n in plan.notes]
     return "\n".join(lines)
 

@@ -18,8 +18,8 @@ COLUMNS = (
     Column("id", "Id"), Column("sector", "Sector", priority=2), Column("issuer", "Issuer", max_width=24, priority=3),
     Column("rating", "Rating", priority=2), Column("maturity", "Maturity"), Column("coupon", "Coupon %", True, priority=3),
     Column("face", "Face", True), Column("clean", "Clean price", True, priority=3),
-    Column("market_value", "Market value", True), Column("ytm", "Yield %", True),
-    Column("ytw", "Yield to worst %", True, priority=4), Column("book_yield", "Book yield %", True, priority=3),
+    Column("market_value", "Market value", True), Column("ytw", "Yield to worst %", True),
+    Column("ytm", "To maturity %", True, priority=4), Column("book_yield", "Book yield %", True, priority=3),
     Column("modified", "Mod dur", True, priority=4), Column("effective", "Eff dur", True, priority=2),
     Column("convexity", "Convexity", True, priority=4), Column("dv01", "DV01", True, priority=3),
     Column("spread", "Spread bp", True, priority=4), Column("unrealized", "Unrealized gain", True, priority=3),
@@ -32,7 +32,7 @@ def holdings_frame(v) -> Frame:
     """The Holdings table of a Valuation (display text only; every figure is the valuation's)."""
     h, m = v.holdings, v.measures
     rating = np.where(h.rating != "", h.rating, h.short_rating)
-    ytw = np.where(h.callable, v.yield_to_worst, np.nan)
+    ytw = v.yield_to_worst
     text = {
         "id": h.id, "sector": h.sector, "issuer": h.issuer, "rating": rating.astype(object),
         "maturity": fmt.texts(h.maturity), "coupon": fmt.percents(h.coupon, 3),
@@ -64,7 +64,7 @@ def totals_text(v, rows=None) -> str:
     t = v.totals if rows is None else v.subtotal(rows)
     count = f"{t.count:,} holdings" if rows is None else f"{t.count:,} of {v.totals.count:,} holdings (filtered)"
     return (f"{count}   face {fmt.money(t.face)}   market value {fmt.money(t.market_value)}   "
-            f"yield {fmt.percent(t.ytm)}%   book yield {fmt.percent(t.book_yield)}%   "
+            f"yield to worst {fmt.percent(t.yield_to_worst)}%   book yield {fmt.percent(t.book_yield)}%   "
             f"mod dur {fmt.number(t.modified_duration, 3)}   eff dur {fmt.number(t.effective_duration, 3)}   "
             f"DV01 {fmt.money(t.dv01)}   WAM {fmt.number(t.wam_days, 0)} days")
 

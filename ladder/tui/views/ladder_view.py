@@ -54,7 +54,7 @@ class LadderView(View):
         self.query_one("#ladder-summary", Static).update(
             f"Maturities by rung from {v.as_of} (final maturity; calls not assumed). Flags: gap = under "
             f"{GAP_SHARE:g}x an even ladder's share, crowded = over {CROWDED_SHARE:g}x, short of needs = net cash "
-            "needs above the face maturing.")
+            "needs so far above fund balances plus principal and coupons paid so far.")
         labels = [f"{r} {'/'.join(m)}" if m else r for r, m in zip(s.rungs, s.marks)]
         x = list(range(1, len(s.rungs) + 1))
 

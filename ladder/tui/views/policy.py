@@ -17,7 +17,8 @@ from ladder.tui.widgets.frame_table import FrameTable
 
 COLUMNS = (Column("rule", "Rule id", max_width=38, min_width=24), Column("status", "Status"), Column("limit", "Limit", True),
            Column("actual", "Actual", True), Column("headroom", "Headroom", True),
-           Column("holdings", "Holdings", True, priority=2), Column("text", "Rule", max_width=60, priority=3))
+           Column("holdings", "Holdings", True, priority=2), Column("testing", "Tested", priority=3),
+           Column("text", "Rule", max_width=60, priority=3))
 FINDING_COLUMNS = (Column("group", "Group", max_width=40), Column("status", "Status"), Column("limit", "Limit", True),
                    Column("actual", "Actual", True), Column("headroom", "Headroom", True),
                    Column("holdings", "Holdings behind it", max_width=90))
@@ -34,7 +35,9 @@ def rules_frame(result) -> Frame:
     status = np.array([status_word(r.status) for r in rules], dtype=object)
     cells = np.array([rule_cells(r.limit, r.actual, r.headroom, r.unit) for r in rules], dtype=object).reshape(-1, 3)
     text = {"status": status, "rule": np.array([r.rule for r in rules], dtype=object),
-            "text": np.array([r.text for r in rules], dtype=object),
+            "text": np.array([r.text + (f"; largest: {r.worst_group}" if r.per else "") for r in rules],
+                             dtype=object),
+            "testing": np.array([r.testing.replace("_", " ") for r in rules], dtype=object),
             "limit": cells[:, 0], "actual": cells[:, 1], "headroom": cells[:, 2],
             "holdings": fmt.numbers([len(r.holdings) for r in rules], 0)}
     sort = dict(text)
@@ -50,7 +53,7 @@ def findings_frame(rule) -> Frame:
     f = rule.findings
     cells = np.array([rule_cells(x.limit, x.actual, x.headroom, rule.unit) for x in f], dtype=object).reshape(-1, 3)
     text = {"status": np.array([status_word(x.status) for x in f], dtype=object),
-            "group": np.array([x.group for x in f], dtype=object),
+            "group": np.array([x.label for x in f], dtype=object),
             "limit": cells[:, 0], "actual": cells[:, 1], "headroom": cells[:, 2],
             "holdings": np.array([", ".join(x.holdings) for x in f], dtype=object)}
     sort = dict(text)
@@ -72,7 +75,8 @@ def rule_line(rule) -> str:
 def summary_text(result) -> str:
     counts = result.counts()
     parts = "   ".join(f"{status_word(s)} {counts[s]}" for s in ("breach", "review", "near", "pass"))
-    return (f"{result.policy_title}   basis {result.basis}, testing {result.testing.replace('_', ' ')}\n"
+    return (f"{result.policy_title}   basis {result.basis}, share limits tested "
+            f"{result.testing.replace('_', ' ')} unless a rule says otherwise\n"
             f"Overall: {status_word(result.status)}   rules: {parts}   checked {result.as_of}")
 
 

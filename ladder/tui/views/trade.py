@@ -24,13 +24,14 @@ from ladder.tui.widgets.frame_table import FrameTable
 
 LABELS = {"id": "Id", "sector": "Sector", "issuer": "Issuer", "kind": "Kind", "face": "Face",
           "maturity_date": "Maturity (YYYY-MM-DD)", "coupon_pct": "Coupon %", "rating": "Rating (long)",
-          "short_rating": "Rating (short)", "price": "Clean price", "yield_pct": "or yield %"}
+          "short_rating": "Rating (short)", "price": "Clean price", "yield_pct": "or yield %",
+          "settle_date": "Settles (YYYY-MM-DD)", "funded_from": "Funded from"}
 CHOICES = {"sector": SECTORS, "kind": KINDS}
 COLUMNS = (Column("rule", "Rule id", max_width=38, min_width=24), Column("after", "After"), Column("before", "Before", priority=2),
            Column("limit", "Limit", True), Column("actual_before", "Actual before", True, priority=3),
            Column("actual_after", "Actual after", True), Column("headroom", "Headroom after", True, priority=2),
            Column("new", "New breach"), Column("cause", "Caused by", max_width=30, priority=3))
-RISK = (("Market value", "market_value", 0, 1.0), ("Yield %", "ytm", 3, 100.0), ("Book yield %", "book_yield", 3, 100.0),
+RISK = (("Market value", "market_value", 0, 1.0), ("Yield to worst %", "yield_to_worst", 3, 100.0), ("Book yield %", "book_yield", 3, 100.0),
         ("Effective duration", "effective_duration", 3, 1.0), ("Modified duration", "modified_duration", 3, 1.0),
         ("Convexity", "convexity", 3, 1.0), ("DV01", "dv01", 0, 1.0), ("WAM days", "wam_days", 0, 1.0),
         ("Holdings", "count", 0, 1.0))
@@ -46,7 +47,8 @@ def changes_frame(check) -> Frame:
                             dtype=object).reshape(-1, 3)
     text = {"after": np.array([status_word(a.status) for a in after], dtype=object),
             "before": np.array([status_word(b.status) for b in before], dtype=object),
-            "rule": np.array([x.rule for x in c], dtype=object),
+            "rule": np.array([f"{x.rule} (largest: {x.after.worst_group})" if x.after.per else x.rule for x in c],
+                             dtype=object),
             "limit": cells_after[:, 0], "actual_before": cells_before[:, 1], "actual_after": cells_after[:, 1],
             "headroom": cells_after[:, 2],
             "new": np.array(["NEW BREACH" if x.new_breach else "" for x in c], dtype=object),
@@ -58,10 +60,34 @@ def changes_frame(check) -> Frame:
     return Frame(COLUMNS, text, sort, row_style=style)
 
 
+def _text(value: str) -> str:
+    from rich.markup import escape
+
+    from ladder.neutralize import safe_terminal
+
+    return escape(safe_terminal(value))
+
+
+def settlement_lines(whatif) -> list[str]:
+    """Each trade's economics as it settles through the cash account, and a shortfall if any."""
+    lines = []
+    for t in whatif.settlement.trades:
+        gain = "" if t.realized_gain != t.realized_gain else f"  realized {fmt.number(t.realized_gain, 2)}"
+        cash = ("new money" if t.cash_before != t.cash_before else
+                f"{_text(t.account)} {fmt.number(t.cash_before, 2)} -> {fmt.number(t.cash_after, 2)}")
+        lines.append(f"{t.action} {_text(t.id)} settles {t.settle_date}: price {fmt.number(t.price, 4)}  yield "
+                     f"{fmt.number(t.ytm, 3, 100.0)}%  accrued {fmt.number(t.accrued, 2)}  "
+                     f"{'cost' if t.amount < 0 else 'proceeds'} {fmt.number(abs(t.amount), 2)}{gain}  cash: {cash}")
+        if t.shortfall > 0:
+            lines.append(f"  breach cash_account: short by {fmt.number(t.shortfall, 2)}; it cannot be booked")
+    return lines
+
+
 def risk_text(whatif) -> str:
     b, a = whatif.before.totals, whatif.after.totals
     width = max(len(name) for name, *_ in RISK)
-    lines = [f"{'Risk'.ljust(width)}  {'before':>16}  {'after':>16}  {'change':>14}"]
+    lines = settlement_lines(whatif) + [""]
+    lines += [f"{'Risk'.ljust(width)}  {'before':>16}  {'after':>16}  {'change':>14}"]
     for name, attr, digits, scale in RISK:
         x, y = getattr(b, attr), getattr(a, attr)
         lines.append(f"{name.ljust(width)}  {fmt.number(x, digits, scale):>16}  {fmt.number(y, digits, scale):>16}  "
