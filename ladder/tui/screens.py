@@ -6,7 +6,7 @@ from textual.app import ComposeResult
 from textual.binding import Binding
 from textual.containers import Horizontal, Vertical
 from textual.screen import ModalScreen
-from textual.widgets import Button, DataTable, Label, Static
+from textual.widgets import Button, DataTable, Input, Label, Static
 
 from ladder import CAUTION
 from ladder.tui import format as fmt
@@ -116,14 +116,18 @@ class QuitScreen(ModalScreen[str]):
 
 
 class ConfirmScreen(ModalScreen[bool]):
-    """A yes/no question (y / n)."""
+    """A yes/no question (y / n); with ``default_no`` the No button has the focus, so Enter declines."""
 
     BINDINGS = [Binding("y", "answer(True)", "Yes", id="confirm.yes"),
                 Binding("n,escape", "answer(False)", "No", id="confirm.no")]
 
-    def __init__(self, question: str) -> None:
+    def __init__(self, question: str, default_no: bool = False) -> None:
         super().__init__(classes="question-screen")
-        self.question = question
+        self.question, self.default_no = question, default_no
+
+    def on_mount(self) -> None:
+        if self.default_no:
+            self.query_one("#no", Button).focus()
 
     def compose(self) -> ComposeResult:
         with Vertical(id="question"):
@@ -134,6 +138,37 @@ class ConfirmScreen(ModalScreen[bool]):
 
     def on_button_pressed(self, event: Button.Pressed) -> None:
         self.dismiss(event.button.id == "yes")
+
+    def action_answer(self, answer: bool) -> None:
+        self.dismiss(answer)
+
+
+BREACH_WORD = "breach"
+
+
+class BreachScreen(ModalScreen[bool]):
+    """A booking that breaks the policy: the rules in words, and the trade is booked only when the
+    user types the word ``breach`` and Enter; anything else, or Esc, declines (the default)."""
+
+    BINDINGS = [Binding("escape", "answer(False)", "No", id="breach.no")]
+
+    def __init__(self, question: str) -> None:
+        super().__init__(classes="question-screen")
+        self.question = question
+
+    def compose(self) -> ComposeResult:
+        with Vertical(id="question"):
+            yield Label(self.question, id="question-text")
+            yield Label(f"To book it anyway type {BREACH_WORD} and press Enter; Esc or anything else does not book.",
+                        classes="hint")
+            yield Input(placeholder=f"type {BREACH_WORD} to book", id="breach-word", compact=True)
+
+    def on_mount(self) -> None:
+        self.query_one("#breach-word", Input).focus()
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        event.stop()
+        self.dismiss(event.value.strip().lower() == BREACH_WORD)
 
     def action_answer(self, answer: bool) -> None:
         self.dismiss(answer)

@@ -51,7 +51,7 @@ async def shoot_all(size: tuple[int, int], suffix: str) -> None:
         app.query_one("#trade").fill("buy", id="NEW-CORP-1", sector="corporate", issuer="Brand New Issuer Inc",
                                      face="40000000", maturity_date="2029-06-15", coupon_pct="4.5", rating="AA",
                                      price="100.5")
-        await shoot("trade-ticket", "ctrl+t")
+        await shoot("trade-ticket", "ctrl+g")
         await shoot("builder", "b", "f", *"25000000", "ctrl+g", "escape")
         await pilot.press("ctrl+q")
 

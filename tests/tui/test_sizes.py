@@ -59,9 +59,9 @@ def test_every_view_shows_its_key_figures(demo_book, expected, size):
         await pilot.press("t")
         app.query_one("#trade").fill("buy", id="NEW-CORP-1", sector="corporate", issuer="Brand New Issuer Inc",
                                      face="40000000", maturity_date="2029-06-15", coupon_pct="4.5", rating="AA",
-                                     price="100.5")
-        await shoot("trade", "ctrl+t")
-        await shoot("booked", "ctrl+b", "y")
+                                     price="100.5", funded_from="new_money")
+        await shoot("trade", "ctrl+g")
+        await shoot("booked", "ctrl+b", *"breach", "enter")
 
     drive(demo_book, script, size=size)
     width, height = size

@@ -234,13 +234,19 @@ def test_trade_ticket_shows_a_breach_before_committing_and_books_after(demo_book
         view = app.query_one("#trade")
         seen["commit_greyed"] = view.check_action("commit", ())
         _buy(view)                       # 40 million of one new issuer: over the 5% issuer cap
-        await pilot.press("ctrl+t")
+        await pilot.press("ctrl+g")
         await settle(app, pilot)
         seen["status"] = str(app.query_one("#ticket-status").render())
         seen["new"] = [c.rule for c in view.whatif.check.new_breaches]
         seen["table_first"] = cells(app.query_one("#ticket-table"), "after")[0]
         seen["holdings_before"] = len(app.book.holdings)
-        await pilot.press("ctrl+b", "y")
+        await pilot.press("ctrl+b")
+        await pilot.pause()
+        seen["question"] = str(app.screen.query_one("#question-text").render())
+        await pilot.press("y", "enter")                # a yes is not enough: nothing booked
+        await settle(app, pilot)
+        seen["after_yes"] = len(app.book.holdings)
+        await pilot.press("ctrl+b", *"breach", "enter")
         await settle(app, pilot)
         seen["holdings_after"] = len(app.book.holdings)
         seen["unsaved"] = dict(app.unsaved)
@@ -250,6 +256,9 @@ def test_trade_ticket_shows_a_breach_before_committing_and_books_after(demo_book
     assert seen["commit_greyed"] is None
     assert "BREACH" in seen["status"] and "portfolio.issuer_max_pct" in seen["status"]
     assert "portfolio.issuer_max_pct" in seen["new"] and seen["table_first"] == "BREACH"
+    # the rule in words, with its limit and the actual after the trade
+    assert "portfolio.issuer_max_pct: " in seen["question"] and "limit 5.00%" in seen["question"]
+    assert seen["after_yes"] == seen["holdings_before"]
     assert seen["holdings_after"] == seen["holdings_before"] + 1
     assert seen["unsaved"] == {"holdings": "holdings: buy 40000000 NEW-CORP-1"}
     assert seen["booked_price"] == 100.5
@@ -265,9 +274,9 @@ def test_trade_ticket_pays_from_the_cash_account_and_refuses_a_buy_it_cannot_pay
         view = app.query_one("#trade")
         view.fill("buy", id="NEW-CORP-1", sector="corporate", issuer="Brand New Issuer Inc", face="40000000",
                   maturity_date="2029-06-15", coupon_pct="4.5", rating="AA", price="100.5")
-        await pilot.press("ctrl+t")
+        await pilot.press("ctrl+g")
         await settle(app, pilot)
-        seen["risk"] = str(app.query_one("#ticket-risk").render())
+        seen["risk"] = str(app.query_one("#ticket-status").render())
         seen["before"] = len(app.book.holdings)
         await pilot.press("ctrl+b", "y")
         await settle(app, pilot)
@@ -277,9 +286,9 @@ def test_trade_ticket_pays_from_the_cash_account_and_refuses_a_buy_it_cannot_pay
     # Hand arithmetic: accrued 30/360 from the coupon date 2026-06-15 to 2026-11-30 is 165 days,
     # 4.5 x 165 / 360 = 2.0625 per 100; cost 40,000,000 x (100.5 + 2.0625) / 100 = 41,025,000;
     # the account's 15,000,000 is short by 26,025,000.
-    assert "buy NEW-CORP-1 settles 2026-11-30: price 100.5000" in seen["risk"]
-    assert "accrued 825,000.00  cost 41,025,000.00" in seen["risk"]
-    assert "DEMO-MMF-0901 15,000,000.00 -> -26,025,000.00" in seen["risk"] and "short by 26,025,000.00" in seen["risk"]
+    assert "Buy 40,000,000 NEW-CORP-1, settling 2026-11-30: clean price 100.5000" in seen["risk"]
+    assert "accrued 825,000.00   cost 41,025,000.00" in seen["risk"]
+    assert "DEMO-MMF-0901 15,000,000.00 -> -26,025,000.00" in seen["risk"] and "SHORT by 26,025,000.00" in seen["risk"]
     assert seen["after"] == seen["before"]
 
 
@@ -290,14 +299,15 @@ def test_trade_ticket_lists_every_problem_of_a_bad_ticket(demo_book):
         await pilot.press("t")
         view = app.query_one("#trade")
         view.fill("sell", id="NO-SUCH-HOLDING", face="1000")
-        await pilot.press("ctrl+t")
+        await pilot.press("ctrl+g")
         await settle(app, pilot)
         seen["status"] = str(app.query_one("#ticket-status").render())
         seen["whatif"] = view.whatif
+        seen["focus"] = app.focused.id
 
     drive(demo_book, script)
-    assert "ticket.csv:2:" in seen["status"] and "NO-SUCH-HOLDING is not in the book" in seen["status"]
-    assert seen["whatif"] is None
+    assert "Id: NO-SUCH-HOLDING is not in the book" in seen["status"] and "ticket.csv" not in seen["status"]
+    assert seen["whatif"] is None and seen["focus"] == "ticket-id"
 
 
 def test_builder_accept_adds_the_proposed_holdings_and_save_writes_them(book_copy):
@@ -311,7 +321,7 @@ def test_builder_accept_adds_the_proposed_holdings_and_save_writes_them(book_cop
         seen["trades"] = list(view.result.trades.holdings.id)
         seen["shown"] = cells(app.query_one("#builder-trades"), "id")
         seen["before"] = len(app.book.holdings)
-        await pilot.press("ctrl+y", "y")
+        await pilot.press("ctrl+b", "y")
         await settle(app, pilot)
         seen["after"] = list(app.book.holdings.id)
         await pilot.press("ctrl+s")
@@ -344,7 +354,7 @@ def test_selling_a_holding_from_the_holdings_view_checks_in_the_ticket(demo_book
         await pilot.press("down", "down", "x")
         await pilot.pause()
         seen["view"] = app.query_one("#views").current
-        await pilot.press("ctrl+t")
+        await pilot.press("ctrl+g")
         await settle(app, pilot)
         w = app.query_one("#trade").whatif
         seen["trade"] = (w.trades.action[0], w.trades.holdings.id[0], float(w.trades.holdings.face[0]))
@@ -372,3 +382,51 @@ def test_rates_income_column_is_the_cash_plans_income_at_risk(demo_book):
     for row in plan.income_at_risk[1:]:
         assert seen["income"][row.scenario] == fmt.money(row.income - base, sign=True)
     assert seen["income"]["0 bp"] == "+0"
+
+
+def test_trade_ticket_leads_with_a_sales_realized_gain_against_amortized_cost(demo_book):
+    h = demo_book.holdings
+    row = int(np.flatnonzero((h.kind != "fund") & np.isfinite(h.book_price))[0])
+    seen = {}
+
+    async def script(app, pilot):
+        app.on_holdings_view_sell_wanted(type("Sell", (), {"row": row})())
+        await pilot.pause()
+        await pilot.press("ctrl+g")
+        await settle(app, pilot)
+        seen["status"] = str(app.query_one("#ticket-status").render())
+        seen["trade"] = app.query_one("#trade").whatif.settlement.trades[0]
+
+    drive(demo_book, script)
+    t = seen["trade"]
+    # Hand arithmetic (the settlement's definition): realized gain = proceeds - accrued - amortized cost.
+    assert t.realized_gain == pytest.approx(t.amount - t.accrued - t.book_value, rel=0, abs=0.01)
+    first = seen["status"].splitlines()[0]              # the trade leads the result
+    assert first.startswith(f"Sell {fmt.money(h.face[row])} {h.id[row]}, settling 2026-11-30: clean price")
+    assert f"proceeds {fmt.money(t.amount, 2)}   realized gain {fmt.money(t.realized_gain, 2, sign=True)} " \
+           f"against amortized cost {fmt.money(t.book_value, 2)}" in first
+    assert f"DEMO-MMF-0901 {fmt.money(t.cash_before, 2)} -> {fmt.money(t.cash_after, 2)}" in seen["status"]
+
+
+def test_a_failed_check_names_the_field_and_moves_the_focus_there(demo_book):
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("t")
+        view = app.query_one("#trade")
+        view.fill("buy", id="NEW-CORP-1", sector="corporate", issuer="Brand New Issuer Inc", face="1000000",
+                  maturity_date="2029-06-15", coupon_pct="four", rating="AA", price="100.5")
+        await pilot.press("ctrl+g")
+        await settle(app, pilot)
+        seen["status"] = str(app.query_one("#ticket-status").render())
+        seen["focus"] = app.focused.id
+        seen["form_shown"] = app.query_one("#ticket-form").display
+        await pilot.press("escape", "f")                  # from outside the form, f goes back to the field in error
+        await pilot.pause()
+        seen["f_focus"] = app.focused.id
+        seen["values"] = {n: app.query_one(f"#ticket-{n}").value for n in ("id", "coupon_pct", "face")}
+
+    drive(demo_book, script, size=(80, 24))
+    assert "Coupon %: " in seen["status"] and "ticket.csv" not in seen["status"]
+    assert seen["focus"] == seen["f_focus"] == "ticket-coupon_pct" and seen["form_shown"]
+    assert seen["values"] == {"id": "NEW-CORP-1", "coupon_pct": "four", "face": "1000000"}   # nothing typed

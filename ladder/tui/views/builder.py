@@ -98,9 +98,10 @@ class BuilderView(View):
     SHORT = "Build"
     NEEDS = ("valuation",)
     BINDINGS = [
-        Binding("ctrl+g", "solve", "Build", id="builder.solve", tooltip="Design the ladder for this cash"),
-        Binding("ctrl+y", "accept", "Accept", id="builder.accept",
-                tooltip="Add the proposed trades to the book (asks first; save with ctrl+s)"),
+        Binding("ctrl+g", "solve", "Build", id="builder.solve",
+                tooltip="Design the ladder for this cash (as ctrl+g checks a trade on the ticket)"),
+        Binding("ctrl+b", "accept", "Book trades", id="builder.accept",
+                tooltip="Book the proposed trades (asks first; as ctrl+b on the ticket; save with ctrl+s)"),
         Binding("f", "form", "Form", id="builder.form", tooltip="Go to the first field of the form"),
         Binding("escape", "leave_form", "Leave form", id="builder.leave", tooltip="Focus the trades table"),
     ]
@@ -213,7 +214,7 @@ class BuilderView(View):
         if message.error is not None:
             self._show(None, "The build was refused:\n" + message.error)
             return
-        self._show(message.result, "Proposed: review the trades and the policy after them; ctrl+y accepts."
+        self._show(message.result, "Proposed: review the trades and the policy after them; ctrl+b books them."
                    if message.result.status == "built" else "No ladder: see why below.")
         self.query_one("#builder-trades", FrameTable).focus()
 
@@ -241,14 +242,20 @@ class BuilderView(View):
         r = self.result
         if r is None or r.status != "built":
             return
-        from ladder.tui.screens import ConfirmScreen
+        from ladder.tui.screens import BreachScreen, ConfirmScreen
+        from ladder.tui.views.trade import breach_words
 
         def answered(yes: bool | None) -> None:
             if yes and self.result is r:
                 self.post_message(self.Accepted(r))
-                self._show(None, f"Accepted: {len(r.trades)} trade(s) added to the book. Save with ctrl+s.")
+                self._show(None, f"Booked: {len(r.trades)} trade(s) added to the book. Save with ctrl+s.")
                 self.query_one("#builder-trades", FrameTable).focus()
 
+        question = f"Book the {len(r.trades)} proposed trade(s), {fmt.money(r.invested)} invested?"
+        check = getattr(r.compliance, "check", None)
+        if check is not None and check.new_breaches:
+            self.app.push_screen(BreachScreen(f"{question}\nThey BREAK the policy:\n{breach_words(check)}"), answered)
+            return
         after = status_word(r.compliance_status) if r.compliance_status else fmt.NA_TEXT
-        self.app.push_screen(ConfirmScreen(f"Add the {len(r.trades)} proposed trade(s) to the book? Policy after "
-                                           f"them: {after}.\nThe book changes on screen; ctrl+s writes it."), answered)
+        self.app.push_screen(ConfirmScreen(f"{question} Policy after them: {after}.\nThe book changes on screen; "
+                                           "ctrl+s writes it.", default_no=True), answered)
