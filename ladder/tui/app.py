@@ -32,8 +32,10 @@ from ladder.tui.theme import THEMES
 from ladder.tui.views.base import View
 from ladder.tui.widgets.footer import KeyFooter
 from ladder.tui.views.builder import BuilderView
+from ladder.tui.views.cash import CashView
 from ladder.tui.views.cash_plan import CashPlanView
 from ladder.tui.views.curve import CurveView
+from ladder.tui.views.history import HistoryView
 from ladder.tui.views.holdings import HoldingsView
 from ladder.tui.views.ladder_view import LadderView
 from ladder.tui.views.policy import PolicyView
@@ -47,6 +49,8 @@ VIEWS: tuple[tuple[str, str, type[View]], ...] = (
     ("policy", "p", PolicyView),
     ("rates", "r", RatesView),
     ("plan", "c", CashPlanView),
+    ("cash", "a", CashView),
+    ("history", "m", HistoryView),
     ("builder", "b", BuilderView),
     ("curve", "y", CurveView),
     ("trade", "t", TradeView),
@@ -55,13 +59,17 @@ VIEWS: tuple[tuple[str, str, type[View]], ...] = (
 
 VIEW_KEYS = Binding.Group("Views", compact=True)
 WIDE = 120     # columns: below it side-by-side panes stack and the view bar uses short names
+COMPACT = 100  # columns: below it the view bar's entries are one space apart
 TALL = 30      # rows: below it charts and secondary panes fold away (g shows them)
 # Palette verbs (the command-line names): what each finds, and the view that shows it.
 VERBS = (("value", "holdings", "market value, yields, durations of every holding"),
          ("check", "policy", "every policy rule against the book"),
          ("shock", "rates", "the book under rate scenarios"),
          ("plan", "plan", "cash against needs, period by period"),
-         ("build", "builder", "a ladder designed for new cash"))
+         ("build", "builder", "a ladder designed for new cash"),
+         ("risk", "rates", "credit scenarios and spread durations beside the rate scenarios"),
+         ("cash", "cash", "the cash account's balance and statement"),
+         ("report", "history", "the month-ends ladder report recorded"))
 
 
 class Computed(Message):
@@ -86,6 +94,10 @@ class LadderApp(App[None]):
                 tooltip="Show or fold the charts and side panes (folded on screens under 30 rows)"),
         Binding("ctrl+s", "save", "Save", id="app.save",
                 tooltip="Write changes to the book (one transaction; the previous files kept as a version)"),
+        Binding("escape", "stop", "Stop", id="app.stop",
+                tooltip="Stop the running computation; the previous figures stay, dimmed (ctrl+r computes again)"),
+        Binding("ctrl+r", "recompute", "Recompute", id="app.recompute", show=False,
+                tooltip="Value the book again and refresh every view"),
         Binding("q", "quit", "Quit", id="app.quit", tooltip="Quit (asks first when there are unsaved changes)"),
     ]
 
@@ -133,11 +145,12 @@ class LadderApp(App[None]):
     def _show_bar(self) -> None:
         current = self.query_one("#views", ContentSwitcher).current
         wide = self.size.width >= WIDE
+        pad = " " if self.size.width >= COMPACT else ""      # under COMPACT columns the entries close up
         parts = []
         for name, key, cls in VIEWS:
             label = f"[b]{key}[/b] {cls.TITLE if wide else cls.SHORT}"
-            parts.append(f"[reverse] {label} [/reverse]" if name == current else f" {label} ")
-        self.query_one("#view-bar", Static).update("".join(parts))
+            parts.append(f"[reverse]{pad}{label}{pad}[/reverse]" if name == current else f"{pad}{label}{pad}")
+        self.query_one("#view-bar", Static).update(("" if pad else " ").join(parts))
         r = self.results
         book = self.book
         state = []
@@ -145,7 +158,9 @@ class LadderApp(App[None]):
             running = next(t for t in TASKS if t in r.pending)
             done = len(TASKS) - len(r.pending)
             state.append(f"computing {running} ({done + 1} of {len(TASKS)}), "
-                         f"{time.monotonic() - self.started_at:.1f} s")
+                         f"{time.monotonic() - self.started_at:.1f} s, Esc stops")
+        elif r.stopped:
+            state.append("stopped: " + ", ".join(t for t in TASKS if t in r.stopped) + " (ctrl+r computes again)")
         if r.errors:
             state.append("not available: " + ", ".join(sorted(r.errors)))
         line = [escape(safe_terminal(book.name)), f"valued {book.valuation_date}", book.currency]
@@ -169,6 +184,7 @@ class LadderApp(App[None]):
     # ---- computing -----------------------------------------------------------------------------
     def recompute(self) -> None:
         """Start every task for the current book; results of earlier books are dropped on arrival."""
+        self.options = dataclasses.replace(self.options, unsaved_journal=tuple(self.pending_journal))
         self.results = self.results.next_book(self.book).started(TASKS)
         self.started_at = time.monotonic()
         self._hand_down()
@@ -179,6 +195,7 @@ class LadderApp(App[None]):
         if self.results.pending:
             self.recompute()      # a full run is under way: start it again with the new options
             return
+        self.options = dataclasses.replace(self.options, unsaved_journal=tuple(self.pending_journal))
         self.results = self.results.started([task])
         self.started_at = time.monotonic()
         self._hand_down()
@@ -326,7 +343,19 @@ class LadderApp(App[None]):
         self.notify("The month-end report is written by the command line: ladder report BOOK_FOLDER "
                     "(html by default; --format all for every format).", title="report", timeout=10)
 
+    def action_stop(self) -> None:
+        """Esc: cancel the running figures; the task running finishes in its thread and is dropped."""
+        if self.results.pending:
+            self.workers.cancel_group(self, "figures")
+            self.results = self.results.stop()
+            self._hand_down()
+
+    def action_recompute(self) -> None:
+        self.recompute()
+
     def check_action(self, action: str, parameters) -> bool | None:
+        if action == "stop":
+            return bool(self.results.pending)
         if action == "save":
             return bool(self.unsaved) or None
         if action == "more":
@@ -368,6 +397,7 @@ class LadderApp(App[None]):
         self.original_curve = self.book.curve
         self.loaded = loaded_state(self.book)
         self.unsaved.clear()
+        self.recompute_task("cash")           # the statement's lines are saved now
         self._show_bar()
         self.refresh_bindings()
         kept = f" (previous kept as version {done.version})" if done.version else ""

@@ -11,7 +11,7 @@ from typing import Any
 
 from ladder.folder.book_file import Book
 
-TASKS = ("valuation", "check", "shock", "plan")
+TASKS = ("valuation", "check", "shock", "plan", "cash", "history")
 
 
 @dataclass(frozen=True, eq=False)
@@ -28,6 +28,7 @@ class Results:
     errors: dict[str, str] = field(default_factory=dict)     # task -> message for the screen
     pending: frozenset[str] = frozenset()
     earlier: dict[str, Any] = field(default_factory=dict)    # task -> result of the book before
+    stopped: frozenset[str] = frozenset()                     # tasks the user stopped (Esc) before they landed
 
     def get(self, task: str):
         return self.values.get(task)
@@ -59,4 +60,8 @@ class Results:
         return replace(self, values=values, errors=errors, pending=self.pending - {task})
 
     def started(self, tasks) -> "Results":
-        return replace(self, pending=self.pending | set(tasks))
+        return replace(self, pending=self.pending | set(tasks), stopped=self.stopped - set(tasks))
+
+    def stop(self) -> "Results":
+        """No longer wait for the pending tasks: each keeps showing its previous figures, dimmed."""
+        return replace(self, pending=frozenset(), stopped=self.stopped | self.pending)

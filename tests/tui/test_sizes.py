@@ -68,7 +68,7 @@ def test_every_view_shows_its_key_figures(demo_book, expected, size):
     for name, lines in screens.items():
         assert len(lines) == height and all(len(line) == width for line in lines), name
         assert sum("not investment advice" in line for line in lines) == 1, name     # the caution: one line
-        assert all(f"{key} " in lines[1] for key in "hlprcbyt"), name                # the whole view bar
+        assert all(f"{key} " in lines[1] for key in "hlprcambyt"), name              # the whole view bar
 
     v = expected["valuation"]
     text = "\n".join(screens["holdings"])
@@ -90,6 +90,11 @@ def test_every_view_shows_its_key_figures(demo_book, expected, size):
     text = "\n".join(screens["rates"])
     assert rows_starting(screens["rates"], [s.name for s in shock.scenarios]) >= MIN_ROWS
     assert all(fmt.money(x) in text for x in shock.portfolio.value[0][:MIN_ROWS])
+    flowing = " ".join(line.strip() for line in screens["rates"])        # the summary wraps on narrow screens
+    assert f"spread duration {fmt.number(shock.portfolio_spread_duration, 3)}" in flowing
+    if height >= 30:      # the spread-duration table is a secondary pane: folded on short screens
+        exposed = shock.valuation.holdings.id[shock.spread_duration != 0]
+        assert rows_starting(screens["rates"], exposed) >= 3
 
     pr = expected["plan"].projection
     ends = [str(d) for d in pr.periods.end]
@@ -112,3 +117,77 @@ def test_every_view_shows_its_key_figures(demo_book, expected, size):
     assert "BREACH" in text and "portfolio.issuer_max_pct" in text
 
     assert screens["booked"][0].startswith(" UNSAVED ")      # the badge opens the top line
+
+
+@pytest.fixture(scope="module")
+def lived_book(tmp_path_factory):
+    """A demo copy with a month of life: November's month-end recorded, rolled to 31 December
+    (coupons, maturities, dividends journaled), a withdrawal, December's month-end recorded."""
+    import contextlib
+    import io
+
+    from ladder.cli import main
+    from ladder.demo import write_demo
+    from ladder.folder.book_file import load_book
+
+    folder = write_demo(tmp_path_factory.mktemp("lived") / "book")
+    out = tmp_path_factory.mktemp("reports")
+    with contextlib.redirect_stdout(io.StringIO()):
+        assert main(["report", str(folder), "--out", str(out)]) == 0
+        assert main(["roll", str(folder), "--to", "2026-12-31"]) == 0
+        assert main(["cash", str(folder), "--withdraw", "2000000", "--memo", "payroll"]) == 0
+        assert main(["report", str(folder), "--out", str(out)]) == 0
+    return load_book(folder)
+
+
+@pytest.mark.parametrize("size", SIZES, ids=[f"{w}x{h}" for w, h in SIZES])
+def test_cash_and_history_views_show_their_key_figures(lived_book, size):
+    from ladder.analysis.cash_activity import cash_activity
+    from ladder.report.history import month_ends
+
+    screens = {}
+
+    async def script(app, pilot):
+        for name, key in [("cash", "a"), ("history", "m")]:
+            await pilot.press(key)
+            await settle(app, pilot)
+            screens[name] = screen_lines(app)
+        await pilot.press("a", "slash", *"coupons", "enter")
+        await settle(app, pilot)
+        screens["coupons"] = screen_lines(app)
+
+    drive(lived_book, script, size=size)
+    a = cash_activity(lived_book)
+    text = "\n".join(screens["cash"])
+    assert f"balance {fmt.money(a.balance, 2)}" in text
+    assert rows_starting(screens["cash"], [str(e.date) for e in a.entries]) >= 1
+    shown = sum(fmt.money(e.amount, 2, sign=True) in text for e in a.entries)
+    assert shown >= min(MIN_ROWS, len(a.entries))
+    coupons = a.rows({"coupon", "dividend"})
+    text = "\n".join(screens["coupons"])
+    assert f"{len(coupons)} of {len(a.entries)} lines" in text
+    assert "withdraw" not in text and "mature " not in text
+
+    m = month_ends(lived_book)
+    text = "\n".join(screens["history"])
+    assert len(m.as_of) == 2 and rows_starting(screens["history"], [str(d) for d in m.as_of]) == 2
+    assert all(fmt.money(x) in text for x in m.market_value)
+    assert all(fmt.percent(y) in text for y in m.market_yield)
+
+
+def test_cash_plan_compares_the_reinvestment_rules(demo_book):
+    from ladder.analysis.plan import compare_records, compare_rules
+
+    screens = {}
+
+    async def script(app, pilot):
+        await pilot.press("c", "o")
+        await settle(app, pilot)
+        screens["compare"] = screen_lines(app)
+
+    drive(demo_book, script, size=(120, 40))
+    records = compare_records(compare_rules(demo_book))
+    text = "\n".join(screens["compare"])
+    rules = {r["rule"].replace("_", " ") for r in records}
+    assert all(rule in text for rule in rules)
+    assert sum(fmt.money(r["income_24m"]) in text for r in records) >= MIN_ROWS

@@ -49,6 +49,9 @@ class View(Vertical):
         value, stale = results.latest(task)
         if task in results.errors:
             text, state = f"Not available: {results.errors[task]}", "error"
+        elif task in results.stopped:
+            text, state = ("Stopped (Esc): " + ("the dimmed figures are from before the change; " if value is not None
+                                                else "") + "ctrl+r computes again."), "stale"
         elif value is None:
             text, state = "Computing…", "computing"
         elif stale:
@@ -63,6 +66,8 @@ class View(Vertical):
         """Why ``task``'s figures are not on screen (computing, failed, unavailable), or None."""
         if task in results.errors:
             return f"Not available: {results.errors[task]}"
+        if task in results.stopped and results.get(task) is None:
+            return "Stopped (Esc): ctrl+r computes again."
         if task in results.pending or results.get(task) is None:
             return "Computing…"
         return None

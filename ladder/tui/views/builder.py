@@ -103,7 +103,8 @@ class BuilderView(View):
         Binding("ctrl+b", "accept", "Book trades", id="builder.accept",
                 tooltip="Book the proposed trades (asks first; as ctrl+b on the ticket; save with ctrl+s)"),
         Binding("f", "form", "Form", id="builder.form", tooltip="Go to the first field of the form"),
-        Binding("escape", "leave_form", "Leave form", id="builder.leave", tooltip="Focus the trades table"),
+        Binding("escape", "leave_form", "Leave form / stop", id="builder.leave",
+                tooltip="Stop a running build (the previous result stays), else leave the form for the trades table"),
     ]
 
     class Progressed(Message):
@@ -156,6 +157,8 @@ class BuilderView(View):
             self._show(None, "The book changed since this build: build again (ctrl+g).")
 
     def check_action(self, action: str, parameters) -> bool | None:
+        if action == "leave_form":    # otherwise Esc goes on to the app (stop the figures)
+            return self.has_class("-computing") or self.query_one("#builder-form").has_focus_within
         if action == "accept":
             return (self.result is not None and self.result.status == "built" and len(self.result.trades) > 0) or None
         if action == "solve":
@@ -167,7 +170,20 @@ class BuilderView(View):
         self.query_one("#builder-cash").focus()
 
     def action_leave_form(self) -> None:
+        if self.has_class("-computing"):
+            self.stop()
         self.query_one("#builder-trades", FrameTable).focus()
+
+    def stop(self) -> None:
+        """Esc during a build: drop it (the solver's thread finishes and its answer is ignored); the
+        previous result, if any, stays."""
+        self.workers.cancel_group(self, "builder")
+        self._asked += 1
+        self.set_class(False, "-computing")
+        self.query_one("#builder-progress").display = False
+        self.query_one("#builder-status", Static).update(
+            "Stopped." + (" The result below is the previous build's." if self.result is not None else "")
+            + " ctrl+g builds again.")
 
     def action_solve(self) -> None:
         if self.results is None:

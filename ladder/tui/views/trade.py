@@ -125,7 +125,8 @@ class TradeView(View):
         Binding("ctrl+b", "commit", "Book trade", id="trade.commit",
                 tooltip="Apply the checked trade to the book (asks first; as ctrl+b in the Builder; save with ctrl+s)"),
         Binding("f", "form", "Form", id="trade.form", tooltip="Go to the form (to the field in error after a failed check)"),
-        Binding("escape", "leave_form", "Leave form", id="trade.leave", tooltip="Focus the results table"),
+        Binding("escape", "leave_form", "Leave form / stop", id="trade.leave",
+                tooltip="Stop a running check, else leave the form for the results table"),
     ]
 
     class TradeBooked(Message):
@@ -226,6 +227,8 @@ class TradeView(View):
 
     # ---- checking ------------------------------------------------------------------------------
     def check_action(self, action: str, parameters) -> bool | None:
+        if action == "leave_form":    # otherwise Esc goes on to the app (stop the figures)
+            return self.has_class("-computing") or self.query_one("#ticket-form").has_focus_within
         if action == "commit":
             return self.whatif is not None or None
         if action == "check_ticket":
@@ -241,6 +244,11 @@ class TradeView(View):
             self.query_one(f"#ticket-{name}").set_class(name in fields, "-invalid")
 
     def action_leave_form(self) -> None:
+        if self.has_class("-computing"):     # drop the running check (its thread finishes, ignored)
+            self.workers.cancel_group(self, "ticket")
+            self._asked += 1
+            self.set_class(False, "-computing")
+            self.query_one("#ticket-status", Static).update("Stopped: ctrl+g checks again.")
         self.query_one("#ticket-table", FrameTable).focus()
 
     def action_check_ticket(self) -> None:
@@ -286,9 +294,9 @@ class TradeView(View):
         self._mark_wrong(set())
         new = w.check.new_breaches
         words = (f"BREACH: this trade breaks {len(new)} rule(s): " + ", ".join(c.rule for c in new)) if new else \
-            f"No new breach. Policy after the trade: {status_word(w.check.status)}"
+            "no new breach"
         status.update("\n".join(trade_lines(w)) + f"\nPolicy before: {status_word(w.check.before.status)}   "
-                      f"after: {status_word(w.check.status)}.  {words}")
+                      f"after: {status_word(w.check.status)}   {words}")
         status.set_class(bool(new) or bool(w.settlement.shortfalls), "-breach")
         self.set_class(True, "-folded")      # short screens fold the form under a result (f shows it)
         table = self.query_one("#ticket-table", FrameTable)
@@ -335,8 +343,8 @@ class TradeView(View):
 
         trade = "\n".join(trade_lines(w))
         if w.check.new_breaches:
-            self.app.push_screen(BreachScreen(f"Book the trade: {label}?\n{trade}\nIt BREAKS the policy:\n"
+            self.app.push_screen(BreachScreen(f"Book this trade?\n{trade}\nIt BREAKS the policy:\n"
                                               f"{breach_words(w.check)}"), answered)
             return
-        self.app.push_screen(ConfirmScreen(f"Book the trade: {label}?\n{trade}\nThe book changes on screen; ctrl+s "
+        self.app.push_screen(ConfirmScreen(f"Book this trade?\n{trade}\nThe book changes on screen; ctrl+s "
                                            "writes it to the holdings file.", default_no=True), answered)
