@@ -4,6 +4,8 @@ a curve edit reaches every view, and saving writes the book atomically with a ba
 
 from __future__ import annotations
 
+import asyncio
+
 import numpy as np
 import pytest
 
@@ -430,3 +432,82 @@ def test_a_failed_check_names_the_field_and_moves_the_focus_there(demo_book):
     assert "Coupon %: " in seen["status"] and "ticket.csv" not in seen["status"]
     assert seen["focus"] == seen["f_focus"] == "ticket-coupon_pct" and seen["form_shown"]
     assert seen["values"] == {"id": "NEW-CORP-1", "coupon_pct": "four", "face": "1000000"}   # nothing typed
+
+
+def test_esc_stops_the_figures_and_keeps_the_screen_then_ctrl_r_computes_again(demo_book):
+    from ladder.tui.app import make_app
+
+    seen = {}
+
+    async def main():
+        app = make_app(demo_book)
+        async with app.run_test(size=(120, 40)) as pilot:
+            await pilot.pause()
+            seen["pending"] = set(app.results.pending)
+            await pilot.press("escape")
+            await pilot.pause()
+            seen["after_esc"] = (set(app.results.pending), set(app.results.stopped))
+            seen["top"] = str(app.query_one("#book-line").render())
+            await settle(app, pilot)
+            seen["landed_after_stop"] = set(app.results.values) & seen["after_esc"][1]
+            await pilot.press("ctrl+r")
+            await settle(app, pilot)
+            seen["final"] = (set(app.results.values), set(app.results.stopped))
+
+    asyncio.run(main())
+    assert seen["pending"]                                  # it was computing when Esc came
+    pending, stopped = seen["after_esc"]
+    assert pending == set() and stopped == seen["pending"] and "stopped: " in seen["top"]
+    assert seen["landed_after_stop"] == set()               # a stopped task's answer is dropped
+    assert seen["final"] == ({"valuation", "check", "shock", "plan", "cash", "history"}, set())
+
+
+def test_esc_stops_a_build_and_keeps_the_previous_result(demo_book):
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("b", "f", *"25000000", "ctrl+g")
+        await settle(app, pilot)
+        view = app.query_one("#builder")
+        first = view.result
+        view.action_form()
+        view.action_solve()              # a second build, and Esc before it can land
+        seen["esc_active"] = view.check_action("leave_form", ())
+        view.action_leave_form()
+        await settle(app, pilot)
+        seen["same"] = view.result is first
+        seen["status"] = str(app.query_one("#builder-status").render())
+        seen["computing"] = view.has_class("-computing")
+
+    drive(demo_book, script)
+    assert seen["esc_active"] and seen["same"] and not seen["computing"]
+    assert seen["status"].startswith("Stopped. The result below is the previous build's.")
+
+
+def test_cash_view_lists_a_booked_sale_as_unsaved_until_saved(book_copy):
+    h = book_copy.holdings
+    row = int(np.flatnonzero(h.kind != "fund")[0])
+    seen = {}
+
+    async def script(app, pilot):
+        app.on_holdings_view_sell_wanted(type("Sell", (), {"row": row})())
+        await pilot.pause()
+        await pilot.press("ctrl+g")
+        await settle(app, pilot)
+        seen["trade"] = app.query_one("#trade").whatif.settlement.trades[0]
+        await pilot.press("ctrl+b", "y")
+        await settle(app, pilot)
+        await pilot.press("a")
+        await settle(app, pilot)
+        seen["before_save"] = (cells(app.query_one("#cash-table"), "action"),
+                               str(app.query_one("#cash-summary").render()))
+        await pilot.press("ctrl+s")
+        await settle(app, pilot)
+        seen["after_save"] = cells(app.query_one("#cash-table"), "action")
+
+    drive(book_copy, script)
+    t = seen["trade"]
+    actions, summary = seen["before_save"]
+    assert actions == ["sell (unsaved)"]
+    assert f"balance {fmt.money(t.cash_after, 2)}" in summary and f"in {fmt.money(t.amount, 2)}" in summary
+    assert seen["after_save"] == ["sell"]
