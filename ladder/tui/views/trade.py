@@ -197,6 +197,8 @@ class TradeView(View):
             widget = self.query_one(f"#ticket-{name}")
             widget.value = value
         self._show_fields(action)
+        self._wrong = None
+        self._mark_wrong(set())
         self._clear("Press ctrl+g to check this trade.")
 
     def _show_fields(self, action: str) -> None:
