@@ -65,11 +65,10 @@ TALL = 30      # rows: below it charts and secondary panes fold away (g shows th
 VERBS = (("value", "holdings", "market value, yields, durations of every holding"),
          ("check", "policy", "every policy rule against the book"),
          ("shock", "rates", "the book under rate scenarios"),
+         ("cash", "cash", "the cash account's balance and statement"),     # before plan: "cash" finds it first
          ("plan", "plan", "cash against needs, period by period"),
          ("build", "builder", "a ladder designed for new cash"),
-         ("risk", "rates", "credit scenarios and spread durations beside the rate scenarios"),
-         ("cash", "cash", "the cash account's balance and statement"),
-         ("report", "history", "the month-ends ladder report recorded"))
+         ("risk", "rates", "credit scenarios and spread durations beside the rate scenarios"))
 
 
 class Computed(Message):
@@ -340,6 +339,7 @@ class LadderApp(App[None]):
         self.screen.toggle_class("-more")
 
     def action_report(self) -> None:
+        self.action_show_view("history")
         self.notify("The month-end report is written by the command line: ladder report BOOK_FOLDER "
                     "(html by default; --format all for every format).", title="report", timeout=10)
 
@@ -449,8 +449,9 @@ class LadderApp(App[None]):
         for verb, view, what in VERBS:
             yield SystemCommand(f"{verb}: {what} ({titles[view]} view)", f"Open the {titles[view]} view",
                                 lambda view=view: self.action_show_view(view))
-        yield SystemCommand("report: the month-end report (a command-line command)",
-                            "Say which command writes the month-end report", self.action_report)
+        yield SystemCommand("report: the month-ends ladder report recorded (History view)",
+                            "Open the History view and say which command writes the month-end report",
+                            self.action_report)
         for name, key, cls in VIEWS:
             yield SystemCommand(f"Show {cls.TITLE}", f"Switch to the {cls.TITLE} view (key {key})",
                                 lambda name=name: self.action_show_view(name))

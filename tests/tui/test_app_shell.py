@@ -91,7 +91,8 @@ def test_every_task_of_the_demo_book_lands_without_error(demo_book):
         state["tasks"] = set(app.results.values)
 
     drive(demo_book, script)
-    assert state == {"errors": {}, "pending": set(), "tasks": {"valuation", "check", "shock", "plan"}}
+    assert state == {"errors": {}, "pending": set(),
+                     "tasks": {"valuation", "check", "shock", "plan", "cash", "history"}}
 
 
 def test_quitting_with_changes_asks_and_stay_keeps_the_app(demo_book):
@@ -162,7 +163,7 @@ def test_palette_answers_to_the_command_verbs(demo_book):
 
     async def script(app, pilot):
         commands = list(app.get_system_commands(app.screen))
-        for verb in ("value", "shock", "check", "plan", "build", "report"):
+        for verb in ("value", "shock", "check", "plan", "build", "risk", "cash", "report"):
             best = max(commands, key=lambda c: Matcher(verb).match(c.title))
             if verb == "report":
                 app.notify = lambda message, **kw: said.append(message)
@@ -171,8 +172,8 @@ def test_palette_answers_to_the_command_verbs(demo_book):
             opened[verb] = app.query_one("#views").current
 
     drive(demo_book, script)
-    assert {k: opened[k] for k in ("value", "shock", "check", "plan", "build")} == {
-        "value": "holdings", "shock": "rates", "check": "policy", "plan": "plan", "build": "builder"}
+    assert opened == {"value": "holdings", "shock": "rates", "check": "policy", "plan": "plan", "build": "builder",
+                      "risk": "rates", "cash": "cash", "report": "history"}
     assert said and "ladder report" in said[0]
 
 
@@ -198,7 +199,7 @@ def test_old_figures_stay_dimmed_while_new_ones_compute_and_the_top_line_times_i
     drive(demo_book, script)
     assert seen["rows"][1] == seen["rows"][0] == len(demo_book.holdings)
     assert seen["stale"] and "dimmed figures are from before the change" in seen["notice"]
-    assert "computing valuation (1 of 4)" in seen["top"] and " s  ·  " in seen["top"]
+    assert "computing valuation (1 of 6)" in seen["top"] and " s, Esc stops  ·  " in seen["top"]
     assert seen["inputs"] is None
 
 
