@@ -118,6 +118,20 @@ class BuildResult:
         return f"NOT PROVEN OPTIMAL: {why}; this is the best plan found{gap}"
 
     @property
+    def trade_yields(self) -> np.ndarray | None:
+        """Each trade's yield to worst (decimal; as ``LadderSummary.yield_to_worst``), in trade order."""
+        if self.trades is None or self.solution.x is None:
+            return None
+        return self.program.positions.yld[self.program.var_pos[_traded(self.program, self.solution.x)]]
+
+    @property
+    def gain_over_naive_bp(self) -> float | None:
+        """The built portfolio's yield to worst less the naive even ladder's, basis points."""
+        if self.naive_yield is None or self.after is None:
+            return None
+        return (self.after.yield_to_worst - self.naive_yield) * 1e4
+
+    @property
     def generic_trades(self) -> np.ndarray:
         """(t,) bool: which trades buy a generic candidate (a stand-in, see ``GENERIC_NOTE``)."""
         if self.trades is None:
@@ -227,9 +241,15 @@ def candidates_for(book: Book, rungs: Rungs, at: dt.date, offerings=None) -> Can
     return eligible(book.policy, with_tickets(base, book.build), rungs, at)
 
 
+def _traded(p: Program, x: np.ndarray) -> np.ndarray:
+    """Positions of the solution's variables that trade (the trades' order): a solver's round-off of a
+    cent of face or less is no trade."""
+    return np.flatnonzero(np.round(p.faces(x), 2) > 0)
+
+
 def _trades(p: Program, x: np.ndarray, at: dt.date) -> Trades:
     pos, face = p.positions, p.faces(x)
-    used = np.flatnonzero(np.round(face, 2) > 0)     # a solver's round-off of a cent or less is no trade
+    used = _traded(p, x)
     h = pos.holdings.take(p.var_pos[used])
     traded = np.round(face[used], 2)
     buy = p.var_sign[used] > 0

@@ -86,6 +86,10 @@ class Valuation:
     def __post_init__(self) -> None:
         object.__setattr__(self, "totals", _totals(self))
 
+    def subtotal(self, rows) -> Totals:
+        """Totals of the holdings at positions ``rows`` (e.g. a filtered list), by the same rules."""
+        return _totals(self, np.asarray(rows, dtype=np.int64))
+
 
 def _weighted(values, weights) -> float:
     ok = np.isfinite(values) & np.isfinite(weights)
@@ -93,17 +97,20 @@ def _weighted(values, weights) -> float:
     return float((values[ok] * weights[ok]).sum() / total) if total else float("nan")
 
 
-def _totals(v: Valuation) -> Totals:
-    mv = v.market_value
+def _totals(v: Valuation, rows: np.ndarray | None = None) -> Totals:
+    """Totals over every holding, or over the positions ``rows``."""
+    r = np.arange(len(v.holdings)) if rows is None else rows
+    mv, face, m = v.market_value[r], v.holdings.face[r], v.measures
     return Totals(
-        count=len(v.holdings), face=float(v.holdings.face.sum()), market_value=float(mv.sum()),
-        book_value=float(np.nansum(v.book_value)), cost=float(np.nansum(v.cost)),
-        unrealized_gain=float(np.nansum(v.unrealized_gain)),
-        accrued=float((v.accrued * v.holdings.face / 100).sum()),
-        yield_to_worst=_weighted(v.yield_to_worst, mv), book_yield=_weighted(v.book_yield, np.nan_to_num(v.book_value)),
-        modified_duration=_weighted(v.measures.modified, mv), effective_duration=_weighted(v.effective_duration, mv),
-        convexity=_weighted(v.measures.convexity, mv), effective_convexity=_weighted(v.effective_convexity, mv),
-        dv01=float(v.dv01.sum()), wam_days=_weighted(v.days_to_maturity, mv),
+        count=len(r), face=float(face.sum()), market_value=float(mv.sum()),
+        book_value=float(np.nansum(v.book_value[r])), cost=float(np.nansum(v.cost[r])),
+        unrealized_gain=float(np.nansum(v.unrealized_gain[r])),
+        accrued=float((v.accrued[r] * face / 100).sum()),
+        yield_to_worst=_weighted(v.yield_to_worst[r], mv),
+        book_yield=_weighted(v.book_yield[r], np.nan_to_num(v.book_value[r])),
+        modified_duration=_weighted(m.modified[r], mv), effective_duration=_weighted(v.effective_duration[r], mv),
+        convexity=_weighted(m.convexity[r], mv), effective_convexity=_weighted(v.effective_convexity[r], mv),
+        dv01=float(v.dv01[r].sum()), wam_days=_weighted(v.days_to_maturity[r], mv),
     )
 
 

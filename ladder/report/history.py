@@ -19,6 +19,8 @@ from contextlib import closing, contextmanager
 from dataclasses import dataclass
 from pathlib import Path
 
+import numpy as np
+
 from ladder.errors import FileFault
 
 HISTORY_FILE = "history.sqlite"
@@ -207,3 +209,33 @@ def rule_statuses(book_or_folder, before: dt.date) -> list[tuple[dt.date, dict[s
         dates = [key for (key,) in conn.execute("SELECT as_of FROM snapshots WHERE as_of < ? ORDER BY as_of DESC",
                                                 (before.isoformat(),)).fetchall()]
     return [(dt.date.fromisoformat(key), out.get(key, {})) for key in dates]
+
+
+@dataclass(frozen=True, eq=False)
+class MonthEnds:
+    """Every recorded month-end, oldest first: ``as_of`` dates and, aligned, the summary figures the
+    report recorded (``market_value`` with accrued, ``market_yield`` yield to worst and ``book_yield``
+    decimal, ``effective_duration`` years, ``interest_earned`` the month's income, currency), the
+    compliance status and the number of rules in breach then."""
+
+    as_of: tuple[dt.date, ...]
+    market_value: np.ndarray
+    market_yield: np.ndarray
+    book_yield: np.ndarray
+    effective_duration: np.ndarray
+    interest_earned: np.ndarray
+    compliance: tuple[str, ...]
+    breaches: np.ndarray
+
+
+def month_ends(book_or_folder) -> MonthEnds:
+    """The history's month-ends (``MonthEnds``); empty when ``ladder report`` has recorded none."""
+    snaps = _query(book_or_folder, "SELECT as_of FROM snapshots ORDER BY as_of")
+
+    def figure(name: str) -> np.ndarray:
+        return np.array([s.figures.get(name, np.nan) for s in snaps], dtype=np.float64)
+
+    return MonthEnds(tuple(s.as_of for s in snaps), figure("market_value"), figure("market_yield"),
+                     figure("book_yield"), figure("effective_duration"), figure("interest_earned"),
+                     tuple(s.compliance for s in snaps),
+                     np.array([sum(r[0] == "breach" for r in s.rules.values()) for s in snaps], dtype=np.int64))

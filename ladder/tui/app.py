@@ -9,11 +9,13 @@ from __future__ import annotations
 
 import asyncio
 import dataclasses
+import time
 
 from rich.markup import escape
 from textual import work
 from textual.app import App, ComposeResult, SystemCommand
 from textual.binding import Binding
+from textual.containers import Horizontal
 from textual.message import Message
 from textual.widgets import ContentSwitcher, Static
 from textual.worker import get_current_worker
@@ -30,8 +32,10 @@ from ladder.tui.theme import THEMES
 from ladder.tui.views.base import View
 from ladder.tui.widgets.footer import KeyFooter
 from ladder.tui.views.builder import BuilderView
+from ladder.tui.views.cash import CashView
 from ladder.tui.views.cash_plan import CashPlanView
 from ladder.tui.views.curve import CurveView
+from ladder.tui.views.history import HistoryView
 from ladder.tui.views.holdings import HoldingsView
 from ladder.tui.views.ladder_view import LadderView
 from ladder.tui.views.policy import PolicyView
@@ -45,6 +49,8 @@ VIEWS: tuple[tuple[str, str, type[View]], ...] = (
     ("policy", "p", PolicyView),
     ("rates", "r", RatesView),
     ("plan", "c", CashPlanView),
+    ("cash", "a", CashView),
+    ("history", "m", HistoryView),
     ("builder", "b", BuilderView),
     ("curve", "y", CurveView),
     ("trade", "t", TradeView),
@@ -52,6 +58,17 @@ VIEWS: tuple[tuple[str, str, type[View]], ...] = (
 
 
 VIEW_KEYS = Binding.Group("Views", compact=True)
+WIDE = 120     # columns: below it side-by-side panes stack and the view bar uses short names
+COMPACT = 100  # columns: below it the view bar's entries are one space apart
+TALL = 30      # rows: below it charts and secondary panes fold away (g shows them)
+# Palette verbs (the command-line names): what each finds, and the view that shows it.
+VERBS = (("value", "holdings", "market value, yields, durations of every holding"),
+         ("check", "policy", "every policy rule against the book"),
+         ("shock", "rates", "the book under rate scenarios"),
+         ("cash", "cash", "the cash account's balance and statement"),     # before plan: "cash" finds it first
+         ("plan", "plan", "cash against needs, period by period"),
+         ("build", "builder", "a ladder designed for new cash"),
+         ("risk", "rates", "credit scenarios and spread durations beside the rate scenarios"))
 
 
 class Computed(Message):
@@ -65,12 +82,21 @@ class Computed(Message):
 class LadderApp(App[None]):
     CSS_PATH = "ladder.tcss"
     TITLE = "ladder"
+    HORIZONTAL_BREAKPOINTS = [(0, "-narrow"), (WIDE, "-wide")]
+    VERTICAL_BREAKPOINTS = [(0, "-short"), (TALL, "-tall")]
     BINDINGS = [
         *[Binding(key, f"show_view('{name}')", cls.TITLE, id=f"view.{name}", tooltip=f"Show the {cls.TITLE} view",
                   group=VIEW_KEYS) for name, key, cls in VIEWS],
-        Binding("question_mark", "keys", "Keys", id="app.keys", tooltip="Show or hide every key of this screen"),
+        Binding("question_mark", "keys", "Keys", id="app.keys",
+                tooltip="Show or hide every key of this screen and the caution in full"),
+        Binding("g", "more", "Charts", id="app.more",
+                tooltip="Show or fold the charts and side panes (folded on screens under 30 rows)"),
         Binding("ctrl+s", "save", "Save", id="app.save",
                 tooltip="Write changes to the book (one transaction; the previous files kept as a version)"),
+        Binding("escape", "stop", "Stop", id="app.stop",
+                tooltip="Stop the running computation; the previous figures stay, dimmed (ctrl+r computes again)"),
+        Binding("ctrl+r", "recompute", "Recompute", id="app.recompute", show=False,
+                tooltip="Value the book again and refresh every view"),
         Binding("q", "quit", "Quit", id="app.quit", tooltip="Quit (asks first when there are unsaved changes)"),
     ]
 
@@ -86,16 +112,19 @@ class LadderApp(App[None]):
         self.unsaved: dict[str, str] = {}
         self.results = Results(0, book)
         self.options = tasks.Options()
+        self.started_at = time.monotonic()    # when the running computation began
 
     # ---- layout --------------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
-        yield Static(id="book-line")
+        with Horizontal(id="top-line"):
+            yield Static("UNSAVED", id="unsaved-badge")
+            yield Static(id="book-line")
         yield Static(id="view-bar")
         with ContentSwitcher(initial=VIEWS[0][0], id="views"):
             for name, _, cls in VIEWS:
                 yield cls(id=name)
         yield Static(CAUTION, id="caution", classes="caution")
-        yield KeyFooter()
+        yield KeyFooter(hidden_groups=(VIEW_KEYS.description,))
 
     def on_mount(self) -> None:
         asyncio.get_running_loop().set_default_executor(DaemonExecutor())
@@ -104,6 +133,7 @@ class LadderApp(App[None]):
         self.theme = THEMES[0].name
         self.recompute()
         self._show_bar()
+        self.set_interval(0.5, self._tick)
         self.current_view.query_one("FrameTable").focus()
 
     @property
@@ -113,30 +143,49 @@ class LadderApp(App[None]):
 
     def _show_bar(self) -> None:
         current = self.query_one("#views", ContentSwitcher).current
+        wide = self.size.width >= WIDE
+        pad = " " if self.size.width >= COMPACT else ""      # under COMPACT columns the entries close up
         parts = []
         for name, key, cls in VIEWS:
-            label = f" {cls.TITLE} ({key}) "
-            parts.append(f"[reverse] {cls.TITLE} ({key}) [/reverse]" if name == current else label)
-        self.query_one("#view-bar", Static).update("".join(parts))
+            label = f"[b]{key}[/b] {cls.TITLE if wide else cls.SHORT}"
+            parts.append(f"[reverse]{pad}{label}{pad}[/reverse]" if name == current else f"{pad}{label}{pad}")
+        self.query_one("#view-bar", Static).update(("" if pad else " ").join(parts))
         r = self.results
         book = self.book
         state = []
         if r.pending:
-            state.append("computing " + ", ".join(t for t in TASKS if t in r.pending))
+            running = next(t for t in TASKS if t in r.pending)
+            done = len(TASKS) - len(r.pending)
+            state.append(f"computing {running} ({done + 1} of {len(TASKS)}), "
+                         f"{time.monotonic() - self.started_at:.1f} s, Esc stops")
+        elif r.stopped:
+            state.append("stopped: " + ", ".join(t for t in TASKS if t in r.stopped) + " (ctrl+r computes again)")
         if r.errors:
             state.append("not available: " + ", ".join(sorted(r.errors)))
-        if self.unsaved:
-            state.append("UNSAVED: " + "; ".join(self.unsaved.values()))
-        line = f"{escape(safe_terminal(book.name))} ({escape(safe_terminal(book.folder))})  ·  valuation date {book.valuation_date}  ·  {book.currency}"
+        line = [escape(safe_terminal(book.name)), f"valued {book.valuation_date}", book.currency]
+        line += [] if state else ["figures current"]
+        changes = ["changes: " + "; ".join(self.unsaved.values()) + " (ctrl+s saves)"] if self.unsaved else []
+        folder = [escape(safe_terminal(book.folder))] if wide else []
         bar = self.query_one("#book-line", Static)
-        bar.update(line + ("  ·  " + "  ·  ".join(state) if state else "  ·  figures current"))
-        bar.set_class(bool(self.unsaved), "-unsaved")
+        bar.update("  ·  ".join(state + line + changes + folder))
+        self.query_one("#unsaved-badge").display = bool(self.unsaved)
         bar.set_class(bool(r.pending), "-computing")
+
+    def _tick(self) -> None:
+        """Keep the elapsed time of a running computation current on the top line."""
+        if self.results.pending:
+            self._show_bar()
+
+    def on_resize(self) -> None:
+        self._show_bar()
+        self.refresh_bindings()
 
     # ---- computing -----------------------------------------------------------------------------
     def recompute(self) -> None:
         """Start every task for the current book; results of earlier books are dropped on arrival."""
-        self.results = Results(self.results.generation + 1, self.book).started(TASKS)
+        self.options = dataclasses.replace(self.options, unsaved_journal=tuple(self.pending_journal))
+        self.results = self.results.next_book(self.book).started(TASKS)
+        self.started_at = time.monotonic()
         self._hand_down()
         self.compute(self.results.generation, self.book, self.options)
 
@@ -145,7 +194,9 @@ class LadderApp(App[None]):
         if self.results.pending:
             self.recompute()      # a full run is under way: start it again with the new options
             return
+        self.options = dataclasses.replace(self.options, unsaved_journal=tuple(self.pending_journal))
         self.results = self.results.started([task])
+        self.started_at = time.monotonic()
         self._hand_down()
         self.compute(self.results.generation, self.book, self.options, (task,), self.results)
 
@@ -277,16 +328,38 @@ class LadderApp(App[None]):
                 break
 
     def action_keys(self) -> None:
-        if self.screen.query("HelpPanel"):
+        showing = bool(self.screen.query("HelpPanel"))
+        if showing:
             self.action_hide_help_panel()
         else:
             self.action_show_help_panel()
+        self.query_one("#caution").set_class(not showing, "-full")
+
+    def action_more(self) -> None:
+        self.screen.toggle_class("-more")
+
+    def action_report(self) -> None:
+        self.action_show_view("history")
+        self.notify("The month-end report is written by the command line: ladder report BOOK_FOLDER "
+                    "(html by default; --format all for every format).", title="report", timeout=10)
+
+    def action_stop(self) -> None:
+        """Esc: cancel the running figures; the task running finishes in its thread and is dropped."""
+        if self.results.pending:
+            self.workers.cancel_group(self, "figures")
+            self.results = self.results.stop()
+            self._hand_down()
+
+    def action_recompute(self) -> None:
+        self.recompute()
 
     def check_action(self, action: str, parameters) -> bool | None:
+        if action == "stop":
+            return bool(self.results.pending)
         if action == "save":
             return bool(self.unsaved) or None
-        if action == "show_view" and parameters:
-            return True
+        if action == "more":
+            return self.screen.has_class("-short") or None
         return True
 
     def action_save(self) -> None:
@@ -324,6 +397,7 @@ class LadderApp(App[None]):
         self.original_curve = self.book.curve
         self.loaded = loaded_state(self.book)
         self.unsaved.clear()
+        self.recompute_task("cash")           # the statement's lines are saved now
         self._show_bar()
         self.refresh_bindings()
         kept = f" (previous kept as version {done.version})" if done.version else ""
@@ -371,6 +445,13 @@ class LadderApp(App[None]):
         self.push_screen(QuitScreen(list(self.unsaved.values())), answered)
 
     def get_system_commands(self, screen):
+        titles = {name: cls.TITLE for name, _, cls in VIEWS}
+        for verb, view, what in VERBS:
+            yield SystemCommand(f"{verb}: {what} ({titles[view]} view)", f"Open the {titles[view]} view",
+                                lambda view=view: self.action_show_view(view))
+        yield SystemCommand("report: the month-ends ladder report recorded (History view)",
+                            "Open the History view and say which command writes the month-end report",
+                            self.action_report)
         for name, key, cls in VIEWS:
             yield SystemCommand(f"Show {cls.TITLE}", f"Switch to the {cls.TITLE} view (key {key})",
                                 lambda name=name: self.action_show_view(name))

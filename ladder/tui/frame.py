@@ -18,6 +18,8 @@ class Column:
     label: str
     numeric: bool = False       # right-aligned
     max_width: int = 40
+    priority: int = 1           # 1: always shown; higher numbers drop first when the screen is narrow
+    min_width: int | None = None   # narrower than its text (cut with "…") before columns scroll
 
 
 @dataclass(frozen=True, eq=False)
@@ -26,6 +28,7 @@ class Frame:
 
     ``row_style`` (optional) names a component style per row ("" for none): e.g. ``"breach"``.
     ``search`` (optional): one lower-case text per row that a filter matches against.
+    ``fixed``: how many leading columns (the row's key) stay in place while the rest scroll sideways.
     """
 
     columns: tuple[Column, ...]
@@ -33,6 +36,7 @@ class Frame:
     sort_values: dict[str, np.ndarray]
     row_style: np.ndarray | None = None
     search: np.ndarray | None = None
+    fixed: int = 1
     widths: tuple[int, ...] = field(init=False)
 
     def __post_init__(self) -> None:

@@ -19,6 +19,7 @@ class Options:
     extra_scenarios: tuple = ()
     plan_scenario: str | None = None     # a scenario name for the cash plan (None: the base case)
     plan_bp: float | None = None         # or a parallel move, bp
+    unsaved_journal: tuple = ()          # journal lines of the pending (unsaved) trades, for the cash statement
 
 
 class Unavailable(Exception):
@@ -51,8 +52,19 @@ def plan(book, results, options: Options):
     return _facade("plan").plan_book(book, scenario=options.plan_scenario, bp=options.plan_bp)
 
 
-RUNNERS = {"valuation": valuation, "check": check, "shock": shock, "plan": plan}
-DEPENDS = {"valuation": (), "check": ("valuation",), "shock": ("valuation",), "plan": ("valuation",)}
+def cash(book, results, options: Options):
+    return _facade("cash_activity").cash_activity(book, options.unsaved_journal)
+
+
+def history(book, results, options: Options):
+    from ladder.report.history import month_ends    # the history database is the month-end report's
+
+    return month_ends(book)
+
+
+RUNNERS = {"valuation": valuation, "check": check, "shock": shock, "plan": plan, "cash": cash, "history": history}
+DEPENDS = {"valuation": (), "check": ("valuation",), "shock": ("valuation",), "plan": ("valuation",), "cash": (),
+           "history": ()}
 
 
 def describe(error: BaseException) -> str:

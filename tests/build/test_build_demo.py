@@ -110,3 +110,15 @@ def test_progress_is_reported_in_order(demo):
 def test_apply_refuses_a_fresh_or_failed_build(demo):
     with pytest.raises(InputError):
         apply_build(demo, build_ladder(demo, 25_000_000, fresh=True))
+
+
+def test_each_trade_carries_its_yield(builds):
+    # A semiannual bond bought at par yields its coupon (textbook: price = 100 exactly when the
+    # yield equals the coupon rate); the generic candidates are priced within 0.01 of par, so their
+    # yield is within 0.01 / (duration ~0.4 .. 5) per 100 of the coupon: 0.3 bp is ample.
+    r = builds["default"]
+    h, y = r.trades.holdings, r.trade_yields
+    assert len(y) == len(r.trades)
+    bonds = (h.kind == "fixed") & (np.abs(h.book_price - 100) < 0.01)
+    assert bonds.sum() >= 3
+    np.testing.assert_allclose(y[bonds], h.coupon[bonds], rtol=0.0, atol=0.3e-4)

@@ -91,7 +91,8 @@ def test_every_task_of_the_demo_book_lands_without_error(demo_book):
         state["tasks"] = set(app.results.values)
 
     drive(demo_book, script)
-    assert state == {"errors": {}, "pending": set(), "tasks": {"valuation", "check", "shock", "plan"}}
+    assert state == {"errors": {}, "pending": set(),
+                     "tasks": {"valuation", "check", "shock", "plan", "cash", "history"}}
 
 
 def test_quitting_with_changes_asks_and_stay_keeps_the_app(demo_book):
@@ -152,3 +153,67 @@ def test_reporting_commands_never_load_textual():
             "import ladder.commands.open, ladder.tui; print(any(m.startswith('textual') for m in sys.modules))")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True)
     assert out.stdout.strip() == "False"
+
+
+def test_palette_answers_to_the_command_verbs(demo_book):
+    # issue 19: typing a command's name finds the view that shows it (best fuzzy match first)
+    from textual.fuzzy import Matcher
+
+    opened, said = {}, []
+
+    async def script(app, pilot):
+        commands = list(app.get_system_commands(app.screen))
+        for verb in ("value", "shock", "check", "plan", "build", "risk", "cash", "report"):
+            best = max(commands, key=lambda c: Matcher(verb).match(c.title))
+            if verb == "report":
+                app.notify = lambda message, **kw: said.append(message)
+            best.callback()
+            await pilot.pause()
+            opened[verb] = app.query_one("#views").current
+
+    drive(demo_book, script)
+    assert opened == {"value": "holdings", "shock": "rates", "check": "policy", "plan": "plan", "build": "builder",
+                      "risk": "rates", "cash": "cash", "report": "history"}
+    assert said and "ladder report" in said[0]
+
+
+def test_old_figures_stay_dimmed_while_new_ones_compute_and_the_top_line_times_it(demo_book):
+    from ladder.tui.results import TASKS
+
+    seen = {}
+
+    async def script(app, pilot):
+        table = app.query_one("#holdings-table")
+        rows = table.row_count
+        # the state right after a change of book, before any task has landed (no worker started)
+        app.results = app.results.next_book(app.book).started(TASKS)
+        app._hand_down()
+        await pilot.pause()
+        view = app.query_one("#holdings")
+        seen["rows"] = (rows, table.row_count)
+        seen["stale"] = view.has_class("-stale")
+        seen["notice"] = str(view.query_one("Notice").render())
+        seen["top"] = str(app.query_one("#book-line").render())
+        seen["inputs"] = app.results.valuation        # never the old book's figures as an input
+
+    drive(demo_book, script)
+    assert seen["rows"][1] == seen["rows"][0] == len(demo_book.holdings)
+    assert seen["stale"] and "dimmed figures are from before the change" in seen["notice"]
+    assert "computing valuation (1 of 6)" in seen["top"] and " s, Esc stops  ·  " in seen["top"]
+    assert seen["inputs"] is None
+
+
+def test_charts_fold_on_short_screens_and_g_shows_them(demo_book):
+    seen = []
+
+    async def script(app, pilot):
+        await pilot.press("y")
+        await pilot.pause()
+        chart = app.query_one("#curve-chart")
+        seen.append(chart.display and chart.region.height > 0)
+        await pilot.press("g")
+        await pilot.pause()
+        seen.append(chart.region.height > 0)
+
+    drive(demo_book, script, size=(80, 24))
+    assert seen == [False, True]

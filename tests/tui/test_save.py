@@ -30,7 +30,7 @@ def test_save_over_a_book_changed_on_disk_is_refused_and_reload_reapplies_the_pe
         await pilot.press("t")
         await pilot.pause()
         _book_a_buy(app, pilot, "1000000")
-        await pilot.press("ctrl+t")
+        await pilot.press("ctrl+g")
         await settle(app, pilot)
         await pilot.press("ctrl+b", "y")
         await settle(app, pilot)
@@ -73,7 +73,7 @@ def test_reload_drops_a_pending_sale_of_a_holding_rolled_off_meanwhile(book_copy
     async def script(app, pilot):
         app.on_holdings_view_sell_wanted(type("Sell", (), {"row": first})())
         await pilot.pause()
-        await pilot.press("ctrl+t")
+        await pilot.press("ctrl+g")
         await settle(app, pilot)
         await pilot.press("ctrl+b", "y")
         await settle(app, pilot)

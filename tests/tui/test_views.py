@@ -4,6 +4,8 @@ a curve edit reaches every view, and saving writes the book atomically with a ba
 
 from __future__ import annotations
 
+import asyncio
+
 import numpy as np
 import pytest
 
@@ -33,7 +35,7 @@ def test_holdings_show_the_valuation_sort_and_filter(demo_book):
         seen["mv"] = cells(table, "market_value")
         seen["ytm"] = cells(table, "ytm")
         seen["totals"] = str(app.query_one("#holdings-totals").render())
-        columns = [c.key for c in table.frame.columns]
+        columns = [table.frame.columns[i].key for i in table.shown]
         await pilot.press(*["right"] * columns.index("market_value"), "s")
         await pilot.pause()
         seen["sorted_desc"] = list(table.visible_rows())
@@ -43,6 +45,7 @@ def test_holdings_show_the_valuation_sort_and_filter(demo_book):
         await pilot.press("slash", *"municipal")
         await pilot.pause()
         seen["filtered"] = cells(table, "sector")
+        seen["filtered_totals"] = str(app.query_one("#holdings-totals").render())
         await pilot.press("enter", "escape")
         await pilot.pause()
         seen["cleared"] = table.row_count
@@ -56,7 +59,10 @@ def test_holdings_show_the_valuation_sort_and_filter(demo_book):
     assert seen["sorted_desc"] == list(np.argsort(-v.market_value, kind="stable"))
     assert seen["sorted_asc"] == list(np.argsort(v.market_value, kind="stable"))
     assert seen["filtered"] and set(seen["filtered"]) == {"municipal"}
-    assert len(seen["filtered"]) == int((v.holdings.sector == "municipal").sum())
+    municipal = np.flatnonzero(v.holdings.sector == "municipal")
+    assert len(seen["filtered"]) == len(municipal)
+    assert f"{len(municipal)} of {len(v.holdings)} holdings" in seen["filtered_totals"]
+    assert f"market value {fmt.money(v.market_value[municipal].sum())}" in seen["filtered_totals"]
 
 
 def test_holding_detail_opens_with_terms_flows_chart_and_calls(demo_book):
@@ -114,9 +120,7 @@ def test_policy_lists_every_rule_and_the_holdings_behind_one(demo_book):
         table = app.query_one("#policy-table")
         seen["rules"] = cells(table, "rule")
         seen["status"] = cells(table, "status")
-        table.sort_by("status")
-        await pilot.pause()
-        seen["worst_first"] = cells(table, "rule")[0]
+        seen["rule_line"] = str(app.query_one("#policy-rule").render())
         await pilot.press("home", "enter")
         await pilot.pause()
         findings = app.query_one("#policy-findings")
@@ -124,9 +128,12 @@ def test_policy_lists_every_rule_and_the_holdings_behind_one(demo_book):
         seen["focus"] = app.focused.id
 
     drive(demo_book, script)
-    assert seen["rules"] == [r.rule for r in result.rules]
-    assert seen["status"] == [r.status.upper() if r.status in ("breach", "review") else r.status for r in result.rules]
-    assert seen["worst_first"] == flagged.rule
+    # worst first (breach, review, near, pass), the policy file's order within a status
+    order = sorted(result.rules, key=lambda r: ["breach", "review", "near", "pass"].index(r.status))
+    assert seen["rules"] == [r.rule for r in order]
+    assert seen["status"] == [r.status.upper() if r.status in ("breach", "review") else r.status for r in order]
+    assert seen["rules"][0] == flagged.rule
+    assert flagged.text in seen["rule_line"]     # the highlighted rule's full text on its own line
     assert ", ".join(flagged.findings[0].holdings) == seen["behind"][0]
     assert seen["focus"] == "policy-findings"
 
@@ -229,13 +236,19 @@ def test_trade_ticket_shows_a_breach_before_committing_and_books_after(demo_book
         view = app.query_one("#trade")
         seen["commit_greyed"] = view.check_action("commit", ())
         _buy(view)                       # 40 million of one new issuer: over the 5% issuer cap
-        await pilot.press("ctrl+t")
+        await pilot.press("ctrl+g")
         await settle(app, pilot)
         seen["status"] = str(app.query_one("#ticket-status").render())
         seen["new"] = [c.rule for c in view.whatif.check.new_breaches]
         seen["table_first"] = cells(app.query_one("#ticket-table"), "after")[0]
         seen["holdings_before"] = len(app.book.holdings)
-        await pilot.press("ctrl+b", "y")
+        await pilot.press("ctrl+b")
+        await pilot.pause()
+        seen["question"] = str(app.screen.query_one("#question-text").render())
+        await pilot.press("y", "enter")                # a yes is not enough: nothing booked
+        await settle(app, pilot)
+        seen["after_yes"] = len(app.book.holdings)
+        await pilot.press("ctrl+b", *"breach", "enter")
         await settle(app, pilot)
         seen["holdings_after"] = len(app.book.holdings)
         seen["unsaved"] = dict(app.unsaved)
@@ -245,6 +258,9 @@ def test_trade_ticket_shows_a_breach_before_committing_and_books_after(demo_book
     assert seen["commit_greyed"] is None
     assert "BREACH" in seen["status"] and "portfolio.issuer_max_pct" in seen["status"]
     assert "portfolio.issuer_max_pct" in seen["new"] and seen["table_first"] == "BREACH"
+    # the rule in words, with its limit and the actual after the trade
+    assert "portfolio.issuer_max_pct: " in seen["question"] and "limit 5.00%" in seen["question"]
+    assert seen["after_yes"] == seen["holdings_before"]
     assert seen["holdings_after"] == seen["holdings_before"] + 1
     assert seen["unsaved"] == {"holdings": "holdings: buy 40000000 NEW-CORP-1"}
     assert seen["booked_price"] == 100.5
@@ -260,9 +276,9 @@ def test_trade_ticket_pays_from_the_cash_account_and_refuses_a_buy_it_cannot_pay
         view = app.query_one("#trade")
         view.fill("buy", id="NEW-CORP-1", sector="corporate", issuer="Brand New Issuer Inc", face="40000000",
                   maturity_date="2029-06-15", coupon_pct="4.5", rating="AA", price="100.5")
-        await pilot.press("ctrl+t")
+        await pilot.press("ctrl+g")
         await settle(app, pilot)
-        seen["risk"] = str(app.query_one("#ticket-risk").render())
+        seen["risk"] = str(app.query_one("#ticket-status").render())
         seen["before"] = len(app.book.holdings)
         await pilot.press("ctrl+b", "y")
         await settle(app, pilot)
@@ -272,9 +288,9 @@ def test_trade_ticket_pays_from_the_cash_account_and_refuses_a_buy_it_cannot_pay
     # Hand arithmetic: accrued 30/360 from the coupon date 2026-06-15 to 2026-11-30 is 165 days,
     # 4.5 x 165 / 360 = 2.0625 per 100; cost 40,000,000 x (100.5 + 2.0625) / 100 = 41,025,000;
     # the account's 15,000,000 is short by 26,025,000.
-    assert "buy NEW-CORP-1 settles 2026-11-30: price 100.5000" in seen["risk"]
-    assert "accrued 825,000.00  cost 41,025,000.00" in seen["risk"]
-    assert "DEMO-MMF-0901 15,000,000.00 -> -26,025,000.00" in seen["risk"] and "short by 26,025,000.00" in seen["risk"]
+    assert "Buy 40,000,000 NEW-CORP-1, settling 2026-11-30: clean price 100.5000" in seen["risk"]
+    assert "accrued 825,000.00   cost 41,025,000.00" in seen["risk"]
+    assert "DEMO-MMF-0901 15,000,000.00 -> -26,025,000.00" in seen["risk"] and "SHORT by 26,025,000.00" in seen["risk"]
     assert seen["after"] == seen["before"]
 
 
@@ -285,14 +301,15 @@ def test_trade_ticket_lists_every_problem_of_a_bad_ticket(demo_book):
         await pilot.press("t")
         view = app.query_one("#trade")
         view.fill("sell", id="NO-SUCH-HOLDING", face="1000")
-        await pilot.press("ctrl+t")
+        await pilot.press("ctrl+g")
         await settle(app, pilot)
         seen["status"] = str(app.query_one("#ticket-status").render())
         seen["whatif"] = view.whatif
+        seen["focus"] = app.focused.id
 
     drive(demo_book, script)
-    assert "ticket.csv:2:" in seen["status"] and "NO-SUCH-HOLDING is not in the book" in seen["status"]
-    assert seen["whatif"] is None
+    assert "Id: NO-SUCH-HOLDING is not in the book" in seen["status"] and "ticket.csv" not in seen["status"]
+    assert seen["whatif"] is None and seen["focus"] == "ticket-id"
 
 
 def test_builder_accept_adds_the_proposed_holdings_and_save_writes_them(book_copy):
@@ -306,7 +323,7 @@ def test_builder_accept_adds_the_proposed_holdings_and_save_writes_them(book_cop
         seen["trades"] = list(view.result.trades.holdings.id)
         seen["shown"] = cells(app.query_one("#builder-trades"), "id")
         seen["before"] = len(app.book.holdings)
-        await pilot.press("ctrl+y", "y")
+        await pilot.press("ctrl+b", "y")
         await settle(app, pilot)
         seen["after"] = list(app.book.holdings.id)
         await pilot.press("ctrl+s")
@@ -339,7 +356,7 @@ def test_selling_a_holding_from_the_holdings_view_checks_in_the_ticket(demo_book
         await pilot.press("down", "down", "x")
         await pilot.pause()
         seen["view"] = app.query_one("#views").current
-        await pilot.press("ctrl+t")
+        await pilot.press("ctrl+g")
         await settle(app, pilot)
         w = app.query_one("#trade").whatif
         seen["trade"] = (w.trades.action[0], w.trades.holdings.id[0], float(w.trades.holdings.face[0]))
@@ -367,3 +384,130 @@ def test_rates_income_column_is_the_cash_plans_income_at_risk(demo_book):
     for row in plan.income_at_risk[1:]:
         assert seen["income"][row.scenario] == fmt.money(row.income - base, sign=True)
     assert seen["income"]["0 bp"] == "+0"
+
+
+def test_trade_ticket_leads_with_a_sales_realized_gain_against_amortized_cost(demo_book):
+    h = demo_book.holdings
+    row = int(np.flatnonzero((h.kind != "fund") & np.isfinite(h.book_price))[0])
+    seen = {}
+
+    async def script(app, pilot):
+        app.on_holdings_view_sell_wanted(type("Sell", (), {"row": row})())
+        await pilot.pause()
+        await pilot.press("ctrl+g")
+        await settle(app, pilot)
+        seen["status"] = str(app.query_one("#ticket-status").render())
+        seen["trade"] = app.query_one("#trade").whatif.settlement.trades[0]
+
+    drive(demo_book, script)
+    t = seen["trade"]
+    # Hand arithmetic (the settlement's definition): realized gain = proceeds - accrued - amortized cost.
+    assert t.realized_gain == pytest.approx(t.amount - t.accrued - t.book_value, rel=0, abs=0.01)
+    first = seen["status"].splitlines()[0]              # the trade leads the result
+    assert first.startswith(f"Sell {fmt.money(h.face[row])} {h.id[row]}, settling 2026-11-30: clean price")
+    assert f"proceeds {fmt.money(t.amount, 2)}   realized gain {fmt.money(t.realized_gain, 2, sign=True)} " \
+           f"against amortized cost {fmt.money(t.book_value, 2)}" in first
+    assert f"DEMO-MMF-0901 {fmt.money(t.cash_before, 2)} -> {fmt.money(t.cash_after, 2)}" in seen["status"]
+
+
+def test_a_failed_check_names_the_field_and_moves_the_focus_there(demo_book):
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("t")
+        view = app.query_one("#trade")
+        view.fill("buy", id="NEW-CORP-1", sector="corporate", issuer="Brand New Issuer Inc", face="1000000",
+                  maturity_date="2029-06-15", coupon_pct="four", rating="AA", price="100.5")
+        await pilot.press("ctrl+g")
+        await settle(app, pilot)
+        seen["status"] = str(app.query_one("#ticket-status").render())
+        seen["focus"] = app.focused.id
+        seen["form_shown"] = app.query_one("#ticket-form").display
+        await pilot.press("escape", "f")                  # from outside the form, f goes back to the field in error
+        await pilot.pause()
+        seen["f_focus"] = app.focused.id
+        seen["values"] = {n: app.query_one(f"#ticket-{n}").value for n in ("id", "coupon_pct", "face")}
+
+    drive(demo_book, script, size=(80, 24))
+    assert "Coupon %: " in seen["status"] and "ticket.csv" not in seen["status"]
+    assert seen["focus"] == seen["f_focus"] == "ticket-coupon_pct" and seen["form_shown"]
+    assert seen["values"] == {"id": "NEW-CORP-1", "coupon_pct": "four", "face": "1000000"}   # nothing typed
+
+
+def test_esc_stops_the_figures_and_keeps_the_screen_then_ctrl_r_computes_again(demo_book):
+    from ladder.tui.app import make_app
+
+    seen = {}
+
+    async def main():
+        app = make_app(demo_book)
+        async with app.run_test(size=(120, 40)) as pilot:
+            await pilot.pause()
+            seen["pending"] = set(app.results.pending)
+            await pilot.press("escape")
+            await pilot.pause()
+            seen["after_esc"] = (set(app.results.pending), set(app.results.stopped))
+            seen["top"] = str(app.query_one("#book-line").render())
+            await settle(app, pilot)
+            seen["landed_after_stop"] = set(app.results.values) & seen["after_esc"][1]
+            await pilot.press("ctrl+r")
+            await settle(app, pilot)
+            seen["final"] = (set(app.results.values), set(app.results.stopped))
+
+    asyncio.run(main())
+    assert seen["pending"]                                  # it was computing when Esc came
+    pending, stopped = seen["after_esc"]
+    assert pending == set() and stopped == seen["pending"] and "stopped: " in seen["top"]
+    assert seen["landed_after_stop"] == set()               # a stopped task's answer is dropped
+    assert seen["final"] == ({"valuation", "check", "shock", "plan", "cash", "history"}, set())
+
+
+def test_esc_stops_a_build_and_keeps_the_previous_result(demo_book):
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("b", "f", *"25000000", "ctrl+g")
+        await settle(app, pilot)
+        view = app.query_one("#builder")
+        first = view.result
+        view.action_form()
+        view.action_solve()              # a second build, and Esc before it can land
+        seen["esc_active"] = view.check_action("leave_form", ())
+        view.action_leave_form()
+        await settle(app, pilot)
+        seen["same"] = view.result is first
+        seen["status"] = str(app.query_one("#builder-status").render())
+        seen["computing"] = view.has_class("-computing")
+
+    drive(demo_book, script)
+    assert seen["esc_active"] and seen["same"] and not seen["computing"]
+    assert seen["status"].startswith("Stopped. The result below is the previous build's.")
+
+
+def test_cash_view_lists_a_booked_sale_as_unsaved_until_saved(book_copy):
+    h = book_copy.holdings
+    row = int(np.flatnonzero(h.kind != "fund")[0])
+    seen = {}
+
+    async def script(app, pilot):
+        app.on_holdings_view_sell_wanted(type("Sell", (), {"row": row})())
+        await pilot.pause()
+        await pilot.press("ctrl+g")
+        await settle(app, pilot)
+        seen["trade"] = app.query_one("#trade").whatif.settlement.trades[0]
+        await pilot.press("ctrl+b", "y")
+        await settle(app, pilot)
+        await pilot.press("a")
+        await settle(app, pilot)
+        seen["before_save"] = (cells(app.query_one("#cash-table"), "action"),
+                               str(app.query_one("#cash-summary").render()))
+        await pilot.press("ctrl+s")
+        await settle(app, pilot)
+        seen["after_save"] = cells(app.query_one("#cash-table"), "action")
+
+    drive(book_copy, script)
+    t = seen["trade"]
+    actions, summary = seen["before_save"]
+    assert actions == ["sell (unsaved)"]
+    assert f"balance {fmt.money(t.cash_after, 2)}" in summary and f"in {fmt.money(t.amount, 2)}" in summary
+    assert seen["after_save"] == ["sell"]

@@ -17,6 +17,7 @@ class View(Vertical):
     """
 
     TITLE = ""
+    SHORT = ""          # the view bar's name on narrow screens
     NEEDS: tuple[str, ...] = ()
     results: reactive[Results | None] = reactive(None)
 
@@ -42,10 +43,31 @@ class View(Vertical):
         self.query_one(Notice).say(text, "error" if task in results.errors else "computing")
         return text is None
 
+    def figures(self, results: Results, task: str):
+        """``task``'s result to show, or None; while it computes the previous figures stay on screen
+        dimmed (class ``-stale``) and the Notice says so, or why there are none."""
+        value, stale = results.latest(task)
+        if task in results.errors:
+            text, state = f"Not available: {results.errors[task]}", "error"
+        elif task in results.stopped:
+            text, state = ("Stopped (Esc): " + ("the dimmed figures are from before the change; " if value is not None
+                                                else "") + "ctrl+r computes again."), "stale"
+        elif value is None:
+            text, state = "Computing…", "computing"
+        elif stale:
+            text, state = "Recomputing: the dimmed figures are from before the change (time on the top line).", "stale"
+        else:
+            text, state = None, "computing"
+        self.query_one(Notice).say(text, state)
+        self.set_class(stale or task in results.errors, "-stale")
+        return value
+
     def state_text(self, results: Results, task: str) -> str | None:
         """Why ``task``'s figures are not on screen (computing, failed, unavailable), or None."""
         if task in results.errors:
             return f"Not available: {results.errors[task]}"
+        if task in results.stopped and results.get(task) is None:
+            return "Stopped (Esc): ctrl+r computes again."
         if task in results.pending or results.get(task) is None:
             return "Computing…"
         return None

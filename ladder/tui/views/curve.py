@@ -22,12 +22,12 @@ from ladder.tui import format as fmt
 from ladder.tui.frame import Column, Frame
 from ladder.tui.results import Results
 from ladder.tui.views.base import Notice, View
-from ladder.tui.widgets.chart import Chart
+from ladder.tui.widgets.chart import Chart, y_ticks
 from ladder.tui.widgets.frame_table import FrameTable
 
-COLUMNS = (Column("tenor", "Tenor"), Column("years", "Years", True), Column("par", "Par yield %", True),
-           Column("zero", "Zero % (s.a.)", True), Column("forward", "Forward % (cont.)", True),
-           Column("discount", "Discount factor", True), Column("edited", "Edited"))
+COLUMNS = (Column("tenor", "Tenor"), Column("years", "Years", True, priority=3), Column("par", "Par yield %", True),
+           Column("zero", "Zero % (s.a.)", True), Column("forward", "Forward % (cont.)", True, priority=2),
+           Column("discount", "Discount factor", True, priority=3), Column("edited", "Edited"))
 CHART_POINTS = 120
 
 
@@ -58,6 +58,7 @@ def par_curve_with(par: ParCurve, index: int, percent_text: str) -> ParCurve:
 
 class CurveView(View):
     TITLE = "Curve"
+    SHORT = "Curve"
     NEEDS = ("valuation",)
     BINDINGS = [
         Binding("enter", "edit", "Edit yield", id="curve.edit", tooltip="Type a new par yield for this tenor"),
@@ -78,7 +79,7 @@ class CurveView(View):
         yield Notice(id="curve-notice")
         with Horizontal(classes="split"):
             yield FrameTable(id="curve-table", classes="narrow")
-            yield Chart(id="curve-chart")
+            yield Chart(id="curve-chart", classes="secondary")
         yield Input(placeholder="par yield in percent, e.g. 4.25 (Enter to apply, Esc to cancel)", id="curve-input",
                     classes="filter")
 
@@ -91,27 +92,31 @@ class CurveView(View):
         return self.query_one("#curve-table", FrameTable)
 
     def refresh_view(self, results: Results) -> None:
-        v = results.valuation
+        v = self.figures(results, "valuation")
         if v is None:
-            self.show_state(results, "valuation")
             return
-        self.query_one(Notice).say("Recomputing every view…" if "valuation" in results.pending else None, "stale")
         curve = v.curve
         original = getattr(self.app, "original_curve", results.book.curve)
         self.table.show(curve_frame(curve, original))
         self.query_one("#curve-summary", Static).update(
             f"Curve of {curve.curve_date}: {len(curve.par_curve)} tenors, {curve.method.replace('_', ' ')} "
             "interpolation; zero rates semiannual, forwards continuous, ACT/365F years")
-        t_end = float(curve.instruments.maturity_times[-1])
-        t = np.linspace(t_end / CHART_POINTS, t_end, CHART_POINTS)
+        # The x axis is spaced by tenor (each quoted tenor one step), not by years: a linear 30-year
+        # axis would squeeze the first five years, where the holdings sit, into a sixth of its width.
+        tenors = curve.instruments.maturity_times
+        place = np.arange(len(tenors), dtype=np.float64)
+        x = np.linspace(0.0, place[-1], CHART_POINTS)
+        t = np.interp(x, place, tenors)
         zero, forward = curve.zero_rate(t, "semiannual") * 100, curve.instantaneous_forward(t) * 100
+        par = curve.par_curve.par_yields * 100
 
-        def paint(plt) -> None:
-            plt.plot(curve.instruments.maturity_times.tolist(), (curve.par_curve.par_yields * 100).tolist(),
-                     label="par", marker="dot")
-            plt.plot(t.tolist(), zero.tolist(), label="zero", marker="braille")
-            plt.plot(t.tolist(), forward.tolist(), label="forward", marker="braille")
-            plt.title("Par, zero and forward rates (%) by years")
+        def paint(plt, series) -> None:
+            plt.plot(place.tolist(), par.tolist(), label="par", **series.line(1))
+            plt.plot(x.tolist(), zero.tolist(), label="zero", **series.line(0))
+            plt.plot(x.tolist(), forward.tolist(), label="forward", **series.line(2))
+            plt.xticks(place.tolist(), list(curve.par_curve.tenors))
+            y_ticks(plt, float(min(par.min(), zero.min(), forward.min())), float(max(par.max(), zero.max(), forward.max())))
+            plt.title("Par, zero and forward (%) by tenor, tenors evenly spaced")
 
         self.query_one("#curve-chart", Chart).draw(paint)
 

@@ -15,14 +15,16 @@ from ladder.tui.views.base import Notice, View
 from ladder.tui.widgets.frame_table import FrameTable
 
 COLUMNS = (
-    Column("id", "Id"), Column("sector", "Sector"), Column("issuer", "Issuer", max_width=24),
-    Column("rating", "Rating"), Column("maturity", "Maturity"), Column("coupon", "Coupon %", True),
-    Column("face", "Face", True), Column("clean", "Clean", True), Column("market_value", "Market value", True),
-    Column("ytm", "To maturity %", True), Column("ytw", "Yld worst %", True), Column("book_yield", "Book yld %", True),
-    Column("modified", "Mod dur", True), Column("effective", "Eff dur", True),
-    Column("convexity", "Convexity", True), Column("dv01", "DV01", True), Column("spread", "Spread bp", True),
-    Column("unrealized", "Unrealized", True), Column("days", "Days", True), Column("call", "Call"),
-    Column("priced", "Priced from"),
+    Column("id", "Id"), Column("sector", "Sector", priority=2), Column("issuer", "Issuer", max_width=24, priority=3),
+    Column("rating", "Rating", priority=2), Column("maturity", "Maturity"), Column("coupon", "Coupon %", True, priority=3),
+    Column("face", "Face", True), Column("clean", "Clean price", True, priority=3),
+    Column("market_value", "Market value", True), Column("ytw", "Yield to worst %", True),
+    Column("ytm", "To maturity %", True, priority=4), Column("book_yield", "Book yield %", True, priority=3),
+    Column("modified", "Mod dur", True, priority=4), Column("effective", "Eff dur", True, priority=2),
+    Column("convexity", "Convexity", True, priority=4), Column("dv01", "DV01", True, priority=3),
+    Column("spread", "Spread bp", True, priority=4), Column("unrealized", "Unrealized gain", True, priority=3),
+    Column("days", "Days to maturity", True, priority=4), Column("call", "Call", priority=4),
+    Column("priced", "Priced from", priority=4),
 )
 
 
@@ -57,9 +59,11 @@ def holdings_frame(v) -> Frame:
     return Frame(COLUMNS, text, sort, search=search.astype(object))
 
 
-def totals_text(v) -> str:
-    t = v.totals
-    return (f"{t.count:,} holdings   face {fmt.money(t.face)}   market value {fmt.money(t.market_value)}   "
+def totals_text(v, rows=None) -> str:
+    """The totals line; with ``rows`` (a filtered list) the subtotal of those holdings."""
+    t = v.totals if rows is None else v.subtotal(rows)
+    count = f"{t.count:,} holdings" if rows is None else f"{t.count:,} of {v.totals.count:,} holdings (filtered)"
+    return (f"{count}   face {fmt.money(t.face)}   market value {fmt.money(t.market_value)}   "
             f"yield to worst {fmt.percent(t.yield_to_worst)}%   book yield {fmt.percent(t.book_yield)}%   "
             f"mod dur {fmt.number(t.modified_duration, 3)}   eff dur {fmt.number(t.effective_duration, 3)}   "
             f"DV01 {fmt.money(t.dv01)}   WAM {fmt.number(t.wam_days, 0)} days")
@@ -67,6 +71,7 @@ def totals_text(v) -> str:
 
 class HoldingsView(View):
     TITLE = "Holdings"
+    SHORT = "Hold"
     NEEDS = ("valuation",)
     BINDINGS = [
         Binding("slash", "filter", "Filter", id="holdings.filter", tooltip="Show only holdings matching words"),
@@ -102,18 +107,18 @@ class HoldingsView(View):
         return self.query_one("#holdings-table", FrameTable)
 
     def refresh_view(self, results: Results) -> None:
-        notice = self.query_one(Notice)
-        state = self.state_text(results, "valuation")
-        v = results.valuation
+        v = self.figures(results, "valuation")
         if v is None:
-            notice.say(state, "error" if "valuation" in results.errors else "computing")
             return
-        notice.say("Recomputing…" if "valuation" in results.pending else None, "stale")
-        self.set_class("valuation" in results.pending, "-stale")
         if self._frame_of is not v:
             self._frame_of = v
             self.table.show(holdings_frame(v))
-        self.query_one("#holdings-totals", Static).update(totals_text(v))
+        self._totals()
+
+    def _totals(self) -> None:
+        if self._frame_of is not None:
+            rows = self.table.visible_rows() if self.table.filter_text else None
+            self.query_one("#holdings-totals", Static).update(totals_text(self._frame_of, rows))
 
     def check_action(self, action: str, parameters) -> bool | None:
         if action in ("detail", "sell"):
@@ -133,11 +138,13 @@ class HoldingsView(View):
         box.value = ""
         box.display = False
         self.table.set_filter("")
+        self._totals()
         self.table.focus()
 
     def on_input_changed(self, event: Input.Changed) -> None:
         if event.input.id == "holdings-filter":
             self.table.set_filter(event.value)
+            self._totals()
 
     def on_input_submitted(self, event: Input.Submitted) -> None:
         if event.input.id == "holdings-filter":

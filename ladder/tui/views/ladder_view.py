@@ -12,12 +12,13 @@ from ladder.tui.frame import Column, Frame
 from ladder.tui.results import Results
 from ladder.analysis.rung_summary import CROWDED_SHARE, GAP_SHARE, RungSummary, rung_summary
 from ladder.tui.views.base import Notice, View
-from ladder.tui.widgets.chart import Chart
+from ladder.tui.widgets.chart import Chart, y_ticks
 from ladder.tui.widgets.frame_table import FrameTable
 
-COLUMNS = (Column("rung", "Rung"), Column("count", "Holdings", True), Column("face", "Face maturing", True),
-           Column("mv", "Market value", True), Column("share", "Share %", True), Column("even", "Even %", True),
-           Column("needs", "Net cash needs", True), Column("marks", "Marks", max_width=36))
+COLUMNS = (Column("rung", "Rung"), Column("count", "Holdings", True, priority=3),
+           Column("face", "Face maturing", True), Column("mv", "Market value", True, priority=2),
+           Column("share", "Share %", True), Column("even", "Even ladder %", True, priority=2),
+           Column("needs", "Net cash needs", True), Column("marks", "Gap, crowded or short", max_width=36))
 SCALE = 1e6
 
 
@@ -35,34 +36,35 @@ def rung_frame(s: RungSummary) -> Frame:
 
 class LadderView(View):
     TITLE = "Ladder"
+    SHORT = "Ladder"
     NEEDS = ("valuation",)
 
     def compose(self) -> ComposeResult:
         yield Static(id="ladder-summary", classes="totals")
         yield Notice(id="ladder-notice")
-        yield Chart(id="ladder-chart")
-        yield FrameTable(id="ladder-table", classes="short-table")
+        yield FrameTable(id="ladder-table")
+        yield Chart(id="ladder-chart", classes="secondary")
 
     def refresh_view(self, results: Results) -> None:
-        v = results.valuation
+        v = self.figures(results, "valuation")
         if v is None:
-            self.show_state(results, "valuation")
             return
-        self.query_one(Notice).say("Recomputing…" if "valuation" in results.pending else None, "stale")
         s = rung_summary(v, results.book.cash_needs)
         self.query_one("#ladder-table", FrameTable).show(rung_frame(s))
         self.query_one("#ladder-summary", Static).update(
-            f"Maturities by rung from {v.as_of} (final maturity; calls not assumed). Marks: gap = under "
+            f"Maturities by rung from {v.as_of} (final maturity; calls not assumed). Flags: gap = under "
             f"{GAP_SHARE:g}x an even ladder's share, crowded = over {CROWDED_SHARE:g}x, short of needs = net cash "
             "needs so far above fund balances plus principal and coupons paid so far.")
         labels = [f"{r} {'/'.join(m)}" if m else r for r, m in zip(s.rungs, s.marks)]
         x = list(range(1, len(s.rungs) + 1))
 
-        def paint(plt) -> None:
+        def paint(plt, series) -> None:
             plt.multiple_bar(x, [(s.face / SCALE).tolist(), (s.market_value / SCALE).tolist()],
-                             labels=["face maturing", "market value"])
-            plt.plot(x, (np.maximum(s.needs, 0) / SCALE).tolist(), label="net cash needs", marker="braille")
+                             labels=["face maturing", "market value"], color=[series.colour(0), series.colour(1)],
+                             marker=[series.bar(0)["marker"], series.bar(1)["marker"]])
+            plt.plot(x, (np.maximum(s.needs, 0) / SCALE).tolist(), label="net cash needs", **series.line(2))
             plt.xticks(x, labels)
+            y_ticks(plt, 0.0, float(max(s.face.max(), s.market_value.max(), s.needs.max())) / SCALE)
             plt.title(f"By rung, millions of {results.book.currency}")
 
         self.query_one("#ladder-chart", Chart).draw(paint)

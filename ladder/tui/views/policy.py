@@ -10,15 +10,16 @@ from textual.widgets import Static
 
 from ladder.tui import format as fmt
 from ladder.tui.frame import Column, Frame
-from ladder.tui.policy_text import headroom_text, value_text
+from ladder.tui.policy_text import nothing_to_show, rule_cells
 from ladder.tui.results import Results
 from ladder.tui.views.base import Notice, View
 from ladder.tui.widgets.frame_table import FrameTable
 
-COLUMNS = (Column("status", "Status"), Column("rule", "Rule id", max_width=38), Column("text", "Rule", max_width=56),
-           Column("limit", "Limit", True), Column("actual", "Actual", True), Column("headroom", "Headroom", True),
-           Column("testing", "Tested"), Column("holdings", "Holdings", True))
-FINDING_COLUMNS = (Column("status", "Status"), Column("group", "Group", max_width=40), Column("limit", "Limit", True),
+COLUMNS = (Column("rule", "Rule id", max_width=38, min_width=24), Column("status", "Status"), Column("limit", "Limit", True),
+           Column("actual", "Actual", True), Column("headroom", "Headroom", True),
+           Column("holdings", "Holdings", True, priority=2), Column("testing", "Tested", priority=3),
+           Column("text", "Rule", max_width=60, priority=3))
+FINDING_COLUMNS = (Column("group", "Group", max_width=40), Column("status", "Status"), Column("limit", "Limit", True),
                    Column("actual", "Actual", True), Column("headroom", "Headroom", True),
                    Column("holdings", "Holdings behind it", max_width=90))
 STATUS_ORDER = {"breach": 0, "review": 1, "near": 2, "pass": 3}
@@ -32,13 +33,12 @@ def status_word(status: str) -> str:
 def rules_frame(result) -> Frame:
     rules = result.rules
     status = np.array([status_word(r.status) for r in rules], dtype=object)
+    cells = np.array([rule_cells(r.limit, r.actual, r.headroom, r.unit) for r in rules], dtype=object).reshape(-1, 3)
     text = {"status": status, "rule": np.array([r.rule for r in rules], dtype=object),
             "text": np.array([r.text + (f"; largest: {r.worst_group}" if r.per else "") for r in rules],
                              dtype=object),
             "testing": np.array([r.testing.replace("_", " ") for r in rules], dtype=object),
-            "limit": np.array([value_text(r.limit, r.unit) for r in rules], dtype=object),
-            "actual": np.array([value_text(r.actual, r.unit) for r in rules], dtype=object),
-            "headroom": np.array([headroom_text(r.headroom, r.unit) for r in rules], dtype=object),
+            "limit": cells[:, 0], "actual": cells[:, 1], "headroom": cells[:, 2],
             "holdings": fmt.numbers([len(r.holdings) for r in rules], 0)}
     sort = dict(text)
     sort["status"] = np.array([STATUS_ORDER[r.status] for r in rules], dtype=np.float64)
@@ -51,15 +51,25 @@ def rules_frame(result) -> Frame:
 
 def findings_frame(rule) -> Frame:
     f = rule.findings
+    cells = np.array([rule_cells(x.limit, x.actual, x.headroom, rule.unit) for x in f], dtype=object).reshape(-1, 3)
     text = {"status": np.array([status_word(x.status) for x in f], dtype=object),
             "group": np.array([x.label for x in f], dtype=object),
-            "limit": np.array([value_text(x.limit, rule.unit) for x in f], dtype=object),
-            "actual": np.array([value_text(x.actual, rule.unit) for x in f], dtype=object),
-            "headroom": np.array([headroom_text(x.headroom, rule.unit) for x in f], dtype=object),
+            "limit": cells[:, 0], "actual": cells[:, 1], "headroom": cells[:, 2],
             "holdings": np.array([", ".join(x.holdings) for x in f], dtype=object)}
     sort = dict(text)
     sort["status"] = np.array([STATUS_ORDER[x.status] for x in f], dtype=np.float64)
     return Frame(FINDING_COLUMNS, text, sort, row_style=np.array([ROW_STYLE[x.status] for x in f], dtype=object))
+
+
+def rule_line(rule) -> str:
+    """The highlighted rule in full, with what lies behind it."""
+    if nothing_to_show(rule.limit, rule.actual):
+        behind = "nothing to show: no holding falls under it"
+    elif rule.findings:
+        behind = f"{len(rule.findings)} group(s) and {len(rule.holdings)} holding(s) near or over the limit (Enter)"
+    else:
+        behind = "nothing near its limit"
+    return f"{rule.rule} ({status_word(rule.status)}): {rule.text}. {behind[0].upper()}{behind[1:]}."
 
 
 def summary_text(result) -> str:
@@ -72,6 +82,7 @@ def summary_text(result) -> str:
 
 class PolicyView(View):
     TITLE = "Policy"
+    SHORT = "Policy"
     NEEDS = ("check",)
     BINDINGS = [Binding("enter", "behind", "Holdings behind", id="policy.behind",
                         tooltip="List the groups and holdings behind the highlighted rule")]
@@ -80,23 +91,22 @@ class PolicyView(View):
         yield Static(id="policy-summary", classes="totals")
         yield Notice(id="policy-notice")
         yield FrameTable(id="policy-table")
-        yield Static(id="policy-behind-title", classes="title")
-        yield FrameTable(id="policy-findings", classes="short-table")
+        yield Static(id="policy-rule", classes="totals")
+        yield Static(id="policy-behind-title", classes="title secondary")
+        yield FrameTable(id="policy-findings", classes="short-table secondary")
 
     def on_mount(self) -> None:
         self._result = None
+        self.table.sort_by("status")      # worst first; the policy file's order within a status
 
     @property
     def table(self) -> FrameTable:
         return self.query_one("#policy-table", FrameTable)
 
     def refresh_view(self, results: Results) -> None:
-        notice = self.query_one(Notice)
-        r = results.get("check")
+        r = self.figures(results, "check")
         if r is None:
-            notice.say(self.state_text(results, "check"), "error" if "check" in results.errors else "computing")
             return
-        notice.say("Recomputing…" if "check" in results.pending else None, "stale")
         self._result = r.result
         summary = self.query_one("#policy-summary", Static)
         summary.update(summary_text(r.result))
@@ -109,12 +119,13 @@ class PolicyView(View):
         if self._result is None or row is None:
             return
         rule = self._result.rules[row]
+        self.query_one("#policy-rule", Static).update(rule_line(rule))
         title = self.query_one("#policy-behind-title", Static)
         if rule.findings:
             title.update(f"Behind {rule.rule} ({status_word(rule.status)}): {len(rule.findings)} group(s), "
                          f"{len(rule.holdings)} holding(s)")
         else:
-            title.update(f"{rule.rule}: {status_word(rule.status)}, nothing near its limit")
+            title.update(f"Behind {rule.rule}: nothing near its limit")
         self.query_one("#policy-findings", FrameTable).show(findings_frame(rule), keep_place=False)
 
     def on_frame_table_row_highlighted(self, event: FrameTable.RowHighlighted) -> None:
@@ -127,6 +138,7 @@ class PolicyView(View):
         return True
 
     def action_behind(self) -> None:
+        self.screen.add_class("-more")     # on a short screen the findings pane is folded: show it
         self._behind()
         findings = self.query_one("#policy-findings", FrameTable)
         (self.table if findings.has_focus else findings).focus()

@@ -22,16 +22,21 @@ from ladder.tui import format as fmt
 from ladder.tui.frame import Column, Frame
 from ladder.tui.results import Results
 from ladder.tui.views.base import Notice, View
-from ladder.tui.widgets.chart import Chart
+from ladder.tui.widgets.chart import Chart, y_ticks
 from ladder.tui.widgets.frame_table import FrameTable
 
 COLUMNS = (
-    Column("name", "Scenario", max_width=30), Column("kind", "Kind"), Column("value", "Value", True),
-    Column("change", "Change", True), Column("change_pct", "Change %", True),
-    Column("est_d", "Est. duration", True), Column("err_d", "Error", True),
-    Column("est_dc", "Est. dur+convexity", True), Column("err_dc", "Error", True),
-    Column("income", "Income 12m chg", True),
+    Column("name", "Scenario", max_width=30), Column("kind", "Kind", priority=3), Column("value", "Value", True),
+    Column("change", "Change", True), Column("change_pct", "Change %", True, priority=2),
+    Column("est_d", "Est. by duration", True, priority=3), Column("err_d", "Its error", True, priority=3),
+    Column("est_dc", "Est. dur+convexity", True, priority=4), Column("err_dc", "Its error", True, priority=2),
+    Column("income", "Income chg 12m", True, priority=2), Column("spread", "Spread bp", True, priority=2),
 )
+SPREAD_COLUMNS = (Column("id", "Holding", max_width=30), Column("sector", "Sector", priority=2),
+                  Column("bucket", "Rating", priority=3), Column("spread_bp", "Spread bp", True),
+                  Column("spread_duration", "Spread dur", True), Column("spread_convexity", "Spread conv", True,
+                                                                         priority=3),
+                  Column("base_value", "Value", True, priority=2))
 SCENARIO_HELP = ("+75 (parallel bp) · steepener 50 · flattener 50 · twist -25/+25 [pivot 2Y] · short +50 · "
                  "long -50")
 
@@ -72,6 +77,8 @@ def income_changes(r, plan) -> np.ndarray:
 def scenario_frame(r, plan=None) -> Frame:
     t = r.portfolio
     income = income_changes(r, plan)
+    moves = np.array([bool(x.spread_moves) for x in r.scenarios], dtype=bool)
+    spread_bp = np.where(moves, r.equivalent_spread_shift * 1e4, np.nan)
     text = {
         "name": np.array([x.name for x in r.scenarios], dtype=object),
         "kind": np.array([x.kind.replace("_", " ") for x in r.scenarios], dtype=object),
@@ -81,11 +88,30 @@ def scenario_frame(r, plan=None) -> Frame:
         "est_dc": fmt.numbers(t.est_duration_convexity[0], 0),
         "err_dc": fmt.numbers(t.error_duration_convexity[0], 0, sign=True),
         "income": fmt.numbers(income, 0, sign=True),
+        "spread": np.where(moves, fmt.numbers(spread_bp, 0, sign=True), "").astype(object),
     }
     sort = {"name": text["name"], "kind": text["kind"], "value": t.value[0], "change": t.change[0],
             "change_pct": t.relative_change[0], "est_d": t.est_duration[0], "err_d": t.error_duration[0],
-            "est_dc": t.est_duration_convexity[0], "err_dc": t.error_duration_convexity[0], "income": income}
+            "est_dc": t.est_duration_convexity[0], "err_dc": t.error_duration_convexity[0], "income": income,
+            "spread": spread_bp}
     return Frame(COLUMNS, text, sort, search=np.char.lower(text["name"].astype(str)).astype(object))
+
+
+def spread_frame(r) -> Frame:
+    """Spread duration by holding (``spread_duration_records``: holdings with spread exposure)."""
+    from ladder.analysis.shock import spread_duration_records
+
+    records = spread_duration_records(r)
+    text, sort = {}, {}
+    for c in SPREAD_COLUMNS:
+        values = [x[c.key] for x in records]
+        if c.numeric:
+            numbers = np.array([np.nan if v is None else v for v in values], dtype=np.float64)
+            digits = {"spread_bp": 1, "base_value": 0}.get(c.key, 3)
+            text[c.key], sort[c.key] = fmt.numbers(numbers, digits), numbers
+        else:
+            text[c.key] = sort[c.key] = fmt.texts(np.array(values, dtype=object))
+    return Frame(SPREAD_COLUMNS, text, sort)
 
 
 def scenario_text(r, s: int) -> str:
@@ -101,6 +127,7 @@ def scenario_text(r, s: int) -> str:
 
 class RatesView(View):
     TITLE = "Rates"
+    SHORT = "Rates"
     NEEDS = ("shock",)
     BINDINGS = [
         Binding("e", "edit", "Add scenario", id="rates.add", tooltip="Run a scenario of your own: " + SCENARIO_HELP),
@@ -117,10 +144,14 @@ class RatesView(View):
         yield Notice(id="rates-notice")
         with Horizontal(classes="split"):
             yield FrameTable(id="rates-table", classes="narrow")
-            with Vertical(classes="charts"):
+            with Vertical(classes="charts secondary"):
                 yield Chart(id="rates-value-chart")
                 yield Chart(id="rates-krd-chart")
-        yield Static(id="rates-picked", classes="totals")
+        yield Static(id="rates-picked", classes="totals secondary")
+        yield Static("Spread duration by holding (own spread moved +/- 1 bp, the curve held). Credit scenarios "
+                     "widen spreads with the curve held; their Spread bp is the move weighted by spread exposure.",
+                     classes="title secondary")
+        yield FrameTable(id="rates-spreads", classes="secondary")
         yield Input(placeholder=SCENARIO_HELP, id="rates-input", classes="filter")
 
     def on_mount(self) -> None:
@@ -132,13 +163,10 @@ class RatesView(View):
         return self.query_one("#rates-table", FrameTable)
 
     def refresh_view(self, results: Results) -> None:
-        notice = self.query_one(Notice)
-        r = results.get("shock")
+        r = self.figures(results, "shock")
         if r is None:
-            notice.say(self.state_text(results, "shock"), "error" if "shock" in results.errors else "computing")
             return
-        notice.say("Recomputing…" if "shock" in results.pending else None, "stale")
-        plan = results.get("plan")
+        plan, _ = results.latest("plan")
         if (r, plan) == (self._result, self._plan):
             return
         self._result, self._plan = r, plan
@@ -147,7 +175,10 @@ class RatesView(View):
         self.query_one("#rates-summary", Static).update(
             f"Base value {fmt.money(r.base_value)}   effective duration {fmt.number(r.effective_duration, 3)}   "
             f"effective convexity {fmt.number(r.effective_convexity, 3)}   key-rate durations sum "
-            f"{fmt.number(krd.sum(), 3)}   {len(r.scenarios)} scenarios   errors = estimate - exact")
+            f"{fmt.number(krd.sum(), 3)}   spread duration {fmt.number(r.portfolio_spread_duration, 3)}   "
+            f"spread convexity {fmt.number(r.portfolio_spread_convexity, 3)}   {len(r.scenarios)} scenarios   "
+            "errors = estimate - exact")
+        self.query_one("#rates-spreads", FrameTable).show(spread_frame(r))
         self._charts(r)
         self._pick()
 
@@ -157,18 +188,21 @@ class RatesView(View):
         rows = rows[np.argsort(bp[rows])]
         t = r.portfolio
 
-        def value_chart(plt) -> None:
+        def value_chart(plt, series) -> None:
             if len(rows):
                 x = bp[rows].tolist()
                 scale = 1e6
-                plt.plot(x, (t.value[0, rows] / scale).tolist(), label="exact", marker="braille")
-                plt.plot(x, (t.est_duration[0, rows] / scale).tolist(), label="duration", marker="braille")
-                plt.plot(x, (t.est_duration_convexity[0, rows] / scale).tolist(), label="duration + convexity",
-                         marker="braille")
-            plt.title("Portfolio value (millions) against parallel shift (bp)")
+                lines = [t.value[0, rows] / scale, t.est_duration[0, rows] / scale,
+                         t.est_duration_convexity[0, rows] / scale]
+                for i, (y, label) in enumerate(zip(lines, ("exact", "duration", "duration + convexity"))):
+                    plt.plot(x, y.tolist(), label=label, **series.line(i))
+                y_ticks(plt, float(min(y.min() for y in lines)), float(max(y.max() for y in lines)))
+            plt.title("Value (millions) by parallel shift (bp)")
 
-        def krd_chart(plt) -> None:
-            plt.bar(list(r.tenors), r.portfolio_key_rate_durations.tolist())
+        def krd_chart(plt, series) -> None:
+            krd = r.portfolio_key_rate_durations
+            plt.bar(list(r.tenors), krd.tolist(), **series.bar(0))
+            y_ticks(plt, min(0.0, float(krd.min())), float(krd.max()))
             plt.title("Key-rate durations (years) by tenor")
 
         self.query_one("#rates-value-chart", Chart).draw(value_chart)

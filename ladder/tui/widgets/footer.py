@@ -2,8 +2,8 @@
 
 Textual's Footer rebuilds a widget per key whenever the bindings change, which on every view switch
 costs more than drawing the rest of the screen; this one redraws a single line. Keys of one
-``Binding.Group`` are shown together (``hlprcbyt Views``); keys that ``check_action`` greys out
-are dimmed.
+``Binding.Group`` are shown together; groups named in ``hidden_groups`` (keys shown elsewhere, such
+as the view bar's) are left out; keys that ``check_action`` greys out are dimmed.
 """
 
 from __future__ import annotations
@@ -18,6 +18,10 @@ class KeyFooter(Widget):
     DEFAULT_CSS = """
     KeyFooter { dock: bottom; height: 1; }
     """
+
+    def __init__(self, hidden_groups: tuple[str, ...] = ()) -> None:
+        super().__init__()
+        self.hidden_groups = hidden_groups
 
     def on_mount(self) -> None:
         self.screen.bindings_updated_signal.subscribe(self, lambda screen: self.refresh())
@@ -35,6 +39,8 @@ class KeyFooter(Widget):
             if not binding.show:
                 continue
             if binding.group is not None:
+                if binding.group.description in self.hidden_groups:
+                    continue
                 if binding.group.description not in groups:
                     groups[binding.group.description] = []
                     items.append(("group", binding.group.description))

@@ -4,6 +4,10 @@ Data arrive as a ``Frame``: columns of display text (object arrays) and, per col
 sort by (numbers or text). Sorting and filtering only reorder an index array, so a 10,000-row table
 sorts in milliseconds and paints no more than a screenful. Messages name rows by their position in
 the frame (the holding's index), not their place on screen.
+
+Columns fit the width: the least important (highest ``Column.priority``) drop first until the rest
+fit (``w`` shows every column again), and the frame's leading ``fixed`` columns (the row's key) stay
+in place while the others scroll sideways.
 """
 
 from __future__ import annotations
@@ -42,6 +46,8 @@ class FrameTable(ScrollView, can_focus=True):
         Binding("left", "column(-1)", "Column left", id="table.left", show=False),
         Binding("right", "column(1)", "Column right", id="table.right", show=False),
         Binding("s", "sort", "Sort", id="table.sort", tooltip="Sort by the highlighted column; again to reverse"),
+        Binding("w", "all_columns", "All columns", id="table.all_columns",
+                tooltip="Show every column (scroll sideways) or only those that fit"),
     ]
 
     cursor_row = reactive(0)      # position on screen order
@@ -63,13 +69,16 @@ class FrameTable(ScrollView, can_focus=True):
         self.sort_key: str | None = None
         self.descending = False
         self.filter_text = ""
+        self.all_columns = False
+        self.shown: tuple[int, ...] = ()     # frame column positions on screen, in order
+        self.widths: list[int] = []          # cells of each frame column on screen
 
     # ---- data ----------------------------------------------------------------------------------
     def show(self, frame: Frame, keep_place: bool = True) -> None:
         """Show ``frame``, keeping sort, filter and (by frame row) the cursor where they can be."""
         current = self.current_row if keep_place else None
         self.frame = frame
-        if self.sort_key is not None and self.sort_key not in frame.sort_values:
+        if self.sort_key is not None and frame.columns and self.sort_key not in frame.sort_values:
             self.sort_key = None
         self._reorder(current)
 
@@ -103,20 +112,63 @@ class FrameTable(ScrollView, can_focus=True):
             for word in words:
                 hit &= np.char.find(self.frame.search.astype(str), word) >= 0
             rows = rows[hit]
-        if self.sort_key is not None:
+        if self.sort_key in self.frame.sort_values:
             values = self.frame.sort_values[self.sort_key][rows]
             rows = rows[sort_order(values, self.descending)]
         self.order = rows
-        width = sum(self.frame.widths) + GAP * max(len(self.frame.widths) - 1, 0) + 2
-        self.virtual_size = Size(width, len(rows) + 1)
+        self._fit()
         place = 0
         if keep is not None:
             found = np.flatnonzero(rows == keep)
             place = int(found[0]) if len(found) else 0
-        self.cursor_column = min(self.cursor_column, max(len(self.frame.columns) - 1, 0))
         self.set_reactive(FrameTable.cursor_row, -1)
         self.cursor_row = min(place, max(len(rows) - 1, 0))
         self._clear_cache()
+        self.refresh()
+
+    # ---- columns on screen ---------------------------------------------------------------------
+    @property
+    def hidden_count(self) -> int:
+        return len(self.frame.columns) - len(self.shown)
+
+    def _span(self, columns) -> int:
+        """Cells taken by ``columns`` (frame positions), with the gaps after each."""
+        return sum(self.widths[i] + GAP for i in columns)
+
+    def _fit(self) -> None:
+        """Choose the columns on screen: drop the least important (then the rightmost of them) until
+        the rest fit the width, never a priority-1 column, then narrow those with a ``min_width``;
+        set the scrollable size."""
+        columns = list(range(len(self.frame.columns)))
+        self.widths = list(self.frame.widths)
+        width = self.scrollable_content_region.width or self.size.width
+        if not self.all_columns and width:
+            while 1 + self._span(columns) - GAP > width:
+                droppable = [i for i in columns if self.frame.columns[i].priority > 1]
+                if not droppable:
+                    break
+                columns.remove(max(droppable, key=lambda i: (self.frame.columns[i].priority, i)))
+            for i in columns:
+                excess = 1 + self._span(columns) - GAP - width
+                least = self.frame.columns[i].min_width
+                if excess > 0 and least is not None:
+                    self.widths[i] = max(least, self.widths[i] - excess)
+        self.shown = tuple(columns)
+        self.cursor_column = min(self.cursor_column, max(len(self.shown) - 1, 0))
+        self.virtual_size = Size(1 + self._span(columns), len(self.order) + 1)
+        self._clear_cache()
+
+    def on_resize(self) -> None:
+        self._fit()
+        self.refresh()
+
+    @property
+    def _fixed(self) -> tuple[int, ...]:
+        return self.shown[: min(self.frame.fixed, max(len(self.shown) - 1, 0))]
+
+    def action_all_columns(self) -> None:
+        self.all_columns = not self.all_columns
+        self._fit()
         self.refresh()
 
     # ---- keys ----------------------------------------------------------------------------------
@@ -128,15 +180,20 @@ class FrameTable(ScrollView, can_focus=True):
         self.action_cursor(step * max(self.size.height - 2, 1))
 
     def action_column(self, step: int) -> None:
-        if self.frame.columns:
-            self.cursor_column = int(np.clip(self.cursor_column + step, 0, len(self.frame.columns) - 1))
+        if self.shown:
+            self.cursor_column = int(np.clip(self.cursor_column + step, 0, len(self.shown) - 1))
+
+    @property
+    def column_key(self) -> str | None:
+        """The key of the highlighted column."""
+        return self.frame.columns[self.shown[self.cursor_column]].key if self.shown else None
 
     def action_sort(self) -> None:
-        if not self.frame.columns:
+        if not self.shown:
             return
-        key = self.frame.columns[self.cursor_column].key
-        descending = (not self.descending) if key == self.sort_key else self.frame.columns[self.cursor_column].numeric
-        self.sort_by(key, descending)
+        column = self.frame.columns[self.shown[self.cursor_column]]
+        descending = (not self.descending) if column.key == self.sort_key else column.numeric
+        self.sort_by(column.key, descending)
 
     def watch_cursor_row(self, old: int, new: int) -> None:
         if new < 0:
@@ -156,14 +213,16 @@ class FrameTable(ScrollView, can_focus=True):
     def watch_cursor_column(self) -> None:
         self._clear_cache()
         self.refresh()
-        if self.frame.columns:
-            x = sum(self.frame.widths[: self.cursor_column]) + GAP * self.cursor_column
-            w = self.frame.widths[self.cursor_column]
-            left = int(self.scroll_x)
+        fixed = self._fixed
+        if self.shown and self.cursor_column >= len(fixed):
+            moving = self.shown[len(fixed):]
+            x = self._span(moving[: self.cursor_column - len(fixed)])
+            w = self.widths[self.shown[self.cursor_column]]
+            left, room = int(self.scroll_x), self.scrollable_content_region.width - 1 - self._span(fixed)
             if x < left:
                 self.scroll_to(x=x, animate=False)
-            elif x + w > left + self.size.width:
-                self.scroll_to(x=x + w - self.size.width + 1, animate=False)
+            elif x + w > left + room:
+                self.scroll_to(x=x + w - room, animate=False)
 
     # ---- rendering -----------------------------------------------------------------------------
     def _clear_cache(self) -> None:
@@ -173,14 +232,24 @@ class FrameTable(ScrollView, can_focus=True):
         super().notify_style_update()
         self._clear_cache()
 
-    def _cells(self, values: list[str], styles: list[Style]) -> list[Segment]:
-        segments = [Segment(" ")]
-        for i, (column, width, text) in enumerate(zip(self.frame.columns, self.frame.widths, values)):
+    def _cells(self, columns, values: list[str], styles: list[Style], gap: Style) -> list[Segment]:
+        """Segments of one line for ``columns`` (frame positions), values and styles by position."""
+        segments = []
+        for i in columns:
+            column, width, text = self.frame.columns[i], self.widths[i], values[i]
             text = text if len(text) <= width else text[: width - 1] + "…"
             cell = text.rjust(width) if column.numeric else text.ljust(width)
             segments.append(Segment(cell, styles[i]))
-            segments.append(Segment(" " * GAP, styles[-1]))
+            segments.append(Segment(" " * GAP, gap))
         return segments
+
+    def _line(self, values: list[str], styles: list[Style], gap: Style, scroll_x: int, width: int) -> Strip:
+        """The fixed columns in place, then the others cropped to the horizontal scroll."""
+        fixed = self._fixed
+        head = Strip([Segment(" ", gap)] + self._cells(fixed, values, styles, gap))
+        rest = Strip(self._cells(self.shown[len(fixed):], values, styles, gap))
+        room = max(width - head.cell_length, 0)
+        return Strip.join([head, rest.crop_extend(scroll_x, scroll_x + room, gap)]).crop_extend(0, width, gap)
 
     def render_line(self, y: int) -> Strip:
         if not hasattr(self, "_lines"):
@@ -206,13 +275,13 @@ class FrameTable(ScrollView, can_focus=True):
             column_style = self.get_component_rich_style("frame-table--column")
             labels = []
             styles = []
+            current = self.shown[self.cursor_column] if self.shown else -1
             for i, c in enumerate(columns):
                 mark = (" ▼" if self.descending else " ▲") if c.key == self.sort_key else ""
                 labels.append(c.label + mark)
                 style = sorted_style if c.key == self.sort_key else head
-                styles.append(style + column_style if i == self.cursor_column else style)
-            segments = self._cells(labels, styles + [head])
-            line_style = head
+                styles.append(style + column_style if i == current else style)
+            strip = self._line(labels, styles, head, scroll_x, width)
         else:
             line_style = base
             if self.frame.row_style is not None and self.frame.row_style[row]:
@@ -222,8 +291,7 @@ class FrameTable(ScrollView, can_focus=True):
             elif position == self.cursor_row:
                 line_style = line_style + self.get_component_rich_style("frame-table--cursor", partial=True)
             values = [self.frame.text[c.key][row] for c in columns]
-            segments = self._cells(values, [line_style] * (len(columns) + 1))
-        strip = Strip(segments).crop_extend(scroll_x, scroll_x + width, line_style)
+            strip = self._line(values, [line_style] * len(columns), line_style, scroll_x, width)
         self._lines[key] = strip
         return strip
 
