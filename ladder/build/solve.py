@@ -4,10 +4,10 @@
   interface (``highspy``), which reports each better plan found while it runs and can be stopped: a
   ``watch`` callback hears the elapsed time, the best plan's income and its proven gap; a ``stop``
   flag ends the search with the best plan found so far (marked as not proven optimal).
-  Funds are semi-continuous (0 or lb <= x <= ub), a type HiGHS solves natively.
-- ``semi_milp``: ``scipy.optimize.milp`` for the diagnosis's program, a semi-continuous or
-  semi-integer variable given as x with a binary z beside it, lb z <= x <= ub z (the textbook
-  indicator form; HiGHS as called by scipy 1.17 stops with a solve error on its own semi-variable types).
+  A semi-continuous or semi-integer variable (a fund: 0 or lb <= x <= ub) is given to the solver as
+  x with a binary z beside it, lb z <= x <= ub z (``indicator_form``, the textbook form): HiGHS stops
+  with a solve error on its own semi-variable types at a fund's upper bound (hundreds of millions).
+- ``semi_milp``: the same through ``scipy.optimize.milp``, for the diagnosis's program.
 - ``relaxation``: the linear relaxation (``scipy.optimize.linprog``, method "highs"): lots may be
   fractional and a semi-integer lot count may take any value from 0 to its maximum. Its dual values
   (``marginals``) say how much income a year one more unit of each row's right-hand side would
@@ -83,50 +83,61 @@ def _row_bounds(p: Program, b: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     return np.where(p.eq, b, -np.inf), b
 
 
-def semi_milp(c, integrality, lb, ub, A, row_lower, row_upper, options):
-    """``scipy.optimize.milp`` with the semi-variables (integrality 2, 3) in the indicator form (module
-    docstring); returns the result with the indicators dropped from ``x``."""
-    from scipy.optimize import Bounds, LinearConstraint, milp
-
+def indicator_form(c, integrality, lb, ub, A, row_lower, row_upper) -> tuple:
+    """The program with each semi-variable (integrality 2, 3) as x with a binary z beside it,
+    lb z <= x <= ub z (module docstring): (c, integrality, lb, ub, A as CSR, row_lower, row_upper),
+    the indicators after the original columns."""
+    A = sparse.csr_matrix(A)
     semi = np.flatnonzero(integrality >= 2)
     k, m = len(c), len(semi)
-    if m:
-        scale = np.maximum(ub[semi], 1.0)
-        pick = np.zeros((2 * m, k + m))
-        pick[np.arange(m), semi] = 1.0 / scale                  # x / ub - z <= 0
-        pick[np.arange(m), k + np.arange(m)] = -ub[semi] / scale
-        pick[m + np.arange(m), semi] = -1.0 / scale              # -x / ub + (lb / ub) z <= 0
-        pick[m + np.arange(m), k + np.arange(m)] = lb[semi] / scale
-        rows = sparse.csr_matrix(pick)
-        A = sparse.vstack([sparse.hstack([sparse.csr_matrix(A), sparse.csr_matrix((A.shape[0], m))]), rows]).tocsr()
-        row_lower = np.concatenate([row_lower, np.full(2 * m, -np.inf)])
-        row_upper = np.concatenate([row_upper, np.zeros(2 * m)])
-        integrality = np.concatenate([np.where(integrality == 3, 1, np.where(integrality == 2, 0, integrality)),
-                                      np.ones(m, np.int64)])
-        lb = np.concatenate([np.where(np.isin(np.arange(k), semi), 0.0, lb), np.zeros(m)])
-        ub = np.concatenate([ub, np.ones(m)])
-        c = np.concatenate([c, np.zeros(m)])
-    res = milp(c, integrality=integrality, bounds=Bounds(lb, ub),
-               constraints=LinearConstraint(sparse.csr_matrix(A), row_lower, row_upper), options=options)
-    if m and res.x is not None:
-        res.x = res.x[:k]
+    if not m:
+        return c, integrality, lb, ub, A, row_lower, row_upper
+    scale = np.maximum(ub[semi], 1.0)
+    pick = np.zeros((2 * m, k + m))
+    pick[np.arange(m), semi] = 1.0 / scale                  # x / ub - z <= 0
+    pick[np.arange(m), k + np.arange(m)] = -ub[semi] / scale
+    pick[m + np.arange(m), semi] = -1.0 / scale              # -x / ub + (lb / ub) z <= 0
+    pick[m + np.arange(m), k + np.arange(m)] = lb[semi] / scale
+    A = sparse.vstack([sparse.hstack([A, sparse.csr_matrix((A.shape[0], m))]), sparse.csr_matrix(pick)]).tocsr()
+    return (np.concatenate([c, np.zeros(m)]),
+            np.concatenate([np.where(integrality == 3, 1, np.where(integrality == 2, 0, integrality)),
+                            np.ones(m, np.int64)]),
+            np.concatenate([np.where(np.isin(np.arange(k), semi), 0.0, lb), np.zeros(m)]),
+            np.concatenate([ub, np.ones(m)]), A,
+            np.concatenate([row_lower, np.full(2 * m, -np.inf)]), np.concatenate([row_upper, np.zeros(2 * m)]))
+
+
+def semi_milp(c, integrality, lb, ub, A, row_lower, row_upper, options):
+    """``scipy.optimize.milp`` with the semi-variables in the indicator form; returns the result with
+    the indicators dropped from ``x``."""
+    from scipy.optimize import Bounds, LinearConstraint, milp
+
+    c2, kind, lower, upper, A, row_lower, row_upper = indicator_form(c, integrality, lb, ub, A, row_lower, row_upper)
+    res = milp(c2, integrality=kind, bounds=Bounds(lower, upper),
+               constraints=LinearConstraint(A, row_lower, row_upper), options=options)
+    if res.x is not None:
+        res.x = res.x[:len(c)]
     return res
 
 
 def _highs_model(p: Program):
-    """``p`` as a HiGHS model minimizing -income, rows scaled to unit size, columns stored by column."""
+    """``p`` as a HiGHS model minimizing -income, rows scaled to unit size, semi-variables in the
+    indicator form (HiGHS refuses its own semi-continuous type above an upper bound far below a
+    fund's), columns stored by column."""
     import highspy   # here, not at the top: the commands start without it
 
     scale = _row_scale(p)
-    A = sparse.csc_matrix(p.A / scale[:, None])
-    b = p.b / scale
+    c, kind, lower, upper, A, row_lower, row_upper = indicator_form(
+        -p.c, p.integrality, p.lb.astype(float), p.ub.astype(float), p.A / scale[:, None],
+        *_row_bounds(p, p.b / scale))
+    A = A.tocsc()
     lp = highspy.HighsLp()
-    lp.num_col_, lp.num_row_ = len(p.c), len(b)
-    lp.col_cost_, lp.col_lower_, lp.col_upper_ = -p.c, p.lb.astype(float), p.ub.astype(float)
-    lp.row_lower_, lp.row_upper_ = np.where(p.eq, b, -highspy.kHighsInf), b
+    lp.num_col_, lp.num_row_ = len(c), A.shape[0]
+    lp.col_cost_, lp.col_lower_, lp.col_upper_ = c, lower, upper
+    lp.row_lower_, lp.row_upper_ = np.where(np.isinf(row_lower), -highspy.kHighsInf, row_lower), row_upper
     lp.a_matrix_.format_ = highspy.MatrixFormat.kColwise
     lp.a_matrix_.start_, lp.a_matrix_.index_, lp.a_matrix_.value_ = A.indptr, A.indices, A.data
-    lp.integrality_ = [highspy.HighsVarType(int(k)) for k in p.integrality]
+    lp.integrality_ = [highspy.HighsVarType(int(k)) for k in kind]
     return lp
 
 
@@ -190,7 +201,7 @@ def solve(p: Program, time_limit: float = TIME_LIMIT_S, watch: Watch | None = No
                 stopping.set()
         model, info = h.getModelStatus(), h.getInfo()
         found = info.primal_solution_status == 2     # kSolutionStatusFeasible
-        x = np.asarray(h.getSolution().col_value) if found else None
+        x = np.asarray(h.getSolution().col_value)[:len(p.c)] if found else None
     seconds = time.perf_counter() - start
     status = {highspy.HighsModelStatus.kOptimal: "optimal", highspy.HighsModelStatus.kInfeasible: "infeasible",
               highspy.HighsModelStatus.kTimeLimit: "time_limit",

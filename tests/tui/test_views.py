@@ -462,7 +462,7 @@ def test_esc_stops_the_figures_and_keeps_the_screen_then_ctrl_r_computes_again(d
     assert seen["final"] == ({"valuation", "check", "shock", "plan", "cash", "history"}, set())
 
 
-def test_esc_stops_a_build_and_keeps_the_previous_result(demo_book):
+def test_esc_twice_drops_a_build_and_keeps_the_previous_result(demo_book):
     seen = {}
 
     async def script(app, pilot):
@@ -471,8 +471,11 @@ def test_esc_stops_a_build_and_keeps_the_previous_result(demo_book):
         view = app.query_one("#builder")
         first = view.result
         view.action_form()
-        view.action_solve()              # a second build, and Esc before it can land
+        view.action_solve()              # a second build, and Esc twice before it can land
         seen["esc_active"] = view.check_action("leave_form", ())
+        view.action_leave_form()
+        seen["stopping"] = str(app.query_one("#builder-status").render())
+        view.action_form()
         view.action_leave_form()
         await settle(app, pilot)
         seen["same"] = view.result is first
@@ -481,7 +484,39 @@ def test_esc_stops_a_build_and_keeps_the_previous_result(demo_book):
 
     drive(demo_book, script)
     assert seen["esc_active"] and seen["same"] and not seen["computing"]
-    assert seen["status"].startswith("Stopped. The result below is the previous build's.")
+    assert seen["stopping"].startswith("Stopping: the best plan found so far comes next")
+    assert seen["status"].startswith("Dropped. The result below is the previous build's.")
+
+
+def test_esc_during_a_long_build_returns_the_best_plan_marked_not_proven(demo_book):
+    # issue 18's build: 50 million on quarterly rungs with sales; its first plan comes well before
+    # the proof of optimality (tests/build/test_build_stop.py), so Esc at the first plan stops a search
+    seen = {}
+
+    async def script(app, pilot):
+        await pilot.press("b", "f", *"50000000")
+        view = app.query_one("#builder")
+        app.query_one("#builder-rungs").value = "12x3M"
+        app.query_one("#builder-sales").value = True
+        await pilot.press("ctrl+g")
+        status = app.query_one("#builder-status")
+        for _ in range(600):                   # wait (up to a minute) for the first plan
+            await asyncio.sleep(0.1)
+            if "best so far" in str(status.render()):
+                break
+        seen["running"] = str(status.render())
+        await pilot.press("escape")
+        await settle(app, pilot)
+        seen["result"] = view.result
+        seen["status"] = str(status.render())
+        seen["text"] = str(app.query_one("#builder-result").render())
+
+    drive(demo_book, script)
+    assert seen["running"].startswith("Building: solving: ") and "best so far" in seen["running"]
+    r = seen["result"]
+    assert r.status == "built" and r.solution.status == "stopped" and not r.proven_optimal
+    assert seen["status"].startswith("Stopped: the best plan found so far, NOT proven optimal")
+    assert seen["text"].startswith("NOT PROVEN OPTIMAL: the search was stopped after ")
 
 
 def test_cash_view_lists_a_booked_sale_as_unsaved_until_saved(book_copy):

@@ -4,6 +4,8 @@ Every figure comes from ``ladder.analysis.build.build_ladder``."""
 
 from __future__ import annotations
 
+import threading
+
 import numpy as np
 from textual import work
 from textual.app import ComposeResult
@@ -13,7 +15,7 @@ from textual.message import Message
 from textual.widgets import Input, Label, ProgressBar, Select, Static
 from textual.worker import get_current_worker
 
-from ladder.analysis.build import GENERIC_NOTE
+from ladder.analysis.build import GENERIC_NOTE, NOT_FOUND
 from ladder.tui import format as fmt
 from ladder.tui.frame import Column, Frame
 from ladder.tui.results import Results
@@ -72,6 +74,10 @@ def _summary_line(name: str, s) -> str:
 
 
 def result_text(r) -> str:
+    if r.status in NOT_FOUND:
+        why = "was stopped" if r.status == "stopped" else "reached its time limit"
+        return (f"NO PLAN YET: the search {why} after {r.seconds:.1f} s before it found any ladder. "
+                "Build again (ctrl+g) and let it run longer.")
     if r.status != "built":
         lines = ["NO LADDER fits every rule. The smallest relaxation that would admit one:"]
         for c in r.conflicts:
@@ -82,6 +88,8 @@ def result_text(r) -> str:
     generic = r.generic_trades
     lines = [f"BUILT: {len(r.trades)} trade(s), invested {fmt.money(r.invested)} of {fmt.money(r.cash)}   rungs "
              f"{r.rungs.spec}   policy after: {compliance}   solved in {r.seconds:.2f} s"]
+    if r.optimality_note:
+        lines.insert(0, f"{r.optimality_note}.")
     if r.naive_yield is not None and r.after is not None:
         lines.append(f"Built {fmt.percent(r.after.yield_to_worst)}% against an even ladder's "
                      f"{fmt.percent(r.naive_yield)}% ({fmt.number(r.gain_over_naive_bp, 1, sign=True)} bp); the even "
@@ -148,6 +156,7 @@ class BuilderView(View):
     def on_mount(self) -> None:
         self.result = None
         self._asked = 0
+        self._stopping = threading.Event()
         self.query_one("#builder-progress").display = False
 
     def refresh_view(self, results: Results) -> None:
@@ -175,20 +184,28 @@ class BuilderView(View):
         self.query_one("#builder-trades", FrameTable).focus()
 
     def stop(self) -> None:
-        """Esc during a build: drop it (the solver's thread finishes and its answer is ignored); the
-        previous result, if any, stays."""
+        """Esc during a build: the solver ends its search at its next check and the best plan found so
+        far comes back marked as not proven optimal (``BuildResult.optimality_note``); before the
+        search has begun the build ends with no plan. A second Esc drops the build and keeps the
+        previous result, if any."""
+        if not self._stopping.is_set():
+            self._stopping.set()
+            self.query_one("#builder-status", Static).update(
+                "Stopping: the best plan found so far comes next (Esc again drops the build)…")
+            return
         self.workers.cancel_group(self, "builder")
         self._asked += 1
         self.set_class(False, "-computing")
         self.query_one("#builder-progress").display = False
         self.query_one("#builder-status", Static).update(
-            "Stopped." + (" The result below is the previous build's." if self.result is not None else "")
+            "Dropped." + (" The result below is the previous build's." if self.result is not None else "")
             + " ctrl+g builds again.")
 
     def action_solve(self) -> None:
         if self.results is None:
             return
         self._asked += 1
+        self._stopping = threading.Event()
         self._book = self.results.book
         bar = self.query_one("#builder-progress", ProgressBar)
         bar.display = True
@@ -197,10 +214,11 @@ class BuilderView(View):
         self.set_class(True, "-computing")
         rungs = self.query_one("#builder-rungs", Input).value.strip() or None
         self.run_build(self._asked, self._book, self.query_one("#builder-cash", Input).value, rungs,
-                       bool(self.query_one("#builder-sales", Select).value))
+                       bool(self.query_one("#builder-sales", Select).value), self._stopping)
 
     @work(thread=True, exclusive=True, exit_on_error=False, group="builder")
-    def run_build(self, asked: int, book, cash: str, rungs: str | None, allow_sales: bool) -> None:
+    def run_build(self, asked: int, book, cash: str, rungs: str | None, allow_sales: bool,
+                  stopping: threading.Event) -> None:
         from ladder.analysis.build import build_ladder
         from ladder.tui.tasks import describe
 
@@ -211,7 +229,8 @@ class BuilderView(View):
                 self.post_message(self.Progressed(asked, fraction, text))
 
         try:
-            result, error = build_ladder(book, cash, rungs=rungs, allow_sales=allow_sales, progress=progress), None
+            result, error = build_ladder(book, cash, rungs=rungs, allow_sales=allow_sales, progress=progress,
+                                         stop=stopping.is_set), None
         except Exception as problem:   # shown in the view, never a crash
             result, error = None, describe(problem)
         if not worker.is_cancelled:
@@ -230,8 +249,14 @@ class BuilderView(View):
         if message.error is not None:
             self._show(None, "The build was refused:\n" + message.error)
             return
-        self._show(message.result, "Proposed: review the trades and the policy after them; ctrl+b books them."
-                   if message.result.status == "built" else "No ladder: see why below.")
+        r = message.result
+        if r.status == "built":
+            status = ("Proposed: review the trades and the policy after them; ctrl+b books them." if r.proven_optimal
+                      else "Stopped: the best plan found so far, NOT proven optimal (see below); ctrl+b books it, "
+                           "ctrl+g builds again.")
+        else:
+            status = "No plan: see below."
+        self._show(r, status)
         self.query_one("#builder-trades", FrameTable).focus()
 
     def _show(self, result, status: str) -> None:
