@@ -80,7 +80,9 @@ def test_ctrl_c_stops_the_search_and_keeps_the_plan(demo):
 
     result = build_ladder(demo, CASH, rungs=RUNGS, allow_sales=True, watch=watch)
     assert raised and result.status == "built" and result.solution.status == "stopped"
-    assert result.solution.income >= raised[0].income
+    # the plan returned is at least as good as the one heard when ctrl+c came; the solver's income and
+    # ours (c @ x after rounding the lots) differ by round-off, so 1e-9 relative
+    assert result.solution.income >= raised[0].income * (1 - 1e-9)
 
 
 def test_the_command_marks_a_stopped_plan(tmp_path, monkeypatch, capsys):
